@@ -1,0 +1,84 @@
+"""The ``perifocal`` command: argument parsing, exit codes and messages.
+
+Each subcommand lives in its own module here with ``add_parser(subparsers)`` and
+``run(args) -> int``; modules import their heavy dependencies (GL, windowing) inside
+``run`` so that ``perifocal check`` starts fast and works with no GL at all.
+
+Exit codes: 0 success; 2 bad input (the first line on stderr names the file or flag,
+then one line per problem); 1 internal error (a traceback and how to report it).
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+import traceback
+from collections.abc import Sequence
+
+from .. import __version__
+from ..errors import UserInputError
+
+#: Subcommand name -> module in this package. A command is listed only once it works.
+COMMANDS: dict[str, str] = {
+    "convert": "convert",
+    "bench": "bench",
+}
+
+CAUTION = (
+    "Caution: two-body, Keplerian model only. Not for operational navigation, "
+    "conjunction assessment or any flight-safety decision; defer to the mission's "
+    "flight-dynamics practice."
+)
+
+REPORT = "This is a bug in Perifocal. Please report it with the command you ran and the traceback above."
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse with a flag error that follows the contract: exit 2, one clear line."""
+
+    def error(self, message: str) -> None:  # type: ignore[override]
+        sys.stderr.write(f"{self.prog}: {message}\n  (see '{self.prog} --help')\n")
+        raise SystemExit(2)
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(
+        prog="perifocal",
+        description="Orbital elements in, correct orbit pictures out: check, render, edit.",
+        epilog="example:\n  perifocal convert --center earth --unit km "
+        "--r 7000 0 0 --v 0 7.5 1\n\n" + CAUTION,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    parser.add_argument("--version", action="version", version=f"perifocal {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    for name, module in COMMANDS.items():
+        importlib.import_module(f"{__name__}.{module}").add_parser(sub)
+    return parser
+
+
+def report_input_error(err: UserInputError) -> None:
+    lines = [f"perifocal: error in {err.source}"] + [f"  {p}" for p in err.problems]
+    sys.stderr.write("\n".join(lines) + "\n")
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if args.command is None:
+        parser.print_help()
+        return 2
+    try:
+        return int(args.run(args) or 0)
+    except UserInputError as err:
+        report_input_error(err)
+        return 2
+    except KeyboardInterrupt:
+        sys.stderr.write("perifocal: interrupted\n")
+        return 130
+    except BrokenPipeError:
+        return 0
+    except Exception:  # an internal error: show everything, say how to report it
+        traceback.print_exc()
+        sys.stderr.write(REPORT + "\n")
+        return 1
