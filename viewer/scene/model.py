@@ -1,0 +1,192 @@
+"""The Scene: a frozen, validated description of one system, in SI units and radians.
+
+This is what the loader produces and what geometry, renderer, exporter and editor read.
+Every field has its unit in its name or docstring; nothing here knows about TOML.
+Colours are sRGB triples of floats in [0, 1].
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field, replace
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from ..orbit import Elements
+from ..units import Epoch
+
+RGB = tuple[float, float, float]
+
+#: The scene epoch when a file gives none (J2000.0 in TDB).
+DEFAULT_EPOCH_TEXT = "2000-01-01T12:00:00 TDB"
+
+
+@dataclass(frozen=True)
+class BodyShow:
+    """What to draw for a body (scene key ``show``); defaults as in scene-format.md."""
+
+    orbit: bool = True
+    marker: bool = True
+    label: bool = True
+    foci: bool = False
+    axes: bool = False
+    apsides: bool = False
+    nodes: bool = False
+    velocity: bool = False
+    sweep: bool = False
+
+
+@dataclass(frozen=True)
+class Sweep:
+    """Equal-time sectors: ``count`` sectors of ``interval_s`` from ``start_s`` (scene time)."""
+
+    start_s: float
+    interval_s: float
+    count: int
+    color: RGB
+    opacity: float
+    show_area: bool = False
+
+    def bounds_s(self) -> list[tuple[float, float]]:
+        """Scene-time bounds (t0, t1) of each sector, k = 0..count-1."""
+        return [(self.start_s + k * self.interval_s, self.start_s + (k + 1) * self.interval_s)
+                for k in range(self.count)]
+
+
+@dataclass(frozen=True)
+class Body:
+    """One orbiting body.
+
+    ``elements`` hold the orbit at the body's own epoch (with ``mu`` of the centre);
+    ``epoch_offset_s`` is that epoch minus the scene epoch, in TDB seconds, so the body's
+    state at scene time t is ``elements.after(t - epoch_offset_s)``.
+    ``limit_radius_m`` bounds the drawn branch of an open conic (e >= 1).
+    """
+
+    name: str
+    elements: Elements
+    epoch_offset_s: float = 0.0
+    color: RGB = (0.5, 0.8, 1.0)
+    line_width_px: float = 2.0
+    show: BodyShow = field(default_factory=BodyShow)
+    sweep: Sweep | None = None
+    limit_radius_m: float | None = None
+    radius_m: float | None = None
+
+    def elements_at(self, t_s: float) -> Elements:
+        """The body's elements (its true anomaly) at scene time t_s."""
+        return self.elements.after(t_s - self.epoch_offset_s)
+
+
+@dataclass(frozen=True)
+class Population:
+    """Many small bodies from a table file: element arrays of one shape (N,), drawn as points."""
+
+    name: str
+    elements: Elements
+    epoch_offset_s: float
+    color: RGB
+    point_size_px: float
+    source: Path | None = None
+
+    @property
+    def count(self) -> int:
+        return int(np.asarray(self.elements.a).size)
+
+
+@dataclass(frozen=True)
+class Center:
+    """The central body at the occupied focus: ``gm_m3_s2`` and ``radius_m``."""
+
+    name: str
+    gm_m3_s2: float
+    radius_m: float
+    color: RGB = (1.0, 0.82, 0.5)
+    show_body: bool = True
+    show_label: bool = True
+    preset: str | None = None
+    atmosphere_m: float | None = None
+    soi_radius_m: float | None = None
+
+
+@dataclass(frozen=True)
+class Camera:
+    """How the scene is looked at (scene-format.md, "Camera directions").
+
+    ``look`` is "top", "edge" or "angles" (then ``elevation_rad`` and ``azimuth_rad``
+    give the eye direction). ``target`` is "center", a body's name, or an (x, y, z)
+    point in metres. ``width_m`` is the orthographic field across the image width;
+    ``distance_m`` the eye's distance from the target (perspective, dome, panorama).
+    """
+
+    projection: str = "orthographic"
+    look: str = "top"
+    elevation_rad: float = float(np.pi / 2)
+    azimuth_rad: float = 0.0
+    target: str | tuple[float, float, float] = "center"
+    width_m: float = 4.0 * 149_597_870_700.0
+    distance_m: float = 6.0 * 149_597_870_700.0
+    fov_rad: float = float(np.radians(45.0))
+
+
+@dataclass(frozen=True)
+class RenderSettings:
+    """Image settings: ``size_px`` (width, height), background colour, starfield, grid, labels."""
+
+    size_px: tuple[int, int] = (1920, 1080)
+    background: RGB = (0.0, 0.0, 0.0)
+    stars: bool = True
+    grid: bool = False
+    labels: bool = True
+
+
+@dataclass(frozen=True)
+class Timeline:
+    """Scene time of the show: frame k is at ``start_s + k * rate / fps`` scene seconds."""
+
+    start_s: float = 0.0
+    rate: float = 5.0 * 86_400.0  # scene seconds per second of show
+    fps: float = 30.0
+    duration_s: float = 20.0  # seconds of show
+
+    @property
+    def frame_count(self) -> int:
+        return int(round(self.duration_s * self.fps))
+
+    def time_of_frame(self, k: Any) -> Any:
+        """Scene time (s) of frame k (scalar or array)."""
+        return self.start_s + np.asarray(k, dtype=np.float64) * (self.rate / self.fps)
+
+
+@dataclass(frozen=True)
+class Scene:
+    """A whole scene, frozen. Edit with ``dataclasses.replace`` (or ``Scene.with_body``)."""
+
+    title: str
+    epoch: Epoch
+    frame: str
+    center: Center
+    bodies: tuple[Body, ...]
+    camera: Camera = field(default_factory=Camera)
+    render: RenderSettings = field(default_factory=RenderSettings)
+    timeline: Timeline = field(default_factory=Timeline)
+    populations: tuple[Population, ...] = ()
+    source: Path | None = None
+    length_unit: str = "au"
+    time_unit: str = "d"
+    angle_unit: str = "deg"
+    warnings: tuple[str, ...] = ()
+
+    def body(self, name: str) -> Body:
+        """The body called ``name``; KeyError if there is none."""
+        for b in self.bodies:
+            if b.name == name:
+                return b
+        raise KeyError(name)
+
+    def with_body(self, index: int, body: Body) -> Scene:
+        """A copy with body ``index`` replaced."""
+        bodies = list(self.bodies)
+        bodies[index] = body
+        return replace(self, bodies=tuple(bodies))
