@@ -31,7 +31,10 @@ CAUTION = (
     "flight-dynamics practice."
 )
 
-REPORT = "This is a bug in Perifocal. Please report it with the command you ran and the traceback above."
+REPORT = (
+    "This is a bug in Perifocal. Please report it with the command you ran and the "
+    "traceback above."
+)
 
 
 class _Parser(argparse.ArgumentParser):
@@ -52,7 +55,7 @@ def build_parser() -> argparse.ArgumentParser:
     )
     parser.add_argument("--version", action="version", version=f"perifocal {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
-    for name, module in COMMANDS.items():
+    for module in COMMANDS.values():
         importlib.import_module(f"{__name__}.{module}").add_parser(sub)
     return parser
 

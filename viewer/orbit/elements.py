@@ -212,7 +212,7 @@ class Elements:
     def speed_apoapsis(self) -> Any:
         """Speed at apoapsis (vis-viva), m/s: the slowest point; NaN for e >= 1."""
         e = np.asarray(self.e, dtype=np.float64)
-        with np.errstate(invalid="ignore"):
+        with np.errstate(invalid="ignore", divide="ignore"):
             v = np.asarray(self.speed_at(np.pi))
         return _f(np.where(e < 1.0, v, np.nan))
 

@@ -21,7 +21,7 @@ Floats = NDArray[np.float64]
 
 
 def stumpff_c2_c3(psi: ArrayLike) -> tuple[Floats, Floats]:
-    """The Stumpff functions c2(psi) = (1 - cos sqrt psi)/psi, c3 = (sqrt psi - sin sqrt psi)/psi^1.5.
+    """Stumpff functions c2 = (1 - cos sqrt psi) / psi, c3 = (sqrt psi - sin sqrt psi) / psi^1.5.
 
     Half-angle forms avoid cancellation; a series serves |psi| < 1.
     """

@@ -35,7 +35,7 @@ def _erfa():  # imported on first use, so that importing viewer.units stays chea
 
 @dataclass(frozen=True, order=True)
 class Epoch:
-    """An instant as a two-part Julian date in TDB (jd1 + jd2 days), and the scale it was given in."""
+    """An instant as a two-part TDB Julian date (jd1 + jd2 days) and the scale to show it in."""
 
     jd1: float
     jd2: float
