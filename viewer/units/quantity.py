@@ -56,6 +56,12 @@ def _allowed(dimension: str) -> str:
     return ", ".join(u for u in DIMENSIONS[dimension] if u) or "a bare number"
 
 
+def _an(dimension: str) -> str:
+    names = {"gm": "gravitational parameter", "rate": "time rate", "angle": "angle"}
+    name = names.get(dimension, dimension)
+    return ("an " if name[0] in "aeiou" else "a ") + name
+
+
 def _canonical(unit: str) -> str:
     u = unit.replace(" ", "")
     return _ALIASES.get(u, _ALIASES.get(u.lower(), u))
@@ -70,7 +76,8 @@ def unit_factor(unit: str, dimension: str) -> float:
     for other, units in DIMENSIONS.items():
         if u in units and other != dimension:
             raise QuantityError(
-                f"unit {unit!r} is a {other}, not a {dimension}; allowed: {_allowed(dimension)}")
+                f"unit {unit!r} is {_an(other)}, not {_an(dimension)}; "
+                f"allowed: {_allowed(dimension)}")
     raise QuantityError(f"unknown unit {unit!r}; allowed for a {dimension}: {_allowed(dimension)}")
 
 
