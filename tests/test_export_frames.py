@@ -1,0 +1,186 @@
+"""The export pipeline: frame ranges, names, resume, atomic files, video, bad options.
+
+Frames here come from a small deterministic function of the frame number, so these tests
+check the pipeline alone; tests with the real renderer live beside the renderer's.
+"""
+
+from __future__ import annotations
+
+import io
+import os
+import subprocess
+import sys
+import textwrap
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from viewer.errors import UserInputError
+from viewer.export.encode import check_video_size, image_is_complete, png_bytes
+from viewer.export.frames import frame_path, parse_frame_range, render_sequence, render_video
+from viewer.export.progress import Progress
+
+H, W = 48, 64
+
+
+def frame_of(k: int) -> np.ndarray:
+    """A frame that differs for every k: a bar at row k, alpha 255."""
+    img = np.zeros((H, W, 4), np.uint8)
+    img[..., 3] = 255
+    img[k % H, :, :3] = (255, 200, 40)
+    return img
+
+
+def test_frame_ranges_are_half_open_and_checked_against_the_timeline() -> None:
+    assert parse_frame_range(None, 600) == range(600)
+    assert parse_frame_range("40:80", 600) == range(40, 80)
+    assert parse_frame_range(":10", 600) == range(10)
+    assert parse_frame_range("590:", 600) == range(590, 600)
+    for bad, needle in (("0:601", "at most 600"), ("5:5", "0 <= A < B"), ("a:b", "not a range"),
+                        ("-1:4", "0 <= A < B"), ("1:2:3", "not a range")):
+        with pytest.raises(UserInputError, match=needle):
+            parse_frame_range(bad, 600)
+
+
+def test_files_are_numbered_by_absolute_frame(tmp_path: Path) -> None:
+    render_sequence(range(40, 43), frame_of, tmp_path / "out", stream=io.StringIO())
+    assert sorted(p.name for p in (tmp_path / "out").iterdir()) == [
+        "frame_000040.png", "frame_000041.png", "frame_000042.png"]
+
+
+def test_a_split_render_gives_the_same_bytes_as_a_whole_one(tmp_path: Path) -> None:
+    render_sequence(range(0, 6), frame_of, tmp_path / "whole", stream=io.StringIO())
+    render_sequence(range(0, 3), frame_of, tmp_path / "split", stream=io.StringIO())
+    render_sequence(range(3, 6), frame_of, tmp_path / "split", stream=io.StringIO())
+    for k in range(6):
+        assert (frame_path(tmp_path / "whole", k, "png").read_bytes()
+                == frame_path(tmp_path / "split", k, "png").read_bytes())
+
+
+def test_resume_renders_only_missing_and_broken_frames(tmp_path: Path) -> None:
+    out = tmp_path / "seq"
+    render_sequence(range(8), frame_of, out, stream=io.StringIO())
+    good = frame_path(out, 5, "png").read_bytes()
+    frame_path(out, 2, "png").unlink()                       # deleted
+    p = frame_path(out, 5, "png")
+    p.write_bytes(good[: len(good) // 2])                    # truncated
+    frame_path(out, 6, "png").write_bytes(b"\x89PNG\r\n\x1a\n" + b"\0" * 64)  # garbage
+    rendered: list[int] = []
+
+    def counting(k: int) -> np.ndarray:
+        rendered.append(k)
+        return frame_of(k)
+
+    result = render_sequence(range(8), counting, out, resume=True, stream=io.StringIO())
+    assert sorted(rendered) == [2, 5, 6]
+    assert (result.rendered, result.skipped) == (3, 5)
+    assert frame_path(out, 5, "png").read_bytes() == good
+    assert all(image_is_complete(frame_path(out, k, "png")) for k in range(8))
+
+
+def test_sixteen_bit_png_keeps_the_values(tmp_path: Path) -> None:
+    from PIL import Image
+
+    img = (np.arange(H * W * 4, dtype=np.uint32).reshape(H, W, 4) * 37 % 65536).astype(np.uint16)
+    path = tmp_path / "deep.png"
+    path.write_bytes(png_bytes(img, transparent=True, bits=16))
+    with Image.open(path) as decoded:
+        assert decoded.size == (W, H)
+    # Pillow reads 16-bit RGBA as 8-bit; decode with zlib to check the stored samples.
+    import zlib
+
+    data = path.read_bytes()
+    idat = data[data.index(b"IDAT") + 4: data.index(b"IEND") - 8]
+    raw = np.frombuffer(zlib.decompress(idat), np.uint8).reshape(H, 1 + W * 8)
+    samples = raw[:, 1:].copy().view(">u2").reshape(H, W, 4)
+    assert np.array_equal(samples, img)
+
+
+def test_the_video_decodes_to_the_right_frame_count_and_size(tmp_path: Path) -> None:
+    out = tmp_path / "show.mp4"
+    render_video(range(12), frame_of, out, (W, H), fps=24, stream=io.StringIO())
+    assert decoded_frames(out) == (12, W, H)
+    assert [p.name for p in tmp_path.iterdir()] == ["show.mp4"]  # no temporary left
+
+
+def decoded_frames(path: Path) -> tuple[int, int, int]:
+    """(frame count, width, height) by decoding the whole video with the bundled ffmpeg."""
+    import re
+
+    import imageio_ffmpeg
+
+    proc = subprocess.run([imageio_ffmpeg.get_ffmpeg_exe(), "-hide_banner", "-i", str(path),
+                           "-f", "rawvideo", "-pix_fmt", "rgb24", "-"], capture_output=True)
+    assert proc.returncode == 0, proc.stderr.decode()
+    w, h = map(int, re.search(rb"Video: .*?, (\d+)x(\d+)", proc.stderr).groups())
+    count, rest = divmod(len(proc.stdout), w * h * 3)
+    assert rest == 0
+    return count, w, h
+
+
+def test_odd_video_sizes_are_refused_not_resized() -> None:
+    with pytest.raises(UserInputError, match="even width and height"):
+        check_video_size(1919, 1080)
+
+
+def test_an_unwritable_folder_is_a_clear_error(tmp_path: Path) -> None:
+    if os.geteuid() == 0:
+        target = Path("/proc/perifocal-cannot-exist/frames")  # even root cannot write here
+    else:
+        locked = tmp_path / "locked"
+        locked.mkdir(mode=0o500)
+        target = locked / "frames"
+    with pytest.raises(UserInputError, match="cannot create the output folder"):
+        render_sequence(range(2), frame_of, target, stream=io.StringIO())
+
+
+def test_a_full_disk_leaves_no_partial_frame(tmp_path: Path) -> None:
+    # The child may write files of at most 2 kB (RLIMIT_FSIZE); our frames are larger.
+    script = textwrap.dedent(f"""
+        import io, resource, signal, sys
+        import numpy as np
+        sys.path.insert(0, {str(Path(__file__).parent)!r})
+        signal.signal(signal.SIGXFSZ, signal.SIG_IGN)   # get EFBIG instead of a kill
+        resource.setrlimit(resource.RLIMIT_FSIZE, (2048, 2048))
+        from pathlib import Path
+        from viewer.cli import report_input_error
+        from viewer.errors import UserInputError
+        from viewer.export.frames import render_sequence
+        rng = np.random.default_rng(1)
+        def noisy(k):
+            return rng.integers(0, 255, (64, 64, 4), dtype=np.uint8)
+        try:
+            render_sequence(range(3), noisy, Path({str(tmp_path / "full")!r}),
+                            stream=io.StringIO())
+        except UserInputError as err:
+            report_input_error(err)
+            sys.exit(2)
+    """)
+    proc = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True)
+    assert proc.returncode == 2, proc.stderr
+    assert "file size limit" in proc.stderr
+    assert "Traceback" not in proc.stderr
+    assert list((tmp_path / "full").iterdir()) == []  # no partial frame, no temporary
+
+
+class FakeClock:
+    def __init__(self) -> None:
+        self.t = 0.0
+
+    def __call__(self) -> float:
+        return self.t
+
+
+def test_progress_prints_rate_and_time_left_then_a_summary() -> None:
+    clock = FakeClock()
+    out = io.StringIO()
+    p = Progress(10, "frames", out, clock=clock, every_s=0.0)
+    for _ in range(4):
+        clock.t += 0.5
+        p.advance()
+    assert "4/10 frames, 2.0/s, 0:03 left" in out.getvalue()
+    clock.t += 3.0
+    for _ in range(6):
+        p.advance(skipped=True)
+    assert p.finish("out/") == "4 frames in 0:05, 0.8/s, 6 already complete, skipped -> out/"

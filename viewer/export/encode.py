@@ -1,0 +1,202 @@
+"""Encoders: RGBA frames (numpy uint8 or uint16, H x W x 4, top row first) to files.
+
+PNG and JPEG through Pillow, written atomically; PNG integrity check for ``--resume``;
+H.264 MP4 through imageio-ffmpeg (its wheel ships ffmpeg). Pillow's encoders release the
+GIL, so a small thread pool encodes frame k while the renderer draws frame k + 1.
+"""
+
+from __future__ import annotations
+
+import concurrent.futures
+import errno
+import io
+import subprocess
+import tempfile
+import zlib
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from ..errors import UserInputError
+from ..fileio import atomic_write_bytes
+
+STILL_FORMATS = ("png", "jpg")
+#: zlib level for PNG: 1 is several times faster than 6 for a few per cent more bytes
+#: on dark, mostly flat frames (measured: see docs/performance.md).
+PNG_LEVEL = 1
+
+
+def png_bytes(rgba: np.ndarray, transparent: bool = False, bits: int = 8) -> bytes:
+    """A PNG of an RGBA frame: RGB unless ``transparent``; 8 or 16 bits per channel."""
+    from PIL import Image
+
+    if bits == 16:
+        return _png16_bytes(rgba, transparent)
+    arr = np.ascontiguousarray(rgba if transparent else rgba[..., :3])
+    img = Image.fromarray(arr, "RGBA" if transparent else "RGB")
+    buf = io.BytesIO()
+    img.save(buf, format="PNG", compress_level=PNG_LEVEL)
+    return buf.getvalue()
+
+
+def _png16_bytes(rgba: np.ndarray, transparent: bool) -> bytes:
+    """16-bit PNG written directly (Pillow has no 16-bit RGB(A) mode): IHDR, IDAT, IEND."""
+    arr = rgba if rgba.dtype == np.uint16 else rgba.astype(np.uint16) * 257
+    if not transparent:
+        arr = arr[..., :3]
+    h, w, c = arr.shape
+    rows = np.ascontiguousarray(arr.astype(">u2")).view(np.uint8).reshape(h, w * c * 2)
+    raw = np.hstack([np.zeros((h, 1), np.uint8), rows]).tobytes()
+
+    def chunk(kind: bytes, data: bytes) -> bytes:
+        return (len(data).to_bytes(4, "big") + kind + data
+                + zlib.crc32(kind + data).to_bytes(4, "big"))
+
+    color_type = 6 if transparent else 2
+    ihdr = w.to_bytes(4, "big") + h.to_bytes(4, "big") + bytes([16, color_type, 0, 0, 0])
+    return (b"\x89PNG\r\n\x1a\n" + chunk(b"IHDR", ihdr)
+            + chunk(b"IDAT", zlib.compress(raw, PNG_LEVEL)) + chunk(b"IEND", b""))
+
+
+def jpeg_bytes(rgba: np.ndarray, quality: int = 92) -> bytes:
+    from PIL import Image
+
+    img = Image.fromarray(np.ascontiguousarray(rgba[..., :3]), "RGB")
+    buf = io.BytesIO()
+    img.save(buf, format="JPEG", quality=quality, subsampling=0)
+    return buf.getvalue()
+
+
+def encode_still(rgba: np.ndarray, fmt: str, transparent: bool = False, bits: int = 8,
+                 quality: int = 92) -> bytes:
+    if fmt == "png":
+        return png_bytes(rgba, transparent, bits)
+    if fmt == "jpg":
+        if transparent:
+            raise UserInputError("--transparent", "JPEG has no alpha channel; use PNG")
+        return jpeg_bytes(rgba if rgba.dtype == np.uint8 else (rgba >> 8).astype(np.uint8),
+                          quality)
+    raise UserInputError("--format", f"unknown format {fmt!r}; allowed: png, jpg")
+
+
+def write_still(path: Path, rgba: np.ndarray, fmt: str, **options: Any) -> None:
+    """Encode and write one image atomically."""
+    atomic_write_bytes(path, encode_still(rgba, fmt, **options))
+
+
+def image_is_complete(path: Path) -> bool:
+    """True if ``path`` is a whole, decodable PNG or JPEG (for ``--resume``)."""
+    try:
+        data = path.read_bytes()
+    except OSError:
+        return False
+    if data.startswith(b"\x89PNG\r\n\x1a\n"):
+        if not data.endswith(b"IEND\xaeB`\x82"):
+            return False
+    elif data.startswith(b"\xff\xd8"):
+        if not data.rstrip(b"\x00").endswith(b"\xff\xd9"):
+            return False
+    else:
+        return False
+    from PIL import Image
+
+    try:
+        with Image.open(io.BytesIO(data)) as img:
+            img.load()
+    except Exception:  # any decoding failure means "render it again"
+        return False
+    return True
+
+
+class StillWriter:
+    """Encodes and writes frames on a thread pool, a bounded number in flight."""
+
+    def __init__(self, workers: int = 2, in_flight: int = 4) -> None:
+        self.pool = concurrent.futures.ThreadPoolExecutor(max_workers=workers)
+        self.in_flight = in_flight
+        self.pending: list[concurrent.futures.Future[None]] = []
+
+    def submit(self, path: Path, rgba: np.ndarray, fmt: str, **options: Any) -> None:
+        while len(self.pending) >= self.in_flight:
+            self.pending.pop(0).result()  # raises the worker's error, if any
+        self.pending.append(self.pool.submit(write_still, path, rgba, fmt, **options))
+
+    def close(self) -> None:
+        try:
+            for f in self.pending:
+                f.result()
+        finally:
+            self.pending.clear()
+            self.pool.shutdown(wait=True, cancel_futures=True)
+
+    def __enter__(self) -> StillWriter:
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self.close()
+
+
+#: --quality names for video -> x264 CRF and preset.
+VIDEO_QUALITY = {"draft": (28, "ultrafast"), "preview": (23, "veryfast"),
+                 "final": (17, "slow")}
+
+
+def check_video_size(width: int, height: int) -> None:
+    """H.264 in yuv420p needs even sizes; refuse odd ones rather than resize silently."""
+    if width % 2 or height % 2:
+        raise UserInputError("--size", f"video needs an even width and height (H.264 "
+                             f"yuv420p), got {width}x{height}; try "
+                             f"{width + width % 2}x{height + height % 2}")
+
+
+class VideoWriter:
+    """H.264 MP4: raw RGB frames piped into the ffmpeg that imageio-ffmpeg ships.
+
+    We run that binary ourselves (``imageio_ffmpeg.get_ffmpeg_exe()``) rather than through
+    its ``write_frames`` generator, which leaves pipe files unclosed (imageio-ffmpeg issue
+    #61); this way the pipes are closed and ffmpeg's own error text is kept for a clear
+    message.
+    """
+
+    def __init__(self, path: Path, size: tuple[int, int], fps: float,
+                 quality: str = "preview") -> None:
+        import imageio_ffmpeg
+
+        check_video_size(*size)
+        crf, preset = VIDEO_QUALITY[quality]
+        w, h = size
+        self.size = size
+        cmd = [imageio_ffmpeg.get_ffmpeg_exe(), "-y", "-loglevel", "error",
+               "-f", "rawvideo", "-pix_fmt", "rgb24", "-s", f"{w}x{h}", "-r", f"{fps}",
+               "-i", "-", "-an", "-c:v", "libx264", "-preset", preset, "-crf", str(crf),
+               "-pix_fmt", "yuv420p", "-movflags", "+faststart", "-f", "mp4", str(path)]
+        self._err = tempfile.TemporaryFile()
+        self._proc = subprocess.Popen(cmd, stdin=subprocess.PIPE, stdout=subprocess.DEVNULL,
+                                      stderr=self._err)
+
+    def write(self, rgba: np.ndarray) -> None:
+        if rgba.dtype != np.uint8:
+            rgba = (rgba >> 8).astype(np.uint8)
+        assert self._proc.stdin is not None
+        try:
+            self._proc.stdin.write(np.ascontiguousarray(rgba[..., :3]).tobytes())
+        except BrokenPipeError:
+            self.close()  # raises with ffmpeg's reason
+
+    def close(self) -> None:
+        """Finish the file; raises OSError with ffmpeg's message if it failed."""
+        if self._proc.stdin is not None and not self._proc.stdin.closed:
+            try:
+                self._proc.stdin.close()
+            except BrokenPipeError:
+                pass
+        code = self._proc.wait()
+        self._err.seek(0)
+        text = self._err.read().decode(errors="replace").strip()
+        self._err.close()
+        if code != 0:
+            reason = text.splitlines()[-1] if text else f"ffmpeg exited with code {code}"
+            err = errno.ENOSPC if "No space left" in text else (
+                errno.EFBIG if "File too large" in text else None)
+            raise OSError(err, reason) if err else OSError(reason)

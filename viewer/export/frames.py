@@ -1,0 +1,118 @@
+"""Timelines to frames to files: frame ranges, file names, resume, the render loop.
+
+A frame depends only on the scene and its number, so ``--frames A:B`` is the unit of
+work for any scheduler, and a split render gives the same files as a whole one. Files
+are numbered by absolute frame: ``frame_000040.png`` is frame 40 wherever it was made.
+"""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Callable
+from dataclasses import dataclass
+from pathlib import Path
+from typing import TextIO
+
+import numpy as np
+
+from ..errors import UserInputError
+from ..fileio import atomic_path, describe_os_error
+from .encode import StillWriter, VideoWriter, image_is_complete
+from .progress import Progress
+
+FRAME_NAME = "frame_{:06d}.{}"
+
+
+def parse_frame_range(text: str | None, frame_count: int) -> range:
+    """Frames A..B-1 from "A:B" (either side may be empty: ":B", "A:"), checked.
+
+    Without ``text`` the whole timeline. B past the last frame is an error.
+    """
+    if frame_count <= 0:
+        raise UserInputError("[timeline]", "the timeline has no frames (duration * fps "
+                             "rounds to 0); set duration and fps")
+    if text is None:
+        return range(frame_count)
+    parts = text.split(":")
+    try:
+        if len(parts) != 2:
+            raise ValueError
+        a = int(parts[0]) if parts[0].strip() else 0
+        b = int(parts[1]) if parts[1].strip() else frame_count
+    except ValueError:
+        raise UserInputError("--frames", f"{text!r} is not a range A:B of frame numbers "
+                             f"(e.g. 0:{frame_count})") from None
+    if a < 0 or b <= a:
+        raise UserInputError("--frames", f"{text!r}: need 0 <= A < B")
+    if b > frame_count:
+        raise UserInputError("--frames", f"{text!r}: the timeline has {frame_count} frames "
+                             f"(0..{frame_count - 1}), so B may be at most {frame_count}")
+    return range(a, b)
+
+
+def frame_path(folder: Path, k: int, fmt: str) -> Path:
+    return folder / FRAME_NAME.format(k, fmt)
+
+
+@dataclass
+class SequenceResult:
+    rendered: int
+    skipped: int
+    summary: str
+
+
+RenderFn = Callable[[int], np.ndarray]
+
+
+def prepare_folder(folder: Path) -> None:
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+    except OSError as err:
+        raise UserInputError(str(folder), f"cannot create the output folder: "
+                             f"{describe_os_error(err)}") from None
+    if not os.access(folder, os.W_OK):
+        raise UserInputError(str(folder), "the output folder is not writable")
+
+
+def render_sequence(frames: range, render: RenderFn, folder: Path, fmt: str = "png",
+                    resume: bool = False, stream: TextIO | None = None,
+                    **options: object) -> SequenceResult:
+    """Render ``frames`` into ``folder`` as numbered stills; with ``resume``, frames whose
+    files are already whole are skipped and broken ones are rendered again."""
+    prepare_folder(folder)
+    progress = Progress(len(frames), "frames", stream)
+    try:
+        with StillWriter() as writer:
+            for k in frames:
+                path = frame_path(folder, k, fmt)
+                if resume and image_is_complete(path):
+                    progress.advance(skipped=True)
+                    continue
+                writer.submit(path, render(k), fmt, **options)
+                progress.advance()
+    except OSError as err:
+        raise UserInputError(str(folder), f"writing frames failed: "
+                             f"{describe_os_error(err)}") from None
+    summary = progress.finish(str(folder))
+    return SequenceResult(progress.done - progress.skipped, progress.skipped, summary)
+
+
+def render_video(frames: range, render: RenderFn, out: Path, size: tuple[int, int],
+                 fps: float, quality: str = "preview",
+                 stream: TextIO | None = None) -> SequenceResult:
+    """Render ``frames`` into one H.264 MP4, written atomically (temp file, then rename)."""
+    progress = Progress(len(frames), "frames", stream)
+    try:
+        with atomic_path(out, suffix=".tmp.mp4") as tmp:
+            writer = VideoWriter(tmp, size, fps, quality)
+            try:
+                for k in frames:
+                    writer.write(render(k))
+                    progress.advance()
+            finally:
+                writer.close()
+    except OSError as err:
+        raise UserInputError(str(out), f"writing the video failed: "
+                             f"{describe_os_error(err)}") from None
+    summary = progress.finish(str(out))
+    return SequenceResult(progress.done, 0, summary)
