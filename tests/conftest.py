@@ -1,0 +1,24 @@
+"""Shared test setup: numpy floating-point warnings are errors, so a NaN never hides.
+
+Every test runs under ``np.seterr(all="raise")`` (overflow, invalid, divide and underflow
+raise FloatingPointError); the previous settings are restored after each test, so no
+test leaks its state into another. Code that expects a special value on purpose says so
+with ``np.errstate`` at the spot.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+import numpy as np
+import pytest
+
+
+@pytest.fixture(autouse=True)
+def numpy_errors_raise() -> Iterator[None]:
+    """Make every numpy floating-point warning an error for the duration of one test."""
+    previous = np.seterr(all="raise")
+    try:
+        yield
+    finally:
+        np.seterr(**previous)
