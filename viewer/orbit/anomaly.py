@@ -16,12 +16,17 @@ returns a float for scalar input and an array otherwise. Equations from Vallado,
 
 from __future__ import annotations
 
+import functools
+from collections.abc import Callable
+from typing import Any, TypeVar
+
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 TWO_PI = 2.0 * np.pi
 
 Floats = NDArray[np.float64]
+_F = TypeVar("_F", bound=Callable[..., Any])
 
 
 class AnomalyError(ValueError):
@@ -30,6 +35,19 @@ class AnomalyError(ValueError):
 
 def _out(x: Floats, scalar: bool) -> float | Floats:
     return float(x) if scalar else x
+
+
+def _underflow_is_fine(func: _F) -> _F:
+    """Run ``func`` with underflow ignored: the powers and series terms of a tiny anomaly
+    flush harmlessly towards 0, and callers running under ``np.seterr(all="raise")``
+    (as the tests do) must not see that as an error."""
+
+    @functools.wraps(func)
+    def wrapper(*args: Any, **kwargs: Any) -> Any:
+        with np.errstate(under="ignore"):
+            return func(*args, **kwargs)
+
+    return wrapper  # type: ignore[return-value]
 
 
 def _check_finite(name: str, x: Floats) -> None:
@@ -52,6 +70,56 @@ def wrap_two_pi(x: ArrayLike) -> float | Floats:
 # --- ellipse -----------------------------------------------------------------------
 
 
+def _odd_tail(x: Floats, sign: float) -> Floats:
+    """x - sin x (``sign`` = -1) or sinh x - x (``sign`` = +1) without cancellation.
+
+    For |x| < 1 the odd series x^3/3! + sign x^5/5! + ... (9 terms: below 1e-18
+    relative), else the direct difference. Near periapsis of a near-parabolic conic,
+    E - e sin E and e sinh F - F are tiny differences of nearly equal numbers; written as
+    (1 - e) sin E + (E - sin E) and (e - 1) sinh F + (sinh F - F) they keep full relative
+    precision (the accuracy tests against mpmath at e = 1 -+ 1e-12 need it).
+    """
+    small = np.abs(x) < 1.0
+    xs = np.where(small, x, 0.0)
+    x2 = xs * xs
+    term = xs * x2 / 6.0
+    series = np.zeros_like(xs)
+    for k in range(2, 11):
+        series += term
+        term = sign * term * x2 / ((2 * k) * (2 * k + 1))
+    big = np.where(small, 0.0, x)
+    direct = big - np.sin(big) if sign < 0 else np.sinh(big) - big
+    return np.where(small, series, direct)
+
+
+def _elliptic_mean(E: Floats, e: Floats) -> Floats:
+    """E - e sin E, as (1 - e) sin E + (E - sin E) where the direct form would cancel.
+
+    The ratio of the terms to the result is about 1 / ((1 - e) + E^2/6); where that
+    exceeds 4 the slower cancellation-free form is used (full precision as e -> 1, E -> 0).
+    """
+    E1 = np.atleast_1d(E)
+    e1 = np.broadcast_to(e, E1.shape)
+    out = E1 - e1 * np.sin(E1)
+    near = np.flatnonzero((1.0 - e1) + E1 * E1 / 6.0 < 0.25)
+    if near.size:
+        En, en = E1.flat[near], e1.flat[near]
+        out.flat[near] = (1.0 - en) * np.sin(En) + _odd_tail(En, -1.0)
+    return out.reshape(np.shape(E))
+
+
+def _hyperbolic_mean(F: Floats, e: Floats) -> Floats:
+    """e sinh F - F, as (e - 1) sinh F + (sinh F - F) where the direct form would cancel."""
+    F1 = np.atleast_1d(F)
+    e1 = np.broadcast_to(e, F1.shape)
+    out = e1 * np.sinh(F1) - F1
+    near = np.flatnonzero((e1 - 1.0) + F1 * F1 / 6.0 < 0.25)
+    if near.size:
+        Fn, en = F1.flat[near], e1.flat[near]
+        out.flat[near] = (en - 1.0) * np.sinh(Fn) + _odd_tail(Fn, 1.0)
+    return out.reshape(np.shape(F))
+
+
 def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
     """E for M in [0, pi] by Markley's non-iterative method, and the last correction.
 
@@ -71,11 +139,21 @@ def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
     w = np.cbrt(np.abs(r) + np.sqrt(q * q * q + r * r))
     w *= w
     E = (2.0 * r * w / (w * w + w * q + q * q) + M) / d
-    # Fifth-order correction (Markley eq. 29-31); f2 = e sin E, f3 = e cos E.
+    # Fifth-order correction (Markley eq. 29-31); f2 = e sin E, f3 = e cos E. Where
+    # E - e sin E and 1 - e cos E would cancel (e -> 1, E -> 0), f0 and f1 are redone in
+    # cancellation-free forms, f1 = (1 - e) + 2 e sin^2(E/2).
     f2 = e * np.sin(E)
     f3 = e * np.cos(E)
-    f0 = E - f2 - M
-    f1 = 1.0 - f3
+    f0 = np.atleast_1d(E - f2 - M)
+    f1 = np.atleast_1d(1.0 - f3)
+    near = np.flatnonzero(np.atleast_1d(one_m_e + E * E / 6.0 < 0.25))
+    if near.size:
+        En = np.broadcast_to(E, f0.shape).flat[near]
+        en = np.broadcast_to(e, f0.shape).flat[near]
+        f0.flat[near] = _elliptic_mean(En, en) - np.broadcast_to(M, f0.shape).flat[near]
+        f1.flat[near] = (1.0 - en) + 2.0 * en * np.sin(0.5 * En) ** 2
+    f0 = f0.reshape(np.shape(E))
+    f1 = f1.reshape(np.shape(E))
     d3 = -f0 / (f1 - 0.5 * f0 * f2 / f1)
     d4 = -f0 / (f1 + d3 * (0.5 * f2 + d3 * f3 / 6.0))
     d5 = -f0 / (f1 + d4 * (0.5 * f2 + d4 * (f3 / 6.0 - d4 * f2 / 24.0)))
@@ -83,6 +161,7 @@ def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
     return E, d5
 
 
+@_underflow_is_fine
 def eccentric_anomaly(M: ArrayLike, e: ArrayLike, tol: float = 1e-13) -> float | Floats:
     """Eccentric anomaly E solving Kepler's equation M = E - e sin E, for 0 <= e < 1.
 
@@ -110,16 +189,17 @@ def eccentric_anomaly(M: ArrayLike, e: ArrayLike, tol: float = 1e-13) -> float |
     if check.size:
         Ec, Mc, ec = E.flat[check], Ma.flat[check], e_b.flat[check]
         for _ in range(8):
-            f = Ec - ec * np.sin(Ec) - Mc
+            f = _elliptic_mean(Ec, ec) - Mc
             if not np.any(np.abs(f) > tol):
                 break
-            Ec = Ec - f / (1.0 - ec * np.cos(Ec))
+            Ec = Ec - f / ((1.0 - ec) + 2.0 * ec * np.sin(0.5 * Ec) ** 2)
         E.flat[check] = Ec
     # E in the turn of M: M + (E - |Mr|) * sign keeps the small difference exact.
     E = M_b + np.copysign(E - Ma, Mr)
     return _out(E, scalar)
 
 
+@_underflow_is_fine
 def kepler_residual(E: ArrayLike, M: ArrayLike, e: ArrayLike) -> Floats:
     """|E - e sin E - M| measured on M reduced to [-pi, pi) (the contract's measure)."""
     E_a = np.asarray(E, dtype=np.float64)
@@ -154,13 +234,16 @@ def eccentric_from_true(nu: ArrayLike, e: ArrayLike) -> float | Floats:
 # --- hyperbola ---------------------------------------------------------------------
 
 
+@_underflow_is_fine
 def hyperbolic_anomaly(M: ArrayLike, e: ArrayLike, tol: float = 1e-13) -> float | Floats:
     """Hyperbolic anomaly F solving M = e sinh F - F, for e > 1.
 
-    Vectorised. The residual |e sinh F - F - M| / max(1, |M|) is driven below ``tol``
-    by safeguarded Newton steps from a starter that is good for both small and large |M|
-    (Vallado sec. 2.2.6 uses Newton likewise). Raises AnomalyError for NaN/infinite
-    input or e <= 1.
+    Vectorised. The residual |e sinh F - F - M| is driven below ``tol`` |M| (so also
+    below the contract's ``tol`` max(1, |M|), and relative even for the tiny M near
+    periapsis of a near-parabolic hyperbola) by Newton steps from a starter that is good
+    for both small and large |M| (Vallado sec. 2.2.6 uses Newton likewise); the residual
+    is evaluated in a cancellation-free form. Raises AnomalyError for NaN/infinite input
+    or e <= 1.
     """
     M_in = np.asarray(M, dtype=np.float64)
     e_in = np.asarray(e, dtype=np.float64)
@@ -179,13 +262,19 @@ def hyperbolic_anomaly(M: ArrayLike, e: ArrayLike, tol: float = 1e-13) -> float 
     with np.errstate(divide="ignore"):
         bound = np.minimum(Ma / (e_b - 1.0), np.cbrt(6.0 * Ma / e_b))
     F = np.minimum(bound, np.arcsinh((Ma + bound) / e_b))
-    scale = np.maximum(1.0, Ma)
     for _ in range(100):
-        f = e_b * np.sinh(F) - F - Ma
-        bad = np.abs(f) > tol * scale
+        f = _hyperbolic_mean(F, e_b) - Ma
+        bad = np.abs(f) > tol * Ma
         if not np.any(bad):
             break
-        F = np.where(bad, F - f / (e_b * np.cosh(F) - 1.0), F)
+        # The slope e cosh F - 1; (e - 1) cosh F + 2 sinh^2(F/2) where that would cancel.
+        slope = np.atleast_1d(e_b * np.cosh(F) - 1.0)
+        near = np.flatnonzero(np.atleast_1d(slope < 0.25))
+        if near.size:
+            Fn = np.broadcast_to(F, slope.shape).flat[near]
+            en = np.broadcast_to(e_b, slope.shape).flat[near]
+            slope.flat[near] = (en - 1.0) * np.cosh(Fn) + 2.0 * np.sinh(0.5 * Fn) ** 2
+        F = np.where(bad, F - f / slope.reshape(np.shape(F)), F)
     return _out(sign * F, scalar)
 
 
@@ -216,6 +305,7 @@ def asymptote_true_anomaly(e: ArrayLike) -> float | Floats:
 # --- parabola (Barker) -------------------------------------------------------------
 
 
+@_underflow_is_fine
 def parabolic_anomaly(M: ArrayLike) -> float | Floats:
     """D = tan(nu/2) solving Barker's equation D + D^3/3 = M (Vallado sec. 2.2.5).
 
@@ -235,6 +325,7 @@ def parabolic_anomaly(M: ArrayLike) -> float | Floats:
 # --- any conic ---------------------------------------------------------------------
 
 
+@_underflow_is_fine
 def mean_from_true(nu: ArrayLike, e: ArrayLike) -> float | Floats:
     """Mean anomaly of the conic from its true anomaly (ellipse, parabola or hyperbola).
 
@@ -251,16 +342,17 @@ def mean_from_true(nu: ArrayLike, e: ArrayLike) -> float | Floats:
     hyperbolic = e_b > 1.0
     if np.any(elliptic):
         E = np.asarray(eccentric_from_true(nu_b[elliptic], e_b[elliptic]))
-        out[elliptic] = E - e_b[elliptic] * np.sin(E)
+        out[elliptic] = _elliptic_mean(E, e_b[elliptic])
     if np.any(parabolic):
         D = np.tan(nu_b[parabolic] / 2.0)
         out[parabolic] = D + D**3 / 3.0
     if np.any(hyperbolic):
         F = np.asarray(hyperbolic_from_true(nu_b[hyperbolic], e_b[hyperbolic]))
-        out[hyperbolic] = e_b[hyperbolic] * np.sinh(F) - F
+        out[hyperbolic] = _hyperbolic_mean(F, e_b[hyperbolic])
     return _out(out, scalar)
 
 
+@_underflow_is_fine
 def true_from_mean(M: ArrayLike, e: ArrayLike) -> float | Floats:
     """True anomaly of the conic from its mean anomaly (inverse of ``mean_from_true``).
 

@@ -38,11 +38,12 @@ def stumpff_c2_c3(psi: ArrayLike) -> tuple[Floats, Floats]:
         s3 = np.zeros_like(x)
         term2 = np.full_like(x, 0.5)
         term3 = np.full_like(x, 1.0 / 6.0)
-        for k in range(12):
-            s2 += term2
-            s3 += term3
-            term2 = term2 * (-x) / ((2 * k + 3) * (2 * k + 4))
-            term3 = term3 * (-x) / ((2 * k + 4) * (2 * k + 5))
+        with np.errstate(under="ignore"):  # terms of a tiny psi underflow harmlessly to 0
+            for k in range(12):
+                s2 += term2
+                s3 += term3
+                term2 = term2 * (-x) / ((2 * k + 3) * (2 * k + 4))
+                term3 = term3 * (-x) / ((2 * k + 4) * (2 * k + 5))
         c2[small] = s2
         c3[small] = s3
     if np.any(pos):
