@@ -21,8 +21,12 @@ from ..errors import UserInputError
 
 #: Subcommand name -> module in this package. A command is listed only once it works.
 COMMANDS: dict[str, str] = {
+    "check": "check",
     "convert": "convert",
     "bench": "bench",
+    "import": "import_",
+    "ephemeris": "ephemeris",
+    "transfer": "transfer",
 }
 
 CAUTION = (

@@ -73,6 +73,8 @@ class Body:
     sweep: Sweep | None = None
     limit_radius_m: float | None = None
     radius_m: float | None = None
+    #: Legal but suspicious things about this body (one line each, without its name).
+    warnings: tuple[str, ...] = ()
 
     def elements_at(self, t_s: float) -> Elements:
         """The body's elements (its true anomaly) at scene time t_s."""
