@@ -158,19 +158,23 @@ def parse_opm(text: str, source: str) -> Opm:
     unused: list[tuple[str, str, int]] = []
     section = "header"
     first_keyword = True
+    pending: list[KvnLine] = []
     for ln in lines:
         if ln.keyword is None:
             problems.append(f"line {ln.number}: {ln.value[:40]!r} is not a KVN line of an OPM "
                             f"(data lines and META_START belong in an OEM)")
             continue
         if ln.keyword == "COMMENT":
-            comments.append(Comment(ln.number, ln.value, section))
+            pending.append(ln)
             continue
         kw = ln.keyword
         if first_keyword and kw != "CCSDS_OPM_VERS":
             problems.append(f"line {ln.number}: an OPM begins with CCSDS_OPM_VERS, got {kw}")
         first_keyword = False
+        # A block's comments come at its start: they belong to the next keyword's block.
         section = _section_of(kw, section)
+        comments += [Comment(c.number, c.value, section) for c in pending]
+        pending.clear()
         if kw not in KNOWN and not kw.startswith("USER_DEFINED_"):
             problems.append(f"line {ln.number}: unknown keyword {kw}{did_you_mean(kw, KNOWN)}")
             continue
@@ -187,6 +191,7 @@ def parse_opm(text: str, source: str) -> Opm:
         values[kw] = ln
         if kw in SPACECRAFT or kw in COVARIANCE:
             unused.append((kw, ln.value, ln.number))
+    comments += [Comment(c.number, c.value, section) for c in pending]
     return _build(values, comments, unused, lines, problems, source)
 
 
