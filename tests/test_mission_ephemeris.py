@@ -11,7 +11,7 @@ import pytest
 from viewer.cli import CAUTION, main
 from viewer.formats import parse_oem
 from viewer.orbit import propagate, state_from_elements
-from viewer.scene.loader import load_scene
+from viewer.scene import load_scene
 from viewer.units import parse_epoch
 
 SCENE = """[scene]

@@ -13,7 +13,7 @@ from scipy.integrate import solve_ivp
 from viewer.cli import CAUTION, main
 from viewer.formats import parse_oem, parse_opm
 from viewer.orbit import state_from_elements
-from viewer.scene.loader import load_scene
+from viewer.scene import load_scene
 from viewer.units import parse_epoch
 
 DATA = Path(__file__).parent / "data" / "ccsds"

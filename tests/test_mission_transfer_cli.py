@@ -12,7 +12,7 @@ import pytest
 
 from viewer.cli import CAUTION, main
 from viewer.orbit import propagate, state_from_elements
-from viewer.scene.loader import load_scene
+from viewer.scene import load_scene
 
 KM = 1e3
 HOUR = 3600.0

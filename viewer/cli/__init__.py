@@ -24,6 +24,9 @@ COMMANDS: dict[str, str] = {
     "check": "check",
     "convert": "convert",
     "bench": "bench",
+    "import": "import_",
+    "ephemeris": "ephemeris",
+    "transfer": "transfer",
 }
 
 CAUTION = (

@@ -154,7 +154,7 @@ def run(args: argparse.Namespace) -> int:
     from ..formats import write_oem
     from ..formats.kvn import creation_date_now
     from ..orbit import propagate, state_from_elements
-    from ..scene.loader import load_scene
+    from ..scene import load_scene
     from ..units import QuantityError, parse_quantity
     from . import CAUTION
 

@@ -46,8 +46,8 @@ def add_parser(sub: Any) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..fileio import atomic_write_bytes, user_write_error
     from ..formats import parse_opm
+    from ..scene import write_atomic
     from . import CAUTION
 
     src = str(args.file)
@@ -65,10 +65,7 @@ def run(args: argparse.Namespace) -> int:
             raise UserInputError(str(target), "the file exists; choose a new name, or give "
                                  "--force to replace it (or --into to add the body to it)")
         text, notes, summary = _new_scene(message, src, target, name)
-    try:
-        atomic_write_bytes(target, text.encode("utf-8"))
-    except OSError as err:
-        raise user_write_error(target, err) from None
+    write_atomic(target, text)  # a replaced scene is kept as NAME.toml.bak
     verb = "added to" if args.into is not None else "wrote"
     lines = [f"{verb} {target}: body {name!r}", *summary]
     lines += [f"note: {n}" for n in notes]
@@ -207,7 +204,7 @@ def _show_timing(el: Any) -> tuple[float, float, float]:
 
 
 def _into(message: Any, src: str, target: Path, name: str) -> tuple[str, list[str], list[str]]:
-    from ..scene.loader import load_scene, read_scene_text
+    from ..scene import load_scene, read_scene_text
 
     scene = load_scene(target)
     text = read_scene_text(target)
@@ -248,7 +245,7 @@ def _check_loads(text: str, target: Path, name: str, el: Any, mu: float, src: st
     import numpy as np
 
     from ..orbit import state_from_elements
-    from ..scene.loader import load_scene_text
+    from ..scene import load_scene_text
 
     scene = load_scene_text(text, source=target, base_dir=target.parent)
     body = scene.body(name)

@@ -89,7 +89,7 @@ def run(args: argparse.Namespace) -> int:
 
     from ..orbit import OrbitError
     from ..orbit.transfer import bi_elliptic, hohmann
-    from ..scene.loader import load_scene
+    from ..scene import load_scene
     from ..units import QuantityError, parse_quantity
     from . import CAUTION
     from .ephemeris import time_arg
@@ -207,10 +207,9 @@ def _describe(scene: Any, dep: Any, arr: Any, tr: Any, t_dep: float,
 
 def _write(args: argparse.Namespace, scene: Any, tr: Any, geometry: dict[str, Any], name: str,
            out: dict[str, Any]) -> None:
-    from ..fileio import atomic_write_bytes, user_write_error
     from ..formats.scene_text import body_toml
     from ..orbit import elements_from_state
-    from ..scene.loader import load_scene_text, read_scene_text
+    from ..scene import load_scene_text, read_scene_text, write_atomic
 
     target = Path(args.output)
     if target.exists() and not args.force:
@@ -241,10 +240,7 @@ def _write(args: argparse.Namespace, scene: Any, tr: Any, geometry: dict[str, An
                                 show="{ apsides = true }"))
     new_text = text + ("" if text.endswith("\n") else "\n") + "\n" + "\n".join(blocks)
     load_scene_text(new_text, source=target, base_dir=Path(args.scene).parent)
-    try:
-        atomic_write_bytes(target, new_text.encode("utf-8"))
-    except OSError as err:
-        raise user_write_error(target, err) from None
+    write_atomic(target, new_text)
     out["wrote"] = str(target)
     out["bodies_added"] = names
 
