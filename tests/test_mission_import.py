@@ -132,6 +132,7 @@ def test_round_trip_matches_vallado_example_2_4(tmp_path: Path,
     ("standard_layout.opm", "EUTELSAT W4", "3 d", "2 h"),
     ("mars_keplerian.opm", "AREOSAT", "2 d", "45 min"),
     ("earth_departure.opm", "DEPARTURE", "2 d", "1 h"),
+    ("earth_parabola.opm", "ESCAPE", "3 d", "3 h"),
 ])
 def test_round_trip_agrees_with_an_independent_integration(
         tmp_path: Path, capsys: pytest.CaptureFixture[str], name: str, body: str, stop: str,
@@ -211,6 +212,17 @@ def test_an_earth_fixed_frame_is_refused(tmp_path: Path,
     src.write_text((DATA / "leo_state.opm").read_text().replace("EME2000", "ITRF2000"))
     assert main(["import", str(src), "-o", str(tmp_path / "x.toml")]) == 2
     assert "line 9: REF_FRAME = ITRF2000 rotates with the Earth" in capsys.readouterr().err
+
+
+def test_a_frame_the_scene_format_cannot_name_is_refused_before_writing(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    src = tmp_path / "odd.opm"
+    src.write_text((DATA / "leo_state.opm").read_text().replace("EME2000", "MOON ME"))
+    out = tmp_path / "x.toml"
+    assert main(["import", str(src), "-o", str(out)]) == 2
+    err = capsys.readouterr().err
+    assert err.splitlines()[0] == f"perifocal: error in {src}"
+    assert "scene.frame" in err and not out.exists()
 
 
 def test_an_unknown_centre_needs_the_messages_gm(tmp_path: Path,

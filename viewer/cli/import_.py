@@ -247,7 +247,11 @@ def _check_loads(text: str, target: Path, name: str, el: Any, mu: float, src: st
     from ..orbit import state_from_elements
     from ..scene import load_scene_text
 
-    scene = load_scene_text(text, source=target, base_dir=target.parent)
+    try:
+        scene = load_scene_text(text, source=target, base_dir=target.parent)
+    except UserInputError as err:
+        raise UserInputError(src, [f"the scene made from this message would not be valid "
+                                   f"({target}):", *err.problems]) from None
     body = scene.body(name)
     r0, v0 = state_from_elements(el, mu)
     r1, v1 = state_from_elements(body.elements, scene.center.gm_m3_s2)
