@@ -142,7 +142,11 @@ class Opm:
         gm = k.gm_m3_s2 if k.gm_m3_s2 is not None else mu
         if gm is None:
             raise ValueError("the message gives no GM; pass mu")
-        nu = k.nu if k.nu is not None else float(true_from_mean(k.M, k.e))
+        if k.nu is not None:
+            nu = k.nu
+        else:
+            assert k.M is not None  # a Keplerian block has one anomaly or the other
+            nu = float(true_from_mean(k.M, k.e))
         return state_from_elements(Elements(k.a_m, k.e, k.i, k.raan, k.argp, nu, gm))
 
 

@@ -14,6 +14,7 @@ from __future__ import annotations
 import json
 import math
 from collections.abc import Iterable
+from typing import Any
 
 from ..orbit import Elements, mean_from_true
 
@@ -32,11 +33,11 @@ def comment_block(lines: Iterable[str], prefix: str = "") -> str:
     return "\n".join(out) + ("\n" if out else "")
 
 
-def _km(x_m: float) -> str:
+def _km(x_m: Any) -> str:
     return toml_string(f"{float(x_m) / 1e3!r} km")
 
 
-def _deg(x_rad: float) -> str:
+def _deg(x_rad: Any) -> str:
     return toml_string(f"{math.degrees(float(x_rad))!r} deg")
 
 
