@@ -1,0 +1,8 @@
+"""The interactive viewer: the editor model, its readout, the pyglet window and its panels.
+
+Owns the window and its loop (``window``), the imgui panels (``panels``), the moderngl
+drawing of imgui's draw data (``imgui_gl``), camera input (``camera_input``) and the
+plain-Python editor model (``editor``, ``readout``, ``elements_edit``, ``scene_edits``),
+which imports no imgui, pyglet or GL, so it is tested on its own. May import everything
+else in ``viewer``; nothing else imports this package except ``viewer.cli`` (lazily).
+"""
