@@ -144,19 +144,26 @@ def syntax_message(err: tomllib.TOMLDecodeError, text: str) -> str:
     line = int(m.group(2)) if m and m.group(2) else None
     where = f"line {line}, column {m.group(3)}" if line else "at the end of the file"
     hint = ""
-    source_line = text.splitlines()[line - 1] if line and line <= len(text.splitlines()) else ""
-    value = source_line.split("=", 1)[1].strip() if "=" in source_line else ""
-    if re.match(r"^[+-]?[\d.]+(?:[eE][+-]?\d+)?\s*[A-Za-z/]", value):
-        key = source_line.split("=", 1)[0].strip()
-        hint = f'; a value with a unit needs quotes: {key} = "{value.split("#")[0].strip()}"'
+    lines = text.splitlines()
+    source_line = lines[line - 1] if line and line <= len(lines) else ""
+    column = int(m.group(3)) if m and m.group(3) else 0
+    rest = source_line[column - 1:] if column else ""  # where the parser stopped
+    key, _, value = (part.strip() for part in source_line.partition("="))
+    value = value.split("#")[0].strip()
+    quantity = r"^[+-]?[\d.]+(?:[eE][+-]?\d+)?\s*[A-Za-z/]"
+    if rest.startswith(("True", "False")):
+        hint = "; booleans are lower case: true, false"
+    elif re.match(quantity, value):
+        hint = f'; a value with a unit needs quotes: {key} = "{value}"'
     elif re.match(r"^[A-Za-z_]", value) and value.split()[0] not in ("true", "false",
                                                                         "inf", "nan"):
-        key = source_line.split("=", 1)[0].strip()
-        hint = f'; text needs quotes: {key} = "{value.split("#")[0].strip()}"'
+        hint = f'; text needs quotes: {key} = "{value}"'
+    elif re.match(quantity, rest) or re.match(r"^[A-Za-z_]", rest):
+        hint = '; text and values with units need quotes, e.g. a = "1.2 au"'
+    elif "Illegal character" in what and source_line.count('"') % 2 == 1:
+        hint = "; a string is not closed: add the closing quote on the same line"
     elif "overwrite" in what or "declare" in what.lower():
         hint = "; a key or table is given twice"
-    if value.startswith(("True", "False")):
-        hint = "; booleans are lower case: true, false"
     return f"{where}: not valid TOML: {what}{hint}"
 
 
@@ -430,8 +437,6 @@ class _Loader:
         period = r.quantity(t, "period", path, "time")
         q = r.quantity(t, "periapsis", path, "length")
         apo = r.quantity(t, "apoapsis", path, "length")
-        if "e" in t and e is None:
-            return None
         allowed = f"give exactly one size: {SIZE_FORMS}"
         if not given:
             r.problem(path, f"no size: {allowed}")
@@ -449,6 +454,8 @@ class _Loader:
         if given == ["periapsis", "apoapsis"] and "e" in t:
             r.problem(f"{path}.e", "periapsis and apoapsis already fix e; remove e (or "
                       "apoapsis)")
+            return None
+        if "e" in t and e is None:
             return None
         if any(k in t and v is None for k, v in
                (("a", a), ("period", period), ("periapsis", q), ("apoapsis", apo))):

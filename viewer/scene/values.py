@@ -244,11 +244,11 @@ class Reader:
 
     def epoch_value(self, v: Any, where: str) -> Epoch | None:
         if not isinstance(v, str):
-            hint = ""
-            if not isinstance(v, (int, float, bool, list, dict)):
-                hint = ' (write the epoch in quotes with its time scale, e.g. ' \
-                       '"2030-01-01T00:00:00 TDB": an unquoted TOML date has no time scale)'
-            self.problem(where, f"{describe(v)} is not {KINDS['epoch']}{hint}")
+            if isinstance(v, (int, float, bool, list, dict)):
+                self.problem(where, f"{describe(v)} is not {KINDS['epoch']}")
+            else:  # a TOML date or date-time
+                self.problem(where, "an unquoted TOML date has no time scale; write the epoch "
+                             'in quotes with its scale, e.g. "2030-01-01T00:00:00 TDB"')
             return None
         try:
             return parse_epoch(v)
