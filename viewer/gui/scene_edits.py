@@ -145,7 +145,12 @@ def scene_file_edits(scene: Scene, saved: Scene, origins: tuple[int | None, ...]
     edits: list[Edit] = _center_edits(scene, saved, data.get("center", {}))
     kept = [o for o in origins if o is not None]
     gone = sorted(set(range(len(saved.bodies))) - set(kept), reverse=True)
-    edits.extend((f"body[{d}]", None) for d in gone)
+    if gone and not kept:
+        # Remove the array itself: an emptied array of tables is written as "body = []"
+        # at the top of the file, before [scene].
+        edits.append(("body", None))
+    else:
+        edits.extend((f"body[{d}]", None) for d in gone)
     # After the deletions, the surviving tables are in file order: rank = new index.
     rank = {o: j for j, o in enumerate(sorted(kept))}
     in_place = 0  # bodies at the front that keep their table in place
