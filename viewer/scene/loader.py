@@ -41,7 +41,7 @@ from .model import (
 )
 from .population import TableError, generate_belt, read_csv, read_npy, to_elements
 from .report import orbit_warnings
-from .values import MAX_LENGTH_M, MAX_TIME_S, MIN_GM, MIN_SIZE_M, Reader, parse_color
+from .values import MAX_LENGTH_M, MAX_TIME_S, MIN_GM, MIN_SIZE_M, Reader, one_line, parse_color
 
 #: Scene files larger than this are refused before reading (large populations belong in
 #: a table file, see ``population.table``).
@@ -413,7 +413,8 @@ class _Loader:
                 nu_value = nu % TWO_PI
         else:
             if tp is not None:
-                assert mu is not None
+                if mu is None:
+                    return None  # the centre's problem is already reported
                 n = (2.0 * math.sqrt(mu / parabola_p**3) if parabola_p is not None
                      else math.sqrt(mu / abs(a) ** 3))
                 M_value = n * (offset - tp)
@@ -663,7 +664,8 @@ class _Loader:
         except TableError as err:
             line = r.lines.line(f"{path}.table" if table is not None else f"{path}.generate")
             at = f" (scene line {line})" if line else ""
-            r.problems.extend(p + (at if n == 0 else "") for n, p in enumerate(err.problems))
+            r.problems.extend(one_line(p + (at if n == 0 else ""))
+                              for n, p in enumerate(err.problems))
             return None
         offset = epoch.seconds_since(r.epoch) if epoch is not None and r.epoch else 0.0
         if center.radius_m > 0:

@@ -9,6 +9,7 @@ raises for bad input; the loader raises once, with all the problems, at the end.
 from __future__ import annotations
 
 import difflib
+import json
 import math
 import re
 from collections.abc import Iterable
@@ -42,7 +43,7 @@ def describe(value: Any) -> str:
     if isinstance(value, bool):
         return "true" if value else "false"
     if isinstance(value, str):
-        return '"' + (value if len(value) <= 40 else value[:37] + "...") + '"'
+        return json.dumps(value if len(value) <= 40 else value[:37] + "...", ensure_ascii=False)
     if isinstance(value, dict):
         return "a table"
     if isinstance(value, list):
@@ -91,7 +92,7 @@ class Reader:
         return path + (f" ({', '.join(extras)})" if extras else "")
 
     def problem(self, path: str, message: str) -> None:
-        self.problems.append(f"{self.where(path)}: {message}")
+        self.problems.append(one_line(f"{self.where(path)}: {message}"))
 
     def mark(self) -> int:
         """A bookmark: ``failed_since(mark)`` says whether problems were added after it."""
@@ -318,6 +319,14 @@ class Reader:
                          "and _ (at most 32), e.g. \"ECLIPJ2000\" or \"EME2000\"")
             return None
         return v.strip()
+
+
+_CONTROL = re.compile(r"[\x00-\x1f\x7f]")
+
+
+def one_line(text: str) -> str:
+    """``text`` with control characters (newlines from the user's strings) escaped."""
+    return _CONTROL.sub(lambda m: repr(m.group(0))[1:-1], text)
 
 
 def parse_color(text: str) -> RGB:
