@@ -142,7 +142,7 @@ def syntax_message(err: tomllib.TOMLDecodeError, text: str) -> str:
     m = _AT.match(str(err))
     what = m.group(1) if m else str(err)
     line = int(m.group(2)) if m and m.group(2) else None
-    where = f"line {line}, column {m.group(3)}" if line else "at the end of the file"
+    where = f"line {line}, column {m.group(3)}" if m and line else "at the end of the file"
     hint = ""
     lines = text.splitlines()
     source_line = lines[line - 1] if line and line <= len(lines) else ""
@@ -560,7 +560,7 @@ class _Loader:
             return None
         where = f"{path}.sweep"
         m0 = r.mark()
-        v = {
+        v: dict[str, Any] = {
             "start": r.time_or_epoch(s, "start", where),
             "count": r.integer(s, "count", where, 1, 1000),
             "interval": r.quantity(s, "interval", where, "time"),
