@@ -771,7 +771,7 @@ class _Loader:
         if fov is not None and not 0.0 < fov < math.pi:
             r.problem("camera.fov", "fov must be above 0 and below 180 deg")
             fov = None
-        target = self._target(t, bodies, center)
+        target = self._target(t, center)
         fov = d.fov_rad if fov is None else fov
         extent = self._extent(bodies, populations, center)
         if extent is not None:
@@ -791,7 +791,7 @@ class _Loader:
             return None
         return x
 
-    def _target(self, t: dict[str, Any], bodies: tuple[Body, ...] | None,
+    def _target(self, t: dict[str, Any],
                 center: Center | None) -> str | tuple[float, float, float]:
         r = self.r
         if "target" not in t:

@@ -11,6 +11,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from ..orbit.constants import CATALOGUE
+
 #: How a value of each kind is written in TOML (used in messages and in the docs test).
 KINDS: dict[str, str] = {
     "string": "text in quotes",
@@ -88,9 +90,7 @@ SCENE = Key("scene", "table", "title, epoch, frame and units of the file", keys=
 CENTER = Key("center", "table", "the central body at the occupied focus", required=True,
              keys=(
     Key("name", "string", "label of the central body", "the preset's name, else \"Center\""),
-    Key("preset", "choice", "a catalogue body: sets gm and radius", None,
-        ("sun", "mercury", "venus", "earth", "moon", "mars", "jupiter", "saturn", "uranus",
-         "neptune")),
+    Key("preset", "choice", "a catalogue body: sets gm and radius", None, tuple(CATALOGUE)),
     Key("gm", "gm", "gravitational parameter GM (bare number: m3/s2)",
         "required unless preset"),
     Key("radius", "length", "radius of the central body", "the preset's, else 0"),
