@@ -1,0 +1,471 @@
+"""One frame's geometry: everything the renderer draws, from (scene, time, view).
+
+``build_frame`` is a pure function: the same scene, time, view and text measure give the
+same arrays, bit for bit. It gathers every curve of the frame (orbits, sector arcs, grid
+rings) into one batch and tessellates them together, turns polylines into stroke quads
+and sectors into fans, places markers and labels, and returns arrays in image pixels
+ready for upload (the renderer casts them to float32). Nothing here touches GL.
+
+Draw order (back to front): stars, grid, populations, sector fills, glow, lines (sector
+edges, orbits, axes, nodes, arrows), markers, labels.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+from numpy.typing import NDArray
+
+from ..orbit import state_from_elements
+from ..scene.model import Body, Population, Scene
+from ..units import unit_factor
+from . import marks
+from .camera import View
+from .conic import (
+    ConicShape,
+    CurveBatch,
+    Tessellation,
+    default_limit_radius_m,
+    tessellate,
+    whole_orbit_range,
+)
+from .fills import FILL_FLOATS, fan_triangles, fill_vertices
+from .labels import LabelRequest, Measure, PlacedLabel, place_labels
+from .stars import Starfield, make_starfield, star_points
+from .strokes import STROKE_FLOATS, PolylineBatch, StrokeStyle, stroke_vertices
+
+Floats = NDArray[np.float64]
+RGB = tuple[float, float, float]
+RGBA = tuple[float, float, float, float]
+
+# Marker shapes (the marker shader draws each from its distance function).
+DISC, RING, DIAMOND, GLOW, SPHERE, CROSSHAIR, ARROWHEAD = range(7)
+#: Floats per marker: x, y, radius (px), shape, param (px), angle (rad), r, g, b, a.
+MARKER_FLOATS = 10
+
+#: Sizes in pixels at 1080 px image height; every one scales with the height.
+LABEL_PX = 17.0
+SMALL_LABEL_PX = 13.0
+BODY_MARKER_PX = 5.5
+STAR_MIN_RADIUS_PX = 7.0
+PLANET_MIN_RADIUS_PX = 6.0
+FOCUS_RING_PX = 7.5
+APSIS_PX = 4.5
+NODE_PX = 3.5
+ARROW_MAX_PX = 150.0
+EDGE_PX = 1.4
+GRID_PX = 1.0
+AXIS_PX = 1.1
+#: A central body at least this massive (GM, m^3/s^2) is drawn as a star with a glow;
+#: below it, as a planet (about 7.6 Jupiter masses; common practice, no source).
+STAR_GM_M3_S2 = 1.0e18
+
+GRID_RGB = (0.42, 0.52, 0.68)
+FOCUS_RGB = (0.96, 0.97, 1.0)
+NODE_RGB = (0.80, 0.82, 0.88)
+
+
+@dataclass
+class FrameGeometry:
+    """A frame ready to draw: arrays in image pixels (y down), float64, straight alpha."""
+
+    view: View
+    background: RGBA
+    stars: Floats                 # (K, 7) points: x, y, size, r, g, b, a
+    grid: Floats                  # (N, STROKE_FLOATS)
+    fills: Floats                 # (N, FILL_FLOATS)
+    glows: Floats                 # (M, MARKER_FLOATS)
+    strokes: Floats               # (N, STROKE_FLOATS)
+    markers: Floats               # (M, MARKER_FLOATS)
+    labels: list[PlacedLabel]
+    populations: list[Population] = field(default_factory=list)
+    t_s: float = 0.0
+
+
+def _rgba(c: RGB, a: float = 1.0) -> RGBA:
+    return (float(c[0]), float(c[1]), float(c[2]), float(a))
+
+
+def _lighten(c: RGB, k: float) -> RGB:
+    return (c[0] + (1 - c[0]) * k, c[1] + (1 - c[1]) * k, c[2] + (1 - c[2]) * k)
+
+
+def _mix(c: RGB, d: RGB, k: float) -> RGB:
+    return (c[0] + (d[0] - c[0]) * k, c[1] + (d[1] - c[1]) * k, c[2] + (d[2] - c[2]) * k)
+
+
+def _format_sig(x: float, digits: int = 3) -> str:
+    if x == 0 or not math.isfinite(x):
+        return "0"
+    mag = math.floor(math.log10(abs(x)))
+    dec = max(0, digits - 1 - mag)
+    return f"{x:.{dec}f}" if abs(mag) < 6 else f"{x:.{digits - 1}e}"
+
+
+def format_speed(v_m_s: float) -> str:
+    """A speed for an arrow label: "29.8 km/s", or "850 m/s" below 1 km/s."""
+    if v_m_s >= 1000.0:
+        return f"{_format_sig(v_m_s / 1000.0)} km/s"
+    return f"{_format_sig(v_m_s)} m/s"
+
+
+def format_area(area_m2: float, unit: str) -> str:
+    """An area in the scene's length unit squared: "0.215 au²"."""
+    f = unit_factor(unit, "length")
+    return f"{_format_sig(area_m2 / (f * f))} {unit}\u00b2"
+
+
+def _format_length(x_m: float, unit: str) -> str:
+    return f"{_format_sig(x_m / unit_factor(unit, 'length'))} {unit}"
+
+
+@dataclass
+class _Marks:
+    rows: list[list[float]] = field(default_factory=list)
+
+    def add(self, px: Floats, radius: float, shape: int, rgb: RGB, alpha: float = 1.0,
+            param: float = 0.0, angle: float = 0.0) -> None:
+        self.rows.append([float(px[0]), float(px[1]), radius, float(shape), param, angle,
+                          rgb[0], rgb[1], rgb[2], alpha])
+
+    def array(self) -> Floats:
+        return np.array(self.rows, dtype=np.float64).reshape(-1, MARKER_FLOATS)
+
+
+def _body_limit(body: Body) -> float:
+    el = body.elements
+    if float(el.e) < 1.0:
+        return float(el.apoapsis)
+    return body.limit_radius_m if body.limit_radius_m else default_limit_radius_m(el)
+
+
+def _sector_params(body: Body, shape: ConicShape) -> list[tuple[float, float, float, float]]:
+    """(u0, u1, t0, t1) of each sweep sector; exact time bounds by Kepler's equation."""
+    assert body.sweep is not None
+    e = float(body.elements.e)
+    out = []
+    for t0, t1 in body.sweep.bounds_s():
+        lo, hi = (t0, t1) if t1 >= t0 else (t1, t0)
+        u0 = float(shape.param_of_true(body.elements_at(lo).nu, e))
+        u1 = float(shape.param_of_true(body.elements_at(hi).nu, e))
+        if e < 1.0:
+            u1 = min(u1, u0 + 2.0 * math.pi)  # a sector of more than a turn is the ellipse
+        out.append((u0, u1, lo, hi))
+    return out
+
+
+def _central_radius_px(scene: Scene, view: View) -> tuple[float, Floats, bool]:
+    """(radius px, centre px, visible) of the central body, at least its minimum size."""
+    px, front = view.project(np.zeros((1, 3)))
+    hs = view.size_px[1] / 1080.0
+    cam = view.to_camera(np.zeros((1, 3)))
+    r_true = scene.center.radius_m / float(view.metres_per_px(cam)[0])
+    star = scene.center.gm_m3_s2 >= STAR_GM_M3_S2
+    r_min = (STAR_MIN_RADIUS_PX if star else PLANET_MIN_RADIUS_PX) * hs
+    return max(r_true, r_min), px[0], bool(front[0])
+
+
+class StaticCache:
+    """What a frame needs that depends only on a body, not on time or view: its conic's
+    constants, its sectors' anomaly bounds and areas. Keyed by the (frozen) Body object
+    itself, so an edited scene (a new Body) never sees stale values; a cache changes
+    only how fast a frame is made, never what it holds."""
+
+    def __init__(self, limit: int = 512) -> None:
+        self._items: dict[int, tuple[Body, dict[str, object]]] = {}
+        self._limit = limit
+
+    def of(self, body: Body) -> dict[str, object]:
+        hit = self._items.get(id(body))
+        if hit is not None and hit[0] is body:
+            return hit[1]
+        if len(self._items) >= self._limit:
+            self._items.clear()
+        entry: dict[str, object] = {}
+        self._items[id(body)] = (body, entry)
+        return entry
+
+
+def _static(cache: StaticCache | None, body: Body, key: str, make):  # type: ignore[no-untyped-def]
+    if cache is None:
+        return make()
+    entry = cache.of(body)
+    if key not in entry:
+        entry[key] = make()
+    return entry[key]
+
+
+def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
+                transparent: bool = False, starfield: Starfield | None = None,
+                cache: StaticCache | None = None) -> FrameGeometry:
+    """The geometry of ``scene`` at scene time ``t_s`` (s) seen through ``view``.
+
+    ``measure`` sizes label text (the renderer's font); ``starfield`` may be passed to
+    reuse one already made and ``cache`` to keep per-body constants between frames
+    (both are deterministic, so the result is the same with or without them).
+    """
+    w, h = view.size_px
+    hs = h / 1080.0
+    unit = scene.length_unit
+    unit_m = unit_factor(unit, "length")
+    bg = scene.render.background
+    background = (bg[0], bg[1], bg[2], 0.0 if transparent else 1.0)
+
+    curves = CurveBatch.empty()
+    grid_lines = PolylineBatch.empty()
+    lines = PolylineBatch.empty()
+    fill_tris: list[Floats] = []
+    fill_cols: list[Floats] = []
+    glows = _Marks()
+    markers = _Marks()
+    arrows = _Marks()
+    labels: list[LabelRequest] = []
+    obstacles: list[tuple[float, float, float, float]] = []
+
+    def px_of(p: Floats) -> tuple[Floats, bool]:
+        q, f = view.project(np.asarray(p, dtype=np.float64).reshape(1, 3))
+        return q[0], bool(f[0])
+
+    def obstacle(p: Floats, r: float) -> None:
+        obstacles.append((p[0] - r, p[1] - r, p[0] + r, p[1] + r))
+
+    # --- grid: rings about the focus in the reference plane, and spokes -----------------
+    grid_arcs: list[tuple[int, float]] = []
+    extent = max([_body_limit(b) for b in scene.bodies] + [view.field_width_m])
+    if scene.render.grid:
+        radii, _step = marks.grid_radii_m(view, unit_m, 1.2 * extent)
+        for r in radii:
+            ring = ConicShape(0, 0.0, float(r), float(r), np.array([1.0, 0, 0]),
+                              np.array([0, 1.0, 0]))
+            grid_arcs.append((curves.add(ring, 0.0, 2.0 * math.pi, 0.4), float(r)))
+        if len(radii):
+            r_out = float(radii[-1])
+            for k in range(12):
+                ang = k * math.pi / 6.0
+                d = np.array([math.cos(ang), math.sin(ang), 0.0])
+                grid_lines.add(np.stack([float(radii[0]) * d, r_out * d]),
+                               StrokeStyle(_rgba(GRID_RGB, 0.22), GRID_PX))
+
+    # --- bodies: curves first, so that one tessellation serves the whole frame ----------
+    shapes = [_static(cache, b, "shape", lambda b=b: ConicShape.of(b.elements))
+              for b in scene.bodies]
+    orbit_arc: dict[int, tuple[int, bool]] = {}
+    sector_arcs: dict[int, list[tuple[int, float, float]]] = {}
+    for k, (body, shape) in enumerate(zip(scene.bodies, shapes, strict=True)):
+        if body.show.orbit:
+            u0, u1, closed = whole_orbit_range(body.elements, body.limit_radius_m)
+            orbit_arc[k] = (curves.add(shape, u0, u1), closed)
+        if body.show.sweep and body.sweep is not None and body.sweep.count > 0:
+            params = _static(cache, body, "sectors",
+                             lambda body=body, shape=shape: _sector_params(body, shape))
+            sector_arcs[k] = [(curves.add(shape, u0, u1, 0.2), t0, t1)
+                              for u0, u1, t0, t1 in params]
+    tess: Tessellation = tessellate(curves, view)
+
+    for arc, _r in grid_arcs:
+        grid_lines.add(tess.arc(arc), StrokeStyle(_rgba(GRID_RGB, 0.30), GRID_PX), closed=True)
+
+    # --- sectors: fans from the occupied focus, edges inside them -----------------------
+    for k, arcs in sector_arcs.items():
+        body = scene.bodies[k]
+        sw = body.sweep
+        assert sw is not None
+        edge_a = min(1.0, sw.opacity + 0.35)
+        for arc, t0, t1 in arcs:
+            pts = tess.arc(arc)
+            tris = fan_triangles(np.zeros(3), pts)
+            fill_tris.append(tris)
+            fill_cols.append(np.tile(_rgba(sw.color, sw.opacity), (len(tris), 1)))
+            ring = np.vstack([np.zeros((1, 3)), pts, np.zeros((1, 3))])
+            ring_px, front = view.project(ring)
+            offset = 0.0
+            if np.all(front):
+                x, y = ring_px[:, 0], ring_px[:, 1]
+                signed = 0.5 * float(np.sum(x[:-1] * y[1:] - x[1:] * y[:-1]))
+                # In a y-down image a positive shoelace sum runs clockwise on screen, so
+                # the inside is to the right of the direction of travel.
+                offset = -1.0 if signed > 0 else 1.0
+            lines.add(ring, StrokeStyle(_rgba(_lighten(sw.color, 0.15), edge_a), EDGE_PX,
+                                        offset=offset))
+            if sw.show_area:
+                area = _static(cache, body, f"area{t0!r}:{t1!r}",
+                               lambda body=body, t0=t0, t1=t1: _sector_area_m2(body, t0, t1))
+                cx, cy = _polygon_centroid(ring_px) if np.all(front) else (np.nan, np.nan)
+                if math.isfinite(cx):
+                    text = format_area(area, unit)
+                    tw, asc, _desc = measure(text, SMALL_LABEL_PX * hs)
+                    labels.append(LabelRequest(text, (cx, cy), 0.0, SMALL_LABEL_PX * hs,
+                                               _rgba(_lighten(sw.color, 0.55)), 30,
+                                               at_px=(cx - 0.5 * tw, cy + 0.35 * asc)))
+
+    # --- the central body ---------------------------------------------------------------
+    center = scene.center
+    c_r, c_px, c_front = _central_radius_px(scene, view)
+    star = center.gm_m3_s2 >= STAR_GM_M3_S2
+    if center.show_body and c_front:
+        if star:
+            glows.add(c_px, max(c_r * 7.0, 46.0 * hs), GLOW, center.color, 0.55,
+                      param=c_r)
+        else:
+            glows.add(c_px, c_r * 1.35, GLOW, _lighten(center.color, 0.3), 0.35, param=c_r)
+        markers.add(c_px, c_r, SPHERE, center.color, 1.0, param=0.55 if star else 0.25)
+        obstacle(c_px, c_r)
+    if center.show_label and scene.render.labels and c_front:
+        labels.append(LabelRequest(center.name, (float(c_px[0]), float(c_px[1])),
+                                   c_r + 2.0 * hs, LABEL_PX * hs,
+                                   _rgba(_lighten(center.color, 0.45)), 0))
+
+    # --- each body's lines and marks ----------------------------------------------------
+    v_ref = _reference_speed(scene)
+    for k, (body, _shape) in enumerate(zip(scene.bodies, shapes, strict=True)):
+        el = body.elements
+        col = body.color
+        show = body.show
+        limit = _body_limit(body)
+        if k in orbit_arc:
+            arc, closed = orbit_arc[k]
+            lines.add(tess.arc(arc), StrokeStyle(_rgba(col, 0.92), body.line_width_px),
+                      closed=closed)
+        if show.axes:
+            for seg in marks.axes_m(el, limit):
+                lines.add(seg, StrokeStyle(_rgba(col, 0.55), AXIS_PX, dash_px=(7.0, 5.0)))
+        if show.nodes:
+            nodes = marks.nodes_m(el, limit)
+            if nodes is not None:
+                asc, desc = nodes
+                lines.add(np.stack([desc, asc]),
+                          StrokeStyle(_rgba(_mix(col, NODE_RGB, 0.6), 0.7), AXIS_PX,
+                                      dash_px=(2.0, 4.0)))
+                for p, shape_id in ((asc, DISC), (desc, RING)):
+                    q, f = px_of(p)
+                    if f:
+                        markers.add(q, NODE_PX * hs, shape_id, _mix(col, NODE_RGB, 0.6),
+                                    param=1.2 * hs)
+                        obstacle(q, NODE_PX * hs)
+        if show.foci:
+            occ, emp = marks.foci_m(el)
+            for p, shape_id in ((occ, RING), (emp, CROSSHAIR)):
+                if p is None:
+                    continue
+                q, f = px_of(p)
+                if f:
+                    markers.add(q, FOCUS_RING_PX * hs, shape_id,
+                                FOCUS_RGB if shape_id == RING else _lighten(col, 0.35),
+                                param=1.5 * hs)
+                    obstacle(q, FOCUS_RING_PX * hs)
+        if show.apsides:
+            peri, apo = marks.apsides_m(el)
+            for p, text in ((peri, "periapsis"), (apo, "apoapsis")):
+                if p is None:
+                    continue
+                q, f = px_of(p)
+                if f:
+                    markers.add(q, APSIS_PX * hs, DIAMOND, _lighten(col, 0.2))
+                    obstacle(q, APSIS_PX * hs)
+                    if scene.render.labels:
+                        labels.append(LabelRequest(text, (float(q[0]), float(q[1])),
+                                                   APSIS_PX * hs, SMALL_LABEL_PX * hs,
+                                                   _rgba(_lighten(col, 0.4), 0.85), 40,
+                                                   required=False))
+        el_t = body.elements_at(t_s)
+        r, v = state_from_elements(el_t)
+        q, f = px_of(r)
+        if not f:
+            continue
+        cam = view.to_camera(np.asarray(r).reshape(1, 3))
+        mpp = float(view.metres_per_px(cam)[0])
+        m_r = BODY_MARKER_PX * hs
+        if body.radius_m:
+            m_r = max(m_r, body.radius_m / mpp)
+        if show.velocity:
+            _velocity_arrow(lines, arrows, labels, view, np.asarray(r), np.asarray(v), mpp,
+                            v_ref, col, hs, m_r, scene.render.labels)
+        if show.marker:
+            markers.add(q, m_r, DISC, col, param=1.3 * hs)
+            obstacle(q, m_r)
+        if show.label and scene.render.labels:
+            labels.append(LabelRequest(body.name, (float(q[0]), float(q[1])), m_r + 1.0 * hs,
+                                       LABEL_PX * hs, _rgba(_lighten(col, 0.45)), 1 + k))
+
+    if scene.render.grid and scene.render.labels and grid_arcs:
+        for _arc, r in grid_arcs[:: max(1, len(grid_arcs) // 6)]:
+            p = np.array([r, 0.0, 0.0])
+            q, f = px_of(p)
+            if f:
+                labels.append(LabelRequest(_format_length(r, unit), (float(q[0]), float(q[1])),
+                                           2.0 * hs, SMALL_LABEL_PX * hs,
+                                           _rgba(_lighten(GRID_RGB, 0.2), 0.7), 50,
+                                           required=False))
+
+    stars = (star_points(starfield or make_starfield(), view, hs) if scene.render.stars
+             else np.zeros((0, 7)))
+    fills = (fill_vertices(view, np.concatenate(fill_tris), np.concatenate(fill_cols))
+             if fill_tris else np.zeros((0, FILL_FLOATS)))
+    marker_rows = np.vstack([markers.array(), arrows.array()])
+    placed = place_labels(labels, measure, (w, h), obstacles)
+    return FrameGeometry(
+        view=view, background=background, stars=stars,
+        grid=stroke_vertices(grid_lines, view, height_scale=hs) if grid_lines.points
+        else np.zeros((0, STROKE_FLOATS)),
+        fills=fills, glows=glows.array(),
+        strokes=stroke_vertices(lines, view, height_scale=hs) if lines.points
+        else np.zeros((0, STROKE_FLOATS)),
+        markers=marker_rows, labels=placed, populations=list(scene.populations), t_s=t_s)
+
+
+def _sector_area_m2(body: Body, t0: float, t1: float) -> float:
+    from ..orbit import swept_area
+
+    return abs(float(swept_area(body.elements, t0 - body.epoch_offset_s,
+                                t1 - body.epoch_offset_s)))
+
+
+def _polygon_centroid(px: Floats) -> tuple[float, float]:
+    x, y = px[:, 0], px[:, 1]
+    cross = x[:-1] * y[1:] - x[1:] * y[:-1]
+    a = 0.5 * float(np.sum(cross))
+    if abs(a) < 1e-9:
+        return float("nan"), float("nan")
+    cx = float(np.sum((x[:-1] + x[1:]) * cross)) / (6.0 * a)
+    cy = float(np.sum((y[:-1] + y[1:]) * cross)) / (6.0 * a)
+    return cx, cy
+
+
+def _reference_speed(scene: Scene) -> float:
+    """The speed drawn at ARROW_MAX_PX: the fastest periapsis speed of the arrowed bodies."""
+    speeds = [float(b.elements.speed_periapsis) for b in scene.bodies if b.show.velocity]
+    return max(speeds) if speeds else 1.0
+
+
+def _velocity_arrow(lines: PolylineBatch, arrows: _Marks, labels: list[LabelRequest],
+                    view: View, r: Floats, v: Floats, mpp: float, v_ref: float, col: RGB,
+                    hs: float, marker_r: float, with_label: bool) -> None:
+    """An arrow from the body along its velocity, length proportional to speed."""
+    speed = float(np.linalg.norm(v))
+    if speed <= 0:
+        return
+    length_px = ARROW_MAX_PX * hs * speed / v_ref
+    tip_w = r + v / speed * (length_px * mpp)
+    p = view.project(np.stack([r, tip_w]))
+    if not np.all(p[1]):
+        return
+    a_px, b_px = p[0]
+    d = b_px - a_px
+    L = float(np.hypot(d[0], d[1]))
+    head = 9.0 * hs
+    if L < marker_r + head:
+        return
+    u = d / L
+    start_f = marker_r / L
+    end_f = (L - 0.8 * head) / L
+    shaft = np.stack([r + (tip_w - r) * start_f, r + (tip_w - r) * end_f])
+    colour = _lighten(col, 0.25)
+    lines.add(shaft, StrokeStyle(_rgba(colour), 1.6))
+    arrows.add(b_px - u * 0.5 * head, 0.5 * head, ARROWHEAD, colour,
+               angle=float(math.atan2(u[1], u[0])))
+    if with_label:
+        labels.append(LabelRequest(format_speed(speed), (float(b_px[0]), float(b_px[1])),
+                                   4.0 * hs, SMALL_LABEL_PX * hs, _rgba(_lighten(col, 0.5)),
+                                   20))

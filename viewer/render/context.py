@@ -1,0 +1,43 @@
+"""OpenGL contexts: the headless one (EGL on Mesa llvmpipe) for tests, exports and the CLI.
+
+The window (viewer.gui) makes its own context with pyglet and hands it to the same
+Renderer; nothing here knows about windows. With no usable OpenGL at all the error is
+one line that says which packages to install.
+"""
+
+from __future__ import annotations
+
+import os
+from typing import Any
+
+from ..errors import UserInputError
+
+GL_VERSION = 330
+
+INSTALL_HINT = ("no usable OpenGL 3.3 through EGL; install libegl1 and libgl1-mesa-dri "
+                "(Debian/Ubuntu: sudo apt-get install libegl1 libgl1-mesa-dri)")
+
+
+class GLUnavailable(UserInputError):
+    """No OpenGL 3.3 context could be made; the message names the packages to install."""
+
+    def __init__(self, detail: str = "") -> None:
+        super().__init__("OpenGL", INSTALL_HINT + (f" [{detail}]" if detail else ""))
+
+
+def headless_context() -> Any:
+    """A standalone OpenGL 3.3 core context through EGL (llvmpipe when there is no GPU).
+
+    Sets LP_NUM_THREADS to the core count unless the environment already sets it, so
+    llvmpipe rasterises on every core.
+    """
+    os.environ.setdefault("LP_NUM_THREADS", str(os.cpu_count() or 1))
+    try:
+        import moderngl
+    except ImportError as err:  # the wheel is a hard dependency, but say it plainly
+        raise GLUnavailable(f"moderngl is not importable: {err}") from err
+    try:
+        return moderngl.create_standalone_context(backend="egl", require=GL_VERSION)
+    except Exception as err:  # glcontext raises bare Exceptions for a missing libEGL
+        raise GLUnavailable(str(err).splitlines()[0] if str(err) else type(err).__name__) \
+            from err

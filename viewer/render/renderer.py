@@ -1,0 +1,354 @@
+"""The renderer: one way to draw a frame, for the window and for every export.
+
+``Renderer(ctx)`` compiles the programs once; ``draw(geometry, framebuffer)`` draws a
+FrameGeometry into any framebuffer of that context (the window's screen, an offscreen
+target); ``render(scene, t_s, ...)`` builds the geometry and returns the frame as an RGBA
+uint8 array, top row first. A frame is a pure function of (scene, time, camera, size):
+buffers are reused between frames, but nothing drawn depends on an earlier frame.
+
+Per frame: one clear and about eight draw calls (stars, grid, population points, sector
+fills, glows, lines, markers, one per label size). No depth buffer (draw order does the
+layering), no MSAA (the shaders anti-alias), premultiplied alpha throughout.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+from numpy.typing import NDArray
+
+from ..geometry.camera import View, view_for
+from ..geometry.fills import FILL_FLOATS
+from ..geometry.frame import MARKER_FLOATS, FrameGeometry, StaticCache, build_frame
+from ..geometry.population import PopulationConstants, mean_anomaly_at, population_constants
+from ..geometry.stars import make_starfield
+from ..geometry.strokes import STROKE_FLOATS
+from ..scene.model import Camera, Population, Scene
+from .shaders import load_program
+from .text import TEXT_FLOATS, FontCache, GlyphAtlas
+
+UInt8s = NDArray[np.uint8]
+
+#: Dark halo behind label glyphs (premultiplied in the shader).
+HALO_RGBA = (0.0, 0.0, 0.0, 0.8)
+
+
+class _Stream:
+    """A vertex buffer and its vertex array, grown (never shrunk) as frames need."""
+
+    def __init__(self, ctx: Any, program: Any, layout: str, names: tuple[str, ...],
+                 extra: list[tuple[Any, ...]] | None = None) -> None:
+        self.ctx = ctx
+        self.program = program
+        self.layout = layout
+        self.names = names
+        self.extra = extra or []
+        self.capacity = 0
+        self.buffer: Any = None
+        self.vao: Any = None
+
+    def write(self, data: NDArray[np.float32]) -> None:
+        raw = np.ascontiguousarray(data, dtype=np.float32).tobytes()
+        if len(raw) > self.capacity or self.buffer is None:
+            if self.vao is not None:
+                self.vao.release()
+                self.buffer.release()
+            self.capacity = max(len(raw), 2 * self.capacity, 4096)
+            self.buffer = self.ctx.buffer(reserve=self.capacity, dynamic=True)
+            content = [*self.extra, (self.buffer, self.layout, *self.names)]
+            self.vao = self.ctx.vertex_array(self.program, content)
+        if raw:
+            self.buffer.write(raw)
+
+    def release(self) -> None:
+        if self.vao is not None:
+            self.vao.release()
+            self.buffer.release()
+            self.vao = None
+
+
+@dataclass
+class _PopulationGPU:
+    population: Population
+    constants: PopulationConstants
+    static: Any
+    anomaly: Any
+    vao: Any
+
+
+class Renderer:
+    """Draws FrameGeometry with moderngl into a framebuffer of ``ctx``.
+
+    One Renderer per context; it owns its programs, buffers, atlases and offscreen
+    targets. ``release()`` frees them (the context is the caller's).
+    """
+
+    def __init__(self, ctx: Any) -> None:
+        import moderngl
+
+        self.ctx = ctx
+        self._mgl = moderngl
+        self.fonts = FontCache()
+        self.starfield = make_starfield()
+        self.static = StaticCache()
+        self.p_stroke = load_program(ctx, "stroke")
+        self.p_fill = load_program(ctx, "fill")
+        self.p_marker = load_program(ctx, "marker")
+        self.p_points = load_program(ctx, "points")
+        self.p_pop = load_program(ctx, "population", "points")
+        self.p_text = load_program(ctx, "text")
+        stroke_layout = "2f 1f 1f 2f 1f 2f 4f"
+        stroke_names = ("in_pos_px", "in_across", "in_along", "in_caps", "in_half_width",
+                        "in_dash", "in_color")
+        self.s_grid = _Stream(ctx, self.p_stroke, stroke_layout, stroke_names)
+        self.s_lines = _Stream(ctx, self.p_stroke, stroke_layout, stroke_names)
+        self.s_fill = _Stream(ctx, self.p_fill, "2f 4f", ("in_pos_px", "in_color"))
+        self.s_stars = _Stream(ctx, self.p_points, "2f 1f 4f",
+                               ("in_pos_px", "in_size_px", "in_color"))
+        corners = np.array([[-1, -1], [1, -1], [-1, 1], [1, 1]], dtype=np.float32)
+        self._corner_buf = ctx.buffer(corners.tobytes())
+        marker_layout = "2f 1f 1f 1f 1f 4f/i"
+        marker_names = ("in_center_px", "in_radius_px", "in_shape", "in_param", "in_angle",
+                        "in_color")
+        corner = [(self._corner_buf, "2f", "in_corner")]
+        self.s_glow = _Stream(ctx, self.p_marker, marker_layout, marker_names, corner)
+        self.s_markers = _Stream(ctx, self.p_marker, marker_layout, marker_names, corner)
+        self._text_streams: dict[int, _Stream] = {}
+        self._textures: dict[int, tuple[GlyphAtlas, Any]] = {}
+        self._populations: dict[int, _PopulationGPU] = {}
+        self._targets: dict[tuple[int, int], Any] = {}
+
+    # --- geometry -----------------------------------------------------------------------
+
+    def measure(self, text: str, size_px: float) -> tuple[float, float, float]:
+        """Text size (advance, ascent, descent) in px in the bundled font."""
+        return self.fonts.measure(text, size_px)
+
+    def geometry(self, scene: Scene, t_s: float, view: View,
+                 transparent: bool = False) -> FrameGeometry:
+        """The frame's geometry (viewer.geometry.frame.build_frame with this font)."""
+        return build_frame(scene, t_s, view, self.measure, transparent, self.starfield,
+                           self.static)
+
+    # --- drawing ------------------------------------------------------------------------
+
+    def draw(self, geom: FrameGeometry, framebuffer: Any, top_row_first: bool = False) -> None:
+        """Draw ``geom`` into ``framebuffer`` (cleared to the frame's background first).
+
+        The framebuffer's size must be the view's size; the window passes its screen
+        framebuffer here (image up is screen up), the exporters an offscreen one with
+        ``top_row_first`` so that its memory reads out as an image, top row first,
+        with no flip on the CPU.
+        """
+        ctx = self.ctx
+        mgl = self._mgl
+        w, h = geom.view.size_px
+        framebuffer.use()
+        ctx.viewport = (0, 0, w, h)
+        bg = geom.background
+        framebuffer.clear(bg[0] * bg[3], bg[1] * bg[3], bg[2] * bg[3], bg[3])
+        ctx.disable(mgl.DEPTH_TEST | mgl.CULL_FACE)
+        ctx.enable(mgl.BLEND | mgl.PROGRAM_POINT_SIZE)
+        ctx.blend_func = mgl.ONE, mgl.ONE_MINUS_SRC_ALPHA
+        ctx.blend_equation = mgl.FUNC_ADD
+        size = (float(w), float(h))
+        for prog in (self.p_stroke, self.p_fill, self.p_marker, self.p_points, self.p_pop,
+                     self.p_text):
+            prog["u_size_px"].value = size
+            prog["u_y_sign"].value = -1.0 if top_row_first else 1.0
+        self._points(self.s_stars, geom.stars)
+        self._triangles(self.s_grid, geom.grid, STROKE_FLOATS)
+        for pop in geom.populations:
+            self._population(pop, geom)
+        self._triangles(self.s_fill, geom.fills, FILL_FLOATS)
+        self._instances(self.s_glow, geom.glows)
+        self._triangles(self.s_lines, geom.strokes, STROKE_FLOATS)
+        self._instances(self.s_markers, geom.markers)
+        self._labels(geom)
+
+    def _triangles(self, stream: _Stream, data: np.ndarray, floats: int) -> None:
+        if len(data) == 0:
+            return
+        stream.write(data)
+        stream.vao.render(self._mgl.TRIANGLES, vertices=len(data))
+
+    def _points(self, stream: _Stream, data: np.ndarray) -> None:
+        if len(data) == 0:
+            return
+        stream.write(data)
+        stream.vao.render(self._mgl.POINTS, vertices=len(data))
+
+    def _instances(self, stream: _Stream, data: np.ndarray) -> None:
+        if len(data) == 0:
+            return
+        rows = np.empty((len(data), 10), dtype=np.float32)
+        rows[:] = data[:, :MARKER_FLOATS]
+        stream.write(rows)
+        stream.vao.render(self._mgl.TRIANGLE_STRIP, vertices=4, instances=len(data))
+
+    def _population(self, pop: Population, geom: FrameGeometry) -> None:
+        gpu = self._populations.get(id(pop))
+        if gpu is None or gpu.population is not pop:
+            if gpu is not None:
+                self._release_population(gpu)
+            gpu = self._upload_population(pop)
+            self._populations[id(pop)] = gpu
+        c = gpu.constants
+        if c.count == 0:
+            return
+        gpu.anomaly.write(mean_anomaly_at(c, geom.t_s).astype(np.float32).tobytes())
+        v = geom.view
+        p = self.p_pop
+        p["u_origin_m"].value = tuple(float(x) for x in v.origin_m)
+        p["u_right"].value = tuple(float(x) for x in v.basis[0])
+        p["u_up"].value = tuple(float(x) for x in v.basis[1])
+        p["u_back"].value = tuple(float(x) for x in v.basis[2])
+        p["u_perspective"].value = 1 if v.perspective else 0
+        p["u_px_per_m"].value = float(v.px_per_m)
+        p["u_focal_px"].value = float(v.focal_px)
+        p["u_distance_m"].value = float(v.distance_m)
+        p["u_near_m"].value = float(v.near_m)
+        hs = v.size_px[1] / 1080.0
+        p["u_point_px"].value = float(pop.point_size_px * hs)
+        p["u_color"].value = (*pop.color, 0.85)
+        gpu.vao.render(self._mgl.POINTS, vertices=c.count)
+
+    def _upload_population(self, pop: Population) -> _PopulationGPU:
+        c = population_constants(pop)
+        static = np.empty((c.count, 7), dtype=np.float32)
+        static[:, 0:3] = c.aP_m
+        static[:, 3:6] = c.bQ_m
+        static[:, 6] = c.e
+        sbuf = self.ctx.buffer(static.tobytes() if c.count else b"\0" * 28)
+        abuf = self.ctx.buffer(reserve=max(4 * c.count, 4), dynamic=True)
+        vao = self.ctx.vertex_array(self.p_pop, [(sbuf, "3f 3f 1f", "in_aP", "in_bQ", "in_e"),
+                                                 (abuf, "1f", "in_M")])
+        return _PopulationGPU(pop, c, sbuf, abuf, vao)
+
+    def _release_population(self, gpu: _PopulationGPU) -> None:
+        gpu.vao.release()
+        gpu.static.release()
+        gpu.anomaly.release()
+
+    def _labels(self, geom: FrameGeometry) -> None:
+        if not geom.labels:
+            return
+        by_size: dict[int, list[Any]] = {}
+        for lab in geom.labels:
+            by_size.setdefault(max(6, int(round(lab.size_px))), []).append(lab)
+        self.p_text["u_halo"].value = HALO_RGBA
+        for size in sorted(by_size):
+            labs = by_size[size]
+            atlas = self.fonts.atlas(size, "".join(lab.text for lab in labs))
+            tex = self._texture(size, atlas)
+            quads = np.concatenate([atlas.quads(lab) for lab in labs])
+            if len(quads) == 0:
+                continue
+            stream = self._text_streams.get(size)
+            if stream is None:
+                stream = _Stream(self.ctx, self.p_text, "2f 2f 4f",
+                                 ("in_pos_px", "in_uv", "in_color"))
+                self._text_streams[size] = stream
+            tex.use(0)
+            self.p_text["u_atlas"].value = 0
+            stream.write(quads[:, :TEXT_FLOATS])
+            stream.vao.render(self._mgl.TRIANGLES, vertices=len(quads))
+
+    def _texture(self, size: int, atlas: GlyphAtlas) -> Any:
+        have = self._textures.get(size)
+        if have is not None and have[0] is atlas:
+            return have[1]
+        if have is not None:
+            have[1].release()
+        h, w = atlas.image.shape[:2]
+        tex = self.ctx.texture((w, h), 2, np.ascontiguousarray(atlas.image).tobytes())
+        tex.filter = (self._mgl.NEAREST, self._mgl.NEAREST)
+        tex.repeat_x = tex.repeat_y = False
+        self._textures[size] = (atlas, tex)
+        return tex
+
+    # --- offscreen frames ---------------------------------------------------------------
+
+    def target(self, size_px: tuple[int, int]) -> Any:
+        """An offscreen RGBA8 framebuffer of ``size_px`` (kept for reuse)."""
+        fbo = self._targets.get(size_px)
+        if fbo is None:
+            rb = self.ctx.renderbuffer(size_px, 4)
+            fbo = self.ctx.framebuffer(color_attachments=[rb])
+            self._targets[size_px] = fbo
+        return fbo
+
+    def read(self, framebuffer: Any, size_px: tuple[int, int], transparent: bool = False,
+             out: UInt8s | None = None) -> UInt8s:
+        """A framebuffer drawn with ``top_row_first`` as RGBA uint8 (H, W, 4).
+
+        Opaque frames come back as drawn; transparent ones are converted from
+        premultiplied to straight alpha, as PNG expects. ``out`` (a C-contiguous
+        (H, W, 4) uint8 array) receives the pixels with no new allocation.
+        """
+        w, h = size_px
+        img = np.empty((h, w, 4), dtype=np.uint8) if out is None else out
+        if img.shape != (h, w, 4) or img.dtype != np.uint8 or not img.flags.c_contiguous:
+            raise ValueError(f"out must be a C-contiguous ({h}, {w}, 4) uint8 array")
+        framebuffer.read_into(img, viewport=(0, 0, w, h), components=4, alignment=1)
+        if not transparent:
+            return img
+        a = img[..., 3:4].astype(np.uint32)
+        rgb = img[..., :3].astype(np.uint32)
+        straight = np.where(a > 0, (rgb * 255 + a // 2) // np.maximum(a, 1), 0)
+        img[..., :3] = np.minimum(straight, 255).astype(np.uint8)
+        return img
+
+    def render(self, scene: Scene, t_s: float, size_px: tuple[int, int] | None = None,
+               camera: Camera | None = None, transparent: bool = False,
+               out: UInt8s | None = None) -> UInt8s:
+        """The frame of ``scene`` at scene time ``t_s`` (s) as RGBA uint8 (H, W, 4).
+
+        ``size_px`` (W, H) and ``camera`` override the scene's; ``transparent`` gives an
+        alpha background (straight alpha) instead of the scene's background colour;
+        ``out`` is an array to fill instead of a new one (see ``read``).
+        """
+        view = view_for(scene, t_s, size_px, camera)
+        geom = self.geometry(scene, t_s, view, transparent)
+        fbo = self.target(view.size_px)
+        self.draw(geom, fbo, top_row_first=True)
+        return self.read(fbo, view.size_px, transparent, out)
+
+    def release(self) -> None:
+        """Free every GL object this renderer made (not the context)."""
+        for s in (self.s_grid, self.s_lines, self.s_fill, self.s_stars, self.s_glow,
+                  self.s_markers, *self._text_streams.values()):
+            s.release()
+        for _atlas, tex in self._textures.values():
+            tex.release()
+        for gpu in self._populations.values():
+            self._release_population(gpu)
+        for fbo in self._targets.values():
+            for att in fbo.color_attachments:
+                att.release()
+            fbo.release()
+        self._corner_buf.release()
+        for prog in (self.p_stroke, self.p_fill, self.p_marker, self.p_points, self.p_pop,
+                     self.p_text):
+            prog.release()
+        self._targets.clear()
+        self._populations.clear()
+        self._textures.clear()
+
+
+def render_still(scene: Scene, t_s: float, size_px: tuple[int, int] | None = None,
+                 camera: Camera | None = None, transparent: bool = False) -> UInt8s:
+    """One frame in a fresh headless context (see Renderer.render); frees it afterwards."""
+    from .context import headless_context
+
+    ctx = headless_context()
+    try:
+        renderer = Renderer(ctx)
+        try:
+            return renderer.render(scene, t_s, size_px, camera, transparent)
+        finally:
+            renderer.release()
+    finally:
+        ctx.release()

@@ -1,0 +1,36 @@
+"""Shaders as files: ``shaders/NAME.vert`` and ``NAME.frag``, found inside the package.
+
+``viewer/shaders`` is the top-level ``shaders/`` folder (a symlink in the checkout, a
+copy in the wheel), so ``importlib.resources`` finds the same files either way. A
+missing file or a compile error fails with the file's name and the compiler's message.
+"""
+
+from __future__ import annotations
+
+from importlib import resources
+from typing import Any
+
+
+class ShaderError(RuntimeError):
+    """A shader file that is missing or does not compile."""
+
+
+def shader_source(filename: str) -> str:
+    """The text of ``shaders/<filename>``."""
+    path = resources.files("viewer").joinpath("shaders", filename)
+    try:
+        return path.read_text(encoding="utf-8")
+    except (FileNotFoundError, OSError) as err:
+        raise ShaderError(f"shader file shaders/{filename} not found ({err})") from err
+
+
+def load_program(ctx: Any, vertex: str, fragment: str | None = None) -> Any:
+    """Compile ``shaders/<vertex>.vert`` with ``shaders/<fragment or vertex>.frag``."""
+    vs_name = f"{vertex}.vert"
+    fs_name = f"{fragment or vertex}.frag"
+    vs = shader_source(vs_name)
+    fs = shader_source(fs_name)
+    try:
+        return ctx.program(vertex_shader=vs, fragment_shader=fs)
+    except Exception as err:  # moderngl.Error carries the compiler log
+        raise ShaderError(f"shaders/{vs_name} + shaders/{fs_name}: {err}") from err
