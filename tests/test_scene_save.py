@@ -88,6 +88,15 @@ def test_removing_and_adding_keys_and_bodies():
     assert [b.name for b in scene.bodies] == ["Osk", "New"]
 
 
+def test_bodies_written_as_an_inline_array_can_be_edited_and_appended():
+    text = 'body = [{ name = "A", a = "1 au" }]\n[center]\npreset = "sun"\n'
+    new = edit_text(text, {"body[0].e": 0.2, "body[+]": {"name": "B", "a": "2 au"}})
+    scene = load_scene_text(new)
+    assert [b.name for b in scene.bodies] == ["A", "B"]
+    assert scene.bodies[0].elements.e == 0.2
+    assert new.splitlines()[1:] == text.splitlines()[1:]
+
+
 @pytest.mark.parametrize("path", ["body[7].e", 'body["Nobody"].e', "body[0]..e", "camera[0].x",
                                   "scene.title.x"])
 def test_bad_key_paths_are_user_errors(path):
@@ -276,3 +285,35 @@ def test_write_atomic_creates_a_new_file_without_bak(tmp_path):
     write_atomic(target, "x = 1\n")
     assert target.read_text() == "x = 1\n"
     assert not (tmp_path / "fresh.toml.bak").exists()
+
+
+def _another_value(value):
+    """A different value of the same kind: numbers scaled, quantities' numbers scaled."""
+    if isinstance(value, bool):
+        return not value
+    if isinstance(value, (int, float)):
+        return value * 0.5 + 0.25
+    number, _, unit = value.partition(" ")
+    try:
+        return f"{float(number) * 1.01 + 0.5!r} {unit}".strip()
+    except ValueError:
+        return value + " II"
+
+
+@pytest.mark.parametrize("name", ["demo", "laws", "earth-mission", "solar-system"])
+def test_every_single_value_edit_of_a_bundled_scene_changes_one_line(name):
+    import tomllib
+
+    text = (SCENES / f"{name}.toml").read_text()
+    raw = tomllib.loads(text)
+    edits = 0
+    for k, body in enumerate(raw["body"]):
+        for key, value in body.items():
+            if isinstance(value, (dict, list)):
+                continue
+            new = edit_text(text, {f"body[{k}].{key}": _another_value(value)})
+            (changed,) = _changed_lines(text, new)
+            assert changed[0].split("=")[0] == changed[1].split("=")[0]
+            assert tomllib.loads(new)["body"][k][key] == _another_value(value)
+            edits += 1
+    assert edits >= 2 * len(raw["body"])  # at least each name and size

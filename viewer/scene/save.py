@@ -104,6 +104,7 @@ def edit_text(text: str, edits: Mapping[str, Any]) -> str:
 def _apply(doc: Any, path: str, value: Any) -> None:
     """Set (or with None remove) the value at one key path of a tomlkit document."""
     import tomlkit
+    from tomlkit.items import AoT
 
     parts = _parse_path(path)
     node = doc
@@ -135,10 +136,12 @@ def _apply(doc: Any, path: str, value: Any) -> None:
         seq = node[name]
         if not isinstance(seq, list):
             raise UserInputError(path, f"{name} is not an array of tables")
+        # [[body]] tables take tables; an inline array (body = [{...}]) takes inline ones
+        inline = not isinstance(seq, AoT)
         if index == "+":
             if not last or not isinstance(value, Mapping):
                 raise UserInputError(path, f"{name}[+] appends a table: give a table of keys")
-            seq.append(_item(value, inline=False))
+            seq.append(_item(value, inline=inline))
             return
         if isinstance(index, str):
             wanted = index[len("name:"):]
@@ -154,7 +157,7 @@ def _apply(doc: Any, path: str, value: Any) -> None:
             if value is None:
                 del seq[index]
             elif isinstance(value, Mapping):
-                seq[index] = _item(value, inline=False)
+                seq[index] = _item(value, inline=inline)
             else:
                 raise UserInputError(path, f"{name}[{index}] is a table: give a table of keys")
             return
