@@ -9,7 +9,8 @@ imported only when a scene is saved.
 * ``edit_text``, ``save_edits``, ``save_text``, ``write_atomic``, ``dump_scene``,
   ``save_scene`` (``save``).
 * ``scene_summary`` / ``body_summary``: the numbers of ``perifocal check`` (``report``).
-* ``scene_schema()``: the JSON Schema of docs/scene.schema.json (``schema``).
+* ``viewer.scene.schema.scene_schema()``: the JSON Schema of docs/scene.schema.json.
+* ``viewer.scene.bench.bench_scene()``: load timings for ``perifocal bench``.
 """
 
 from .loader import MAX_FILE_BYTES, load_scene, load_scene_text, read_scene_text
