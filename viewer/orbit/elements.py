@@ -144,7 +144,9 @@ class Elements:
         """
         e = np.asarray(self.e, dtype=np.float64)
         a = np.abs(np.asarray(self.a, dtype=np.float64))
-        return _f(np.where(e == 1.0, np.inf, a * np.sqrt(np.abs(1.0 - e * e))))
+        with np.errstate(invalid="ignore"):  # inf * 0 for a parabola, replaced below
+            b = a * np.sqrt(np.abs(1.0 - e * e))
+        return _f(np.where(e == 1.0, np.inf, b))
 
     @property
     def focal_distance(self) -> Any:
@@ -332,7 +334,6 @@ def elements_from_state(r: ArrayLike, v: ArrayLike, mu: float) -> Elements:
     rv = np.einsum("...i,...i->...", r_a, v_a)
     e_vec = ((v2 - mu / rn)[..., None] * r_a - rv[..., None] * v_a) / mu
     e = _norm(e_vec)
-    energy = 0.5 * v2 - mu / rn
     p = hn * hn / mu
 
     i = np.arccos(np.clip(w_hat[..., 2], -1.0, 1.0))
@@ -351,13 +352,12 @@ def elements_from_state(r: ArrayLike, v: ArrayLike, mu: float) -> Elements:
 
     parabolic = np.abs(e - 1.0) < PARABOLIC_E
     e = np.where(parabolic, 1.0, e)
-    safe_energy = np.where(parabolic, -1.0, energy)
     safe_e = np.where(parabolic, 0.0, e)
-    # a from p and e away from e = 1 (no cancellation in v^2/2 - mu/r); from the energy
-    # close to it, where 1 - e^2 is the worse-conditioned of the two.
-    a = np.where(np.abs(1.0 - safe_e) > 1e-3, p / (1.0 - safe_e * safe_e),
-                 -mu / (2.0 * safe_energy))
-    a = np.where(parabolic, np.inf, a)
+    # a from p and e everywhere: near e = 1 it is no worse than -mu / (2 energy) (both
+    # lose about eps / |1 - e|), and Elements.p = a (1 - e^2) then gives back this p, so
+    # state_from_elements returns the state (a from the energy put p off by ~1e-6
+    # relative at |1 - e| = 1e-10).
+    a = np.where(parabolic, np.inf, p / (1.0 - safe_e * safe_e))
     elliptic_nu = np.where(e < 1.0, np.mod(nu, TWO_PI), nu)
     any_parabolic = bool(np.any(parabolic))
     return Elements(_f(a), _f(e), _f(i), _f(raan), _f(argp), _f(elliptic_nu), mu,
