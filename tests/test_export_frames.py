@@ -79,6 +79,19 @@ def test_resume_renders_only_missing_and_broken_frames(tmp_path: Path) -> None:
     assert all(image_is_complete(frame_path(out, k, "png")) for k in range(8))
 
 
+@pytest.mark.parametrize("transparent", [False, True])
+def test_eight_bit_png_decodes_to_the_same_pixels(tmp_path: Path, transparent: bool) -> None:
+    from PIL import Image
+
+    img = np.random.default_rng(3).integers(0, 256, (H, W, 4), dtype=np.uint8)
+    path = tmp_path / "frame.png"
+    path.write_bytes(png_bytes(img, transparent=transparent))
+    with Image.open(path) as decoded:
+        assert decoded.mode == ("RGBA" if transparent else "RGB")
+        got = np.asarray(decoded)
+    assert np.array_equal(got, img if transparent else img[..., :3])
+
+
 def test_sixteen_bit_png_keeps_the_values(tmp_path: Path) -> None:
     from PIL import Image
 

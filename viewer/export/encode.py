@@ -22,41 +22,42 @@ from ..errors import UserInputError
 from ..fileio import atomic_write_bytes
 
 STILL_FORMATS = ("png", "jpg")
-#: zlib level for PNG: 1 is several times faster than 6 for a few per cent more bytes
-#: on dark, mostly flat frames (measured: see docs/performance.md).
+#: zlib level for PNG: 1 compresses these dark, mostly flat frames nearly as well as 6
+#: at a fraction of the time (docs/performance.md).
 PNG_LEVEL = 1
 
 
 def png_bytes(rgba: np.ndarray, transparent: bool = False, bits: int = 8) -> bytes:
-    """A PNG of an RGBA frame: RGB unless ``transparent``; 8 or 16 bits per channel."""
-    from PIL import Image
+    """A PNG of an RGBA frame (top row first): RGB unless ``transparent``; 8 or 16 bits.
 
+    Written directly (signature, IHDR, one IDAT, IEND) with filter type 0 on every row
+    and zlib level 1: about 3x faster than Pillow's encoder on 1080p frames, with
+    smaller files (its adaptive row filters cost more than they save on this content);
+    zlib releases the GIL, so frames encode on other threads while the next renders.
+    """
+    if bits not in (8, 16):
+        raise UserInputError("--bits", f"PNG depth must be 8 or 16, got {bits}")
     if bits == 16:
-        return _png16_bytes(rgba, transparent)
-    arr = np.ascontiguousarray(rgba if transparent else rgba[..., :3])
-    img = Image.fromarray(arr, "RGBA" if transparent else "RGB")
-    buf = io.BytesIO()
-    img.save(buf, format="PNG", compress_level=PNG_LEVEL)
-    return buf.getvalue()
-
-
-def _png16_bytes(rgba: np.ndarray, transparent: bool) -> bytes:
-    """16-bit PNG written directly (Pillow has no 16-bit RGB(A) mode): IHDR, IDAT, IEND."""
-    arr = rgba if rgba.dtype == np.uint16 else rgba.astype(np.uint16) * 257
-    if not transparent:
-        arr = arr[..., :3]
-    h, w, c = arr.shape
-    rows = np.ascontiguousarray(arr.astype(">u2")).view(np.uint8).reshape(h, w * c * 2)
-    raw = np.hstack([np.zeros((h, 1), np.uint8), rows]).tobytes()
+        arr = rgba if rgba.dtype == np.uint16 else rgba.astype(np.uint16) * 257
+        arr = np.ascontiguousarray(arr.astype(">u2")).view(np.uint8)
+    else:
+        arr = rgba if rgba.dtype == np.uint8 else (rgba >> 8).astype(np.uint8)
+    h, w = rgba.shape[:2]
+    channels = 4 if transparent else 3
+    per_sample = bits // 8
+    samples = arr.reshape(h, w, 4 * per_sample)[..., : channels * per_sample]
+    raw = np.empty((h, 1 + w * channels * per_sample), np.uint8)
+    raw[:, 0] = 0  # filter type 0 (None) on every row
+    raw[:, 1:] = samples.reshape(h, -1)
 
     def chunk(kind: bytes, data: bytes) -> bytes:
         return (len(data).to_bytes(4, "big") + kind + data
                 + zlib.crc32(kind + data).to_bytes(4, "big"))
 
     color_type = 6 if transparent else 2
-    ihdr = w.to_bytes(4, "big") + h.to_bytes(4, "big") + bytes([16, color_type, 0, 0, 0])
+    ihdr = w.to_bytes(4, "big") + h.to_bytes(4, "big") + bytes([bits, color_type, 0, 0, 0])
     return (b"\x89PNG\r\n\x1a\n" + chunk(b"IHDR", ihdr)
-            + chunk(b"IDAT", zlib.compress(raw, PNG_LEVEL)) + chunk(b"IEND", b""))
+            + chunk(b"IDAT", zlib.compress(raw.tobytes(), PNG_LEVEL)) + chunk(b"IEND", b""))
 
 
 def jpeg_bytes(rgba: np.ndarray, quality: int = 92) -> bytes:
