@@ -13,13 +13,10 @@ pytestmark = pytest.mark.gl
 
 @pytest.fixture(scope="module")
 def renderer():
-    from viewer.render import Renderer, headless_context
+    from viewer.render import headless_renderer
 
-    ctx = headless_context()
-    r = Renderer(ctx)
-    yield r
-    r.release()
-    ctx.release()
+    with headless_renderer() as r:
+        yield r
 
 
 def test_rerender_of_the_same_scene_and_time_is_byte_identical(renderer):

@@ -42,9 +42,11 @@ def look_basis(camera: Camera) -> tuple[Floats, Floats, Floats]:
     el, az = camera.elevation_rad, camera.azimuth_rad
     d = np.array([math.cos(el) * math.cos(az), math.cos(el) * math.sin(az), math.sin(el)])
     ref = np.array([0, 1.0, 0]) if abs(abs(d[2]) - 1.0) < _STRAIGHT else np.array([0, 0, 1.0])
-    up = ref - np.dot(ref, d) * d
-    up /= np.linalg.norm(up)
-    right = np.cross(up, d)
+    # up is ref's projection on the image plane, and right = up x d; built as
+    # right = ref x d / |ref x d| and up = d x right they stay orthonormal to rounding.
+    right = np.cross(ref, d)
+    right /= np.linalg.norm(right)
+    up = np.cross(d, right)
     return right, up, d
 
 
@@ -64,6 +66,14 @@ class View:
     distance_m: float
     fov_rad: float
     near_m: float
+    #: Image height that line widths, markers and labels are sized for (px); the
+    #: view's own height when None. Cube faces of a dome master use the master's.
+    style_height_px: int | None = None
+
+    @property
+    def style_scale(self) -> float:
+        """Multiplier of every size given "at 1080 px image height"."""
+        return (self.style_height_px or self.size_px[1]) / 1080.0
 
     @property
     def perspective(self) -> bool:

@@ -6,8 +6,10 @@ rings) into one batch and tessellates them together, turns polylines into stroke
 and sectors into fans, places markers and labels, and returns arrays in image pixels
 ready for upload (the renderer casts them to float32). Nothing here touches GL.
 
-Draw order (back to front): stars, grid, populations, sector fills, glow, lines (sector
-edges, orbits, axes, nodes, arrows), markers, labels.
+Draw order (back to front): stars, grid, populations, sector fills, the central body
+with its glow, lines (sector edges, orbits, axes, nodes, arrows), markers, labels.
+Lines and marks that pass behind the central body (as drawn) are cut where its limb
+hides them, so an orbit goes behind the planet and in front of it as it should.
 """
 
 from __future__ import annotations
@@ -34,7 +36,13 @@ from .conic import (
 from .fills import FILL_FLOATS, fan_triangles, fill_vertices
 from .labels import LabelRequest, Measure, PlacedLabel, place_labels
 from .stars import Starfield, make_starfield, star_points
-from .strokes import STROKE_FLOATS, PolylineBatch, StrokeStyle, stroke_vertices
+from .strokes import (
+    STROKE_FLOATS,
+    PolylineBatch,
+    StrokeStyle,
+    hidden_by_sphere,
+    stroke_vertices,
+)
 
 Floats = NDArray[np.float64]
 RGB = tuple[float, float, float]
@@ -58,6 +66,8 @@ ARROW_MAX_PX = 150.0
 EDGE_PX = 1.4
 GRID_PX = 1.0
 AXIS_PX = 1.1
+#: Opacity factor of every other translucent sector.
+ALTERNATE_FILL = 0.6
 #: A central body at least this massive (GM, m^3/s^2) is drawn as a star with a glow;
 #: below it, as a planet (about 7.6 Jupiter masses; common practice, no source).
 STAR_GM_M3_S2 = 1.0e18
@@ -76,7 +86,7 @@ class FrameGeometry:
     stars: Floats                 # (K, 7) points: x, y, size, r, g, b, a
     grid: Floats                  # (N, STROKE_FLOATS)
     fills: Floats                 # (N, FILL_FLOATS)
-    glows: Floats                 # (M, MARKER_FLOATS)
+    glows: Floats                 # (M, MARKER_FLOATS): the central body and its glow
     strokes: Floats               # (N, STROKE_FLOATS)
     markers: Floats               # (M, MARKER_FLOATS)
     labels: list[PlacedLabel]
@@ -118,7 +128,8 @@ def format_area(area_m2: float, unit: str) -> str:
 
 
 def _format_length(x_m: float, unit: str) -> str:
-    return f"{_format_sig(x_m / unit_factor(unit, 'length'))} {unit}"
+    """A round grid radius without trailing zeros: "2 au", "0.5 au", "20000 km"."""
+    return f"{x_m / unit_factor(unit, 'length'):.6g} {unit}"
 
 
 @dataclass
@@ -159,7 +170,7 @@ def _sector_params(body: Body, shape: ConicShape) -> list[tuple[float, float, fl
 def _central_radius_px(scene: Scene, view: View) -> tuple[float, Floats, bool]:
     """(radius px, centre px, visible) of the central body, at least its minimum size."""
     px, front = view.project(np.zeros((1, 3)))
-    hs = view.size_px[1] / 1080.0
+    hs = view.style_scale
     cam = view.to_camera(np.zeros((1, 3)))
     r_true = scene.center.radius_m / float(view.metres_per_px(cam)[0])
     star = scene.center.gm_m3_s2 >= STAR_GM_M3_S2
@@ -207,7 +218,7 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     (both are deterministic, so the result is the same with or without them).
     """
     w, h = view.size_px
-    hs = h / 1080.0
+    hs = view.style_scale
     unit = scene.length_unit
     unit_m = unit_factor(unit, "length")
     bg = scene.render.background
@@ -223,10 +234,6 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     arrows = _Marks()
     labels: list[LabelRequest] = []
     obstacles: list[tuple[float, float, float, float]] = []
-
-    def px_of(p: Floats) -> tuple[Floats, bool]:
-        q, f = view.project(np.asarray(p, dtype=np.float64).reshape(1, 3))
-        return q[0], bool(f[0])
 
     def obstacle(p: Floats, r: float) -> None:
         obstacles.append((p[0] - r, p[1] - r, p[0] + r, p[1] + r))
@@ -267,17 +274,50 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     for arc, _r in grid_arcs:
         grid_lines.add(tess.arc(arc), StrokeStyle(_rgba(GRID_RGB, 0.30), GRID_PX), closed=True)
 
+    # --- the central body: drawn before the lines, and hiding what passes behind it ----
+    center = scene.center
+    c_r, c_px, c_front = _central_radius_px(scene, view)
+    star = center.gm_m3_s2 >= STAR_GM_M3_S2
+    occluder: tuple[Floats, float] | None = None
+    if center.show_body and c_front:
+        if star:
+            glows.add(c_px, max(c_r * 7.0, 46.0 * hs), GLOW, center.color, 0.55,
+                      param=c_r)
+        else:
+            glows.add(c_px, c_r * 1.35, GLOW, _lighten(center.color, 0.3), 0.35, param=c_r)
+        glows.add(c_px, c_r, SPHERE, center.color, 1.0, param=0.55 if star else 0.25)
+        obstacle(c_px, c_r)
+        mpp0 = float(view.metres_per_px(view.to_camera(np.zeros((1, 3))))[0])
+        occluder = (np.zeros(3), c_r * mpp0)
+    if center.show_label and scene.render.labels and c_front:
+        labels.append(LabelRequest(center.name, (float(c_px[0]), float(c_px[1])),
+                                   c_r + 2.0 * hs, LABEL_PX * hs,
+                                   _rgba(_lighten(center.color, 0.45)), 0))
+
+    def px_of(p: Floats) -> tuple[Floats, bool]:
+        """Pixels of a world point and whether it can be seen (in front, not hidden)."""
+        pw = np.asarray(p, dtype=np.float64).reshape(1, 3)
+        q, f = view.project(pw)
+        seen = bool(f[0])
+        if seen and occluder is not None and np.any(pw != 0.0):
+            cam = view.to_camera(pw)
+            centre = view.to_camera(occluder[0].reshape(1, 3))[0]
+            seen = not bool(hidden_by_sphere(view, cam, centre, occluder[1])[0])
+        return q[0], seen
+
     # --- sectors: fans from the occupied focus, edges inside them -----------------------
     for k, arcs in sector_arcs.items():
         body = scene.bodies[k]
         sw = body.sweep
         assert sw is not None
         edge_a = min(1.0, sw.opacity + 0.35)
-        for arc, t0, t1 in arcs:
+        for j, (arc, t0, t1) in enumerate(arcs):
             pts = tess.arc(arc)
             tris = fan_triangles(np.zeros(3), pts)
             fill_tris.append(tris)
-            fill_cols.append(np.tile(_rgba(sw.color, sw.opacity), (len(tris), 1)))
+            # Translucent neighbours alternate in strength, so each sector reads on its own.
+            alpha = sw.opacity * (ALTERNATE_FILL if (j % 2 and sw.opacity < 1.0) else 1.0)
+            fill_cols.append(np.tile(_rgba(sw.color, alpha), (len(tris), 1)))
             ring = np.vstack([np.zeros((1, 3)), pts, np.zeros((1, 3))])
             ring_px, front = view.project(ring)
             offset = 0.0
@@ -299,23 +339,6 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
                     labels.append(LabelRequest(text, (cx, cy), 0.0, SMALL_LABEL_PX * hs,
                                                _rgba(_lighten(sw.color, 0.55)), 30,
                                                at_px=(cx - 0.5 * tw, cy + 0.35 * asc)))
-
-    # --- the central body ---------------------------------------------------------------
-    center = scene.center
-    c_r, c_px, c_front = _central_radius_px(scene, view)
-    star = center.gm_m3_s2 >= STAR_GM_M3_S2
-    if center.show_body and c_front:
-        if star:
-            glows.add(c_px, max(c_r * 7.0, 46.0 * hs), GLOW, center.color, 0.55,
-                      param=c_r)
-        else:
-            glows.add(c_px, c_r * 1.35, GLOW, _lighten(center.color, 0.3), 0.35, param=c_r)
-        markers.add(c_px, c_r, SPHERE, center.color, 1.0, param=0.55 if star else 0.25)
-        obstacle(c_px, c_r)
-    if center.show_label and scene.render.labels and c_front:
-        labels.append(LabelRequest(center.name, (float(c_px[0]), float(c_px[1])),
-                                   c_r + 2.0 * hs, LABEL_PX * hs,
-                                   _rgba(_lighten(center.color, 0.45)), 0))
 
     # --- each body's lines and marks ----------------------------------------------------
     v_ref = _reference_speed(scene)
@@ -407,10 +430,11 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     placed = place_labels(labels, measure, (w, h), obstacles)
     return FrameGeometry(
         view=view, background=background, stars=stars,
-        grid=stroke_vertices(grid_lines, view, height_scale=hs) if grid_lines.points
+        grid=stroke_vertices(grid_lines, view, height_scale=hs, occluder=occluder)
+        if grid_lines.points
         else np.zeros((0, STROKE_FLOATS)),
         fills=fills, glows=glows.array(),
-        strokes=stroke_vertices(lines, view, height_scale=hs) if lines.points
+        strokes=stroke_vertices(lines, view, height_scale=hs, occluder=occluder) if lines.points
         else np.zeros((0, STROKE_FLOATS)),
         markers=marker_rows, labels=placed, populations=list(scene.populations), t_s=t_s)
 

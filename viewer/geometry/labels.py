@@ -1,8 +1,9 @@
 """Label placement: each label beside its anchor, clear of other labels and of markers.
 
 Greedy and deterministic: labels go in priority order (the central body, then bodies,
-then the smaller annotations); each tries eight places around its anchor and takes the
-first that overlaps nothing already placed and stays inside the image. A label that
+then the smaller annotations); each tries eight places around its anchor, then the same
+eight a line farther out (three rings), and takes the first that overlaps nothing
+already placed and stays inside the image. A label that
 must be shown (a body's name) takes its least-crowded place when none is clear; an
 optional one (an apsis tag, a grid radius) is dropped instead. Text is measured by a
 function the renderer passes in, so this module needs no font and no GL.
@@ -19,6 +20,8 @@ Measure = Callable[[str, float], tuple[float, float, float]]
 RGBA = tuple[float, float, float, float]
 
 _PAD_PX = 2.0
+# Rings of places tried, each a line height farther out than the one before.
+_RINGS = 3
 # Unit directions tried around an anchor: right, upper right, lower right, left, ...
 _PLACES = ((1, 0), (1, -1), (1, 1), (-1, 0), (-1, -1), (-1, 1), (0, -1), (0, 1))
 
@@ -86,9 +89,9 @@ def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tu
                           y + descent + _PAD_PX))
             continue
         ax, ay = req.anchor_px
-        gap = req.clearance_px + 0.25 * req.size_px
         best: tuple[float, float, float, Box] | None = None
-        for dx, dy in _PLACES:
+        for ring, (dx, dy) in ((r, p) for r in range(_RINGS) for p in _PLACES):
+            gap = req.clearance_px + (0.25 + 1.1 * ring) * req.size_px
             # The text box's near edge sits ``gap`` from the anchor in this direction.
             if dx > 0:
                 x = ax + gap

@@ -115,14 +115,97 @@ def _clip_rect(p0: Floats, p1: Floats, lo: Floats, hi: Floats) -> tuple[Floats, 
     return t0, t1
 
 
+def hidden_by_sphere(view: View, cam: Floats, centre_cam: Floats, radius_m: float) -> Bools:
+    """Camera-space points the sphere (centre in camera space, radius m) hides from the eye.
+
+    Orthographic: inside the sphere's silhouette and behind its front surface.
+    Perspective: the sight line from the eye (the camera origin) meets the sphere first.
+    """
+    rel = cam - centre_cam
+    if not view.perspective:
+        rho2 = rel[..., 0] ** 2 + rel[..., 1] ** 2
+        inside = rho2 < radius_m * radius_m
+        front = np.sqrt(np.maximum(radius_m * radius_m - rho2, 0.0))
+        return inside & (rel[..., 2] < front)
+    a = np.einsum("...i,...i->...", cam, cam)
+    b = np.einsum("...i,...i->...", cam, centre_cam)
+    cc = float(centre_cam @ centre_cam) - radius_m * radius_m
+    disc = b * b - a * cc
+    root = np.sqrt(np.maximum(disc, 0.0))
+    return (disc > 0) & (b - root < a) & (b + root > 0)
+
+
+def _clip_occluded(view: View, c0: Floats, c1: Floats, kept: Bools, cut0: Bools, cut1: Bools,
+                   occluder: tuple[Floats, float]) -> None:
+    """Shorten (in place) segments that pass behind the occluding sphere; drop hidden ones.
+
+    The crossing is found by bisection on the hidden test along each segment (24 steps,
+    2^-24 of a segment), so it works the same for both projections.
+    """
+    centre = view.to_camera(np.asarray(occluder[0], dtype=np.float64).reshape(1, 3))[0]
+    radius = float(occluder[1])
+    h0 = hidden_by_sphere(view, c0, centre, radius)
+    h1 = hidden_by_sphere(view, c1, centre, radius)
+    kept &= ~(h0 & h1)
+    for hid_end, vis_pt, hid_pt, cut in ((h1 & ~h0, c0, c1, cut1), (h0 & ~h1, c1, c0, cut0)):
+        sel = np.flatnonzero(hid_end & kept)
+        if sel.size == 0:
+            continue
+        lo = np.zeros(sel.size)  # visible side
+        hi = np.ones(sel.size)   # hidden side
+        a, b = vis_pt[sel], hid_pt[sel]
+        for _ in range(24):
+            mid = 0.5 * (lo + hi)
+            hm = hidden_by_sphere(view, a + mid[:, None] * (b - a), centre, radius)
+            hi = np.where(hm, mid, hi)
+            lo = np.where(hm, lo, mid)
+        hid_pt[sel] = a + lo[:, None] * (b - a)
+        cut[sel] = True
+
+
+_PROBES = 16
+
+
+def _split_around_occluder(view: View, batch: PolylineBatch,
+                           occluder: tuple[Floats, float]) -> PolylineBatch:
+    """A batch whose segments never hide their middle: a segment that passes behind the
+    sphere with both ends in view (a straight axis across a planet) is cut into
+    ``_PROBES`` pieces, so the end-point clipping below finds both limbs."""
+    centre = view.to_camera(np.asarray(occluder[0], dtype=np.float64).reshape(1, 3))[0]
+    s = (np.arange(1, _PROBES) / _PROBES)[None, :, None]
+    points: list[Floats] = []
+    for pts in batch.points:
+        a, b = pts[:-1], pts[1:]
+        probes = a[:, None, :] + (b - a)[:, None, :] * s
+        hid = hidden_by_sphere(view, view.to_camera(probes), centre, float(occluder[1]))
+        split = np.flatnonzero(hid.any(axis=1))
+        if split.size == 0:
+            points.append(pts)
+            continue
+        pieces = []
+        last = 0
+        for k in split:
+            pieces.append(pts[last:k + 1])
+            pieces.append(probes[k])
+            last = k + 1
+        pieces.append(pts[last:])
+        points.append(np.concatenate(pieces))
+    return PolylineBatch(points, list(batch.closed), list(batch.styles))
+
+
 def stroke_vertices(batch: PolylineBatch, view: View, margin_px: float = 8.0,
-                    height_scale: float = 1.0) -> Floats:
+                    height_scale: float = 1.0,
+                    occluder: tuple[Floats, float] | None = None) -> Floats:
     """All polylines of ``batch`` as stroke vertices (rows of STROKE_FLOATS, float64).
 
     ``height_scale`` multiplies every style's width (widths are given at 1080 px height).
+    ``occluder`` (centre m, radius m) is a sphere that hides what passes behind it (the
+    central body as drawn).
     """
     if not batch.points:
         return np.zeros((0, STROKE_FLOATS))
+    if occluder is not None:
+        batch = _split_around_occluder(view, batch, occluder)
     counts = np.array([len(p) for p in batch.points])
     pts = np.concatenate(batch.points)
     starts = np.concatenate([[0], np.cumsum(counts)])
@@ -142,11 +225,20 @@ def stroke_vertices(batch: PolylineBatch, view: View, margin_px: float = 8.0,
         c0, c1, kept, cut0, cut1 = _clip_near(c0, c1, view.near_m)
     p0 = view.camera_to_px(np.where(kept[:, None], c0, [0.0, 0.0, -1.0]))
     p1 = view.camera_to_px(np.where(kept[:, None], c1, [0.0, 0.0, -1.0]))
-    # Along-line distance from each polyline's start (before clipping to the image).
+    # Along-line distance from each polyline's start (before any other clipping, so
+    # that dashes run on across a gap).
     seg_len = np.where(kept, np.linalg.norm(p1 - p0, axis=1), 0.0)
     cum = np.cumsum(seg_len)
     line_base = np.concatenate([[0.0], cum])[first_seg][seg_line]
     along0 = cum - seg_len - line_base
+    if occluder is not None:
+        c0, c1 = c0.copy(), c1.copy()
+        _clip_occluded(view, c0, c1, kept, cut0, cut1, occluder)
+        n0 = view.camera_to_px(np.where(kept[:, None], c0, [0.0, 0.0, -1.0]))
+        n1 = view.camera_to_px(np.where(kept[:, None], c1, [0.0, 0.0, -1.0]))
+        along0 = along0 + np.linalg.norm(n0 - p0, axis=1)
+        p0, p1 = n0, n1
+        seg_len = np.where(kept, np.linalg.norm(p1 - p0, axis=1), 0.0)
     # Clip to the image plus a margin that holds the widest stroke.
     styles = batch.styles
     hw_line = np.array([0.5 * s.width_px * height_scale for s in styles])

@@ -8,6 +8,7 @@ Renderer or context is made, not when this package is imported.
 """
 
 from .context import GLUnavailable, headless_context
-from .renderer import Renderer, render_still
+from .renderer import Renderer, headless_renderer, render_still
 
-__all__ = ["GLUnavailable", "Renderer", "headless_context", "render_still"]
+__all__ = ["GLUnavailable", "Renderer", "headless_context", "headless_renderer",
+           "render_still"]

@@ -13,6 +13,8 @@ layering), no MSAA (the shaders anti-alias), premultiplied alpha throughout.
 
 from __future__ import annotations
 
+from collections.abc import Iterator
+from contextlib import contextmanager
 from dataclasses import dataclass
 from typing import Any
 
@@ -134,7 +136,8 @@ class Renderer:
 
     # --- drawing ------------------------------------------------------------------------
 
-    def draw(self, geom: FrameGeometry, framebuffer: Any, top_row_first: bool = False) -> None:
+    def draw(self, geom: FrameGeometry, framebuffer: Any, top_row_first: bool = False,
+             origin_px: tuple[int, int] = (0, 0)) -> None:
         """Draw ``geom`` into ``framebuffer`` (cleared to the frame's background first).
 
         The framebuffer's size must be the view's size; the window passes its screen
@@ -146,9 +149,12 @@ class Renderer:
         mgl = self._mgl
         w, h = geom.view.size_px
         framebuffer.use()
-        ctx.viewport = (0, 0, w, h)
+        # origin_px places the frame in a larger framebuffer (the dome's face atlas);
+        # the clear is limited to that rectangle.
+        ctx.viewport = (origin_px[0], origin_px[1], w, h)
         bg = geom.background
-        framebuffer.clear(bg[0] * bg[3], bg[1] * bg[3], bg[2] * bg[3], bg[3])
+        framebuffer.clear(bg[0] * bg[3], bg[1] * bg[3], bg[2] * bg[3], bg[3],
+                          viewport=ctx.viewport)
         ctx.disable(mgl.DEPTH_TEST | mgl.CULL_FACE)
         ctx.enable(mgl.BLEND | mgl.PROGRAM_POINT_SIZE)
         ctx.blend_func = mgl.ONE, mgl.ONE_MINUS_SRC_ALPHA
@@ -210,7 +216,7 @@ class Renderer:
         p["u_focal_px"].value = float(v.focal_px)
         p["u_distance_m"].value = float(v.distance_m)
         p["u_near_m"].value = float(v.near_m)
-        hs = v.size_px[1] / 1080.0
+        hs = v.style_scale
         p["u_point_px"].value = float(pop.point_size_px * hs)
         p["u_color"].value = (*pop.color, 0.85)
         gpu.vao.render(self._mgl.POINTS, vertices=c.count)
@@ -338,17 +344,24 @@ class Renderer:
         self._textures.clear()
 
 
-def render_still(scene: Scene, t_s: float, size_px: tuple[int, int] | None = None,
-                 camera: Camera | None = None, transparent: bool = False) -> UInt8s:
-    """One frame in a fresh headless context (see Renderer.render); frees it afterwards."""
+@contextmanager
+def headless_renderer() -> Iterator[Renderer]:
+    """A Renderer in a fresh headless context, both released on leaving the block."""
     from .context import headless_context
 
     ctx = headless_context()
     try:
         renderer = Renderer(ctx)
         try:
-            return renderer.render(scene, t_s, size_px, camera, transparent)
+            yield renderer
         finally:
             renderer.release()
     finally:
         ctx.release()
+
+
+def render_still(scene: Scene, t_s: float, size_px: tuple[int, int] | None = None,
+                 camera: Camera | None = None, transparent: bool = False) -> UInt8s:
+    """One frame in a fresh headless context (see Renderer.render); frees it afterwards."""
+    with headless_renderer() as renderer:
+        return renderer.render(scene, t_s, size_px, camera, transparent)

@@ -71,3 +71,26 @@ def demo_like_scene(population: int = 0) -> Scene:
         center=Center("Star", GM_SUN, 6.957e8, (1.0, 0.82, 0.5)),
         bodies=bodies, camera=Camera(width_m=5.0 * AU_M),
         render=RenderSettings(size_px=(1920, 1080), grid=True), populations=pops)
+
+
+def plain_scene(bodies: tuple[Body, ...], camera: Camera | None = None,
+                size_px: tuple[int, int] = (1600, 1200), show_center: bool = False,
+                labels: bool = False) -> Scene:
+    """Known geometry for measuring pictures: no stars, no grid, a black sky, the Sun's GM.
+
+    Bodies are drawn as given (their ``show``); the central body only if asked.
+    """
+    return Scene(
+        title="measured geometry", epoch=parse_epoch("2030-01-01T00:00:00 TDB"),
+        frame="ECLIPJ2000",
+        center=Center("Sun", GM_SUN, 6.957e8, (1.0, 0.82, 0.5), show_body=show_center,
+                      show_label=labels),
+        bodies=bodies, camera=camera or Camera(width_m=4.0 * AU_M),
+        render=RenderSettings(size_px=size_px, background=(0.0, 0.0, 0.0), stars=False,
+                              grid=False, labels=labels))
+
+
+def elements(a_au: float, e: float, i_deg: float = 0.0, raan_deg: float = 0.0,
+             argp_deg: float = 0.0, nu_deg: float = 0.0) -> Elements:
+    """Elements about the Sun's GM from au and degrees (for tests and docs)."""
+    return _el(a_au, e, i_deg, raan_deg, argp_deg, nu_deg)
