@@ -193,8 +193,11 @@ class Editor:
     # --- history ----------------------------------------------------------------------
 
     def _push(self, scene: Scene, selection: int | None, ids: tuple[int, ...],
-              label: str) -> None:
-        self._undo.append(self._now)
+              label: str, merge: bool = False) -> None:
+        # ``merge``: a continuing gesture (a colour or width being dragged) replaces the
+        # edit it continues instead of adding one undo step per frame.
+        if not (merge and self._undo and not self._redo and self._now.label == label):
+            self._undo.append(self._now)
         self._redo.clear()
         self._now = _State(scene, selection, ids, label)
         self.revision += 1
@@ -321,10 +324,11 @@ class Editor:
         self._push(self._with_bodies(bodies), j, tuple(ids),
                    f"move {self.scene.bodies[k].name}")
 
-    def _replace_body(self, k: int, body: Body, label: str) -> None:
+    def _replace_body(self, k: int, body: Body, label: str, merge: bool = False) -> None:
         bodies = list(self.scene.bodies)
         bodies[k] = body
-        self._push(self._with_bodies(bodies), self._now.selection, self._now.ids, label)
+        self._push(self._with_bodies(bodies), self._now.selection, self._now.ids, label,
+                   merge)
 
     # --- elements ---------------------------------------------------------------------
 
@@ -360,21 +364,25 @@ class Editor:
         show = replace(body.show, **{flag: bool(value)})
         self._replace_body(k, replace(body, show=show), f"{flag} of {body.name}")
 
-    def set_color(self, rgb: tuple[float, float, float], index: int | None = None) -> None:
+    def set_color(self, rgb: tuple[float, float, float], index: int | None = None,
+                  merge: bool = False) -> None:
+        """Set a body's colour (sRGB floats in [0, 1]); ``merge`` joins a dragged change
+        into one undo step."""
         k = self._index(index)
         body = self.scene.bodies[k]
         rgb = tuple(min(1.0, max(0.0, float(x))) for x in rgb)  # type: ignore[assignment]
         if rgb != body.color:
-            self._replace_body(k, replace(body, color=rgb), f"colour of {body.name}")
+            self._replace_body(k, replace(body, color=rgb), f"colour of {body.name}", merge)
 
-    def set_line_width(self, px: float, index: int | None = None) -> None:
+    def set_line_width(self, px: float, index: int | None = None, merge: bool = False) -> None:
+        """Set a body's line width in pixels at 1080 px image height."""
         k = self._index(index)
         body = self.scene.bodies[k]
         if not 0.0 < px <= 100.0:
             raise EditRefused("line_width", "the line width must be above 0 and at most 100 px")
         if px != body.line_width_px:
             self._replace_body(k, replace(body, line_width_px=float(px)),
-                               f"line width of {body.name}")
+                               f"line width of {body.name}", merge)
 
     def set_sweep(self, index: int | None = None, *, interval: str | None = None,
                   count: int | None = None, start: str | None = None,

@@ -100,20 +100,23 @@ def body_readout(scene: Scene, index: int, t_s: float) -> Readout:
     }
     L = scene.length_unit
     energy = values["specific_energy_j_kg"]
+    period_text = format_time(period)
+    if period is not None and not period_text.endswith(" d"):
+        period_text += f"  ({period / DAY_S:.6g} d)"
     rows: list[tuple[str, str]] = [
-        ("period", format_time(period) + (f"  ({period / DAY_S:.6g} d)" if period else "")),
+        ("period", period_text),
         ("semi-major axis a", format_length(values["a_m"], L)),
         ("eccentricity e", f"{e:.6g}"),
         ("periapsis radius", format_length(q, L)),
-        ("periapsis altitude", format_length(q - R, L)),
+        ("  altitude", format_length(q - R, L)),
+        ("  speed there", format_speed(values["speed_periapsis_m_s"])),
         ("apoapsis radius", format_length(Q, L)),
-        ("apoapsis altitude", format_length(None if Q is None else Q - R, L)),
-        ("speed at periapsis", format_speed(values["speed_periapsis_m_s"])),
-        ("speed at apoapsis", format_speed(values["speed_apoapsis_m_s"])),
+        ("  altitude", format_length(None if Q is None else Q - R, L)),
+        ("  speed there", format_speed(values["speed_apoapsis_m_s"])),
         ("distance now", format_length(values["distance_m"], L)),
         ("speed now", format_speed(values["speed_m_s"])),
         ("flight-path angle now", format_angle(values["flight_path_angle_rad"])),
-        ("since periapsis", format_time(values["time_since_periapsis_s"])),
+        ("time since periapsis", format_time(values["time_since_periapsis_s"])),
         ("specific energy", f"{(energy or 0.0) / 1e6:.6g} MJ/kg"),
         ("angular momentum h", f"{values['h_m2_s'] / 1e6:.6g} km^2/s"),  # type: ignore[operator]
     ]

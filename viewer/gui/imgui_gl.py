@@ -1,0 +1,206 @@
+"""imgui on moderngl and pyglet: draws imgui's draw data, feeds it pyglet's input.
+
+imgui-bundle's own pyglet backend draws through PyOpenGL; this one draws with moderngl
+(the context the scene renderer already uses), with its shaders as files
+(``shaders/panel.vert``, ``panel.frag``), and honours imgui's texture protocol (the font
+atlas is created and updated by imgui, uploaded here). ``PanelInput`` turns pyglet
+window events into imgui input events; it holds no state of its own beyond the imgui io.
+"""
+
+from __future__ import annotations
+
+import ctypes
+from typing import Any
+
+from imgui_bundle import imgui
+
+from ..render.shaders import load_program
+
+
+class PanelRenderer:
+    """Draws ``imgui.get_draw_data()`` into the current framebuffer of ``ctx``."""
+
+    def __init__(self, ctx: Any) -> None:
+        import moderngl
+
+        self.ctx = ctx
+        self._mgl = moderngl
+        self.program = load_program(ctx, "panel")
+        self._vbo = ctx.buffer(reserve=1 << 16, dynamic=True)
+        self._ibo = ctx.buffer(reserve=1 << 16, dynamic=True)
+        self._vao = self._make_vao()
+        self._textures: dict[int, Any] = {}
+        io = imgui.get_io()
+        io.backend_flags |= imgui.BackendFlags_.renderer_has_textures
+        size = int(ctx.info["GL_MAX_TEXTURE_SIZE"])
+        pio = imgui.get_platform_io()
+        pio.renderer_texture_max_width = size
+        pio.renderer_texture_max_height = size
+
+    def _make_vao(self) -> Any:
+        return self.ctx.vertex_array(
+            self.program, [(self._vbo, "2f 2f 4f1", "in_pos_px", "in_uv", "in_color")],
+            index_buffer=self._ibo, index_element_size=imgui.INDEX_SIZE)
+
+    def _ensure(self, vbytes: int, ibytes: int) -> None:
+        grow = False
+        if vbytes > self._vbo.size:
+            self._vbo.orphan(max(vbytes, 2 * self._vbo.size))
+            grow = True
+        if ibytes > self._ibo.size:
+            self._ibo.orphan(max(ibytes, 2 * self._ibo.size))
+            grow = True
+        if grow:
+            self._vao.release()
+            self._vao = self._make_vao()
+
+    # --- textures (imgui >= 1.92 creates and updates them through the backend) ----------
+
+    def _update_textures(self) -> None:
+        for tex in imgui.get_platform_io().textures:
+            status = tex.status
+            if status == imgui.ImTextureStatus.ok:
+                continue
+            if status in (imgui.ImTextureStatus.want_create, imgui.ImTextureStatus.want_updates):
+                pixels = tex.get_pixels_array()
+                gl_tex = self._textures.get(int(tex.tex_id)) if tex.tex_id else None
+                if gl_tex is None or gl_tex.size != (tex.width, tex.height):
+                    if gl_tex is not None:
+                        self._textures.pop(gl_tex.glo, None)
+                        gl_tex.release()
+                    gl_tex = self.ctx.texture((tex.width, tex.height), 4, pixels.tobytes())
+                    gl_tex.filter = (self._mgl.LINEAR, self._mgl.LINEAR)
+                    gl_tex.repeat_x = gl_tex.repeat_y = False
+                    self._textures[gl_tex.glo] = gl_tex
+                    tex.set_tex_id(gl_tex.glo)
+                else:  # a whole upload is simpler than sub-rectangles and cheap for atlases
+                    gl_tex.write(pixels.tobytes())
+                tex.status = imgui.ImTextureStatus.ok
+            elif status == imgui.ImTextureStatus.want_destroy:
+                gl_tex = self._textures.pop(int(tex.tex_id), None)
+                if gl_tex is not None:
+                    gl_tex.release()
+                tex.set_tex_id(0)
+                tex.status = imgui.ImTextureStatus.destroyed
+
+    # --- drawing ----------------------------------------------------------------------
+
+    def render(self, draw_data: Any, framebuffer_size: tuple[int, int]) -> None:
+        """Draw one frame of panels over whatever is in the framebuffer."""
+        self._update_textures()
+        io = imgui.get_io()
+        dw, dh = io.display_size.x, io.display_size.y
+        fw, fh = framebuffer_size
+        if fw <= 0 or fh <= 0 or dw <= 0 or dh <= 0:
+            return
+        sx, sy = fw / dw, fh / dh
+        ctx = self.ctx
+        mgl = self._mgl
+        ctx.viewport = (0, 0, fw, fh)
+        ctx.enable_only(mgl.BLEND)
+        ctx.blend_func = (mgl.SRC_ALPHA, mgl.ONE_MINUS_SRC_ALPHA, mgl.ONE, mgl.ONE_MINUS_SRC_ALPHA)
+        ctx.blend_equation = mgl.FUNC_ADD
+        self.program["u_display_px"].value = (float(dw), float(dh))
+        self.program["u_texture"].value = 0
+        vsize, isize = imgui.VERTEX_SIZE, imgui.INDEX_SIZE
+        try:
+            for cmds in draw_data.cmd_lists:
+                nv, ni = cmds.vtx_buffer.size(), cmds.idx_buffer.size()
+                self._ensure(nv * vsize, ni * isize)
+                self._vbo.write(ctypes.string_at(cmds.vtx_buffer.data_address(), nv * vsize))
+                self._ibo.write(ctypes.string_at(cmds.idx_buffer.data_address(), ni * isize))
+                for cmd in cmds.cmd_buffer:
+                    tex = self._textures.get(int(cmd.tex_ref.get_tex_id()))
+                    if tex is not None:
+                        tex.use(0)
+                    x0, y0, x1, y1 = cmd.clip_rect
+                    x0, x1 = max(0.0, x0 * sx), min(float(fw), x1 * sx)
+                    y0, y1 = max(0.0, y0 * sy), min(float(fh), y1 * sy)
+                    if x1 <= x0 or y1 <= y0:
+                        continue
+                    ctx.scissor = (int(x0), int(fh - y1), int(x1 - x0), int(y1 - y0))
+                    self._vao.render(mgl.TRIANGLES, vertices=cmd.elem_count,
+                                     first=cmd.idx_offset)
+        finally:
+            ctx.scissor = None
+
+    def release(self) -> None:
+        for tex in self._textures.values():
+            tex.release()
+        self._textures.clear()
+        self._vao.release()
+        self._vbo.release()
+        self._ibo.release()
+        self.program.release()
+
+
+def _key_map() -> dict[int, Any]:
+    from pyglet.window import key
+
+    K = imgui.Key
+    out: dict[int, Any] = {}
+    for c in "abcdefghijklmnopqrstuvwxyz":
+        out[getattr(key, c.upper())] = getattr(K, c)
+    for d in "0123456789":
+        out[getattr(key, f"_{d}")] = getattr(K, f"_{d}")
+        out[getattr(key, f"NUM_{d}")] = getattr(K, f"keypad{d}")
+    named = {
+        "TAB": "tab", "BACKSPACE": "backspace", "RETURN": "enter", "ENTER": "enter",
+        "NUM_ENTER": "keypad_enter", "ESCAPE": "escape", "DELETE": "delete",
+        "INSERT": "insert", "SPACE": "space", "LEFT": "left_arrow", "RIGHT": "right_arrow",
+        "UP": "up_arrow", "DOWN": "down_arrow", "HOME": "home", "END": "end",
+        "PAGEUP": "page_up", "PAGEDOWN": "page_down", "LCTRL": "left_ctrl",
+        "RCTRL": "right_ctrl", "LSHIFT": "left_shift", "RSHIFT": "right_shift",
+        "LALT": "left_alt", "RALT": "right_alt", "MINUS": "minus", "EQUAL": "equal",
+        "PERIOD": "period", "COMMA": "comma", "SLASH": "slash", "SEMICOLON": "semicolon",
+        "BRACKETLEFT": "left_bracket", "BRACKETRIGHT": "right_bracket",
+        "NUM_DECIMAL": "keypad_decimal", "NUM_SUBTRACT": "keypad_subtract",
+        "NUM_ADD": "keypad_add", "F1": "f1", "F2": "f2", "F3": "f3",
+    }
+    for pk, ik in named.items():
+        if hasattr(key, pk):
+            out[getattr(key, pk)] = getattr(K, ik)
+    return out
+
+
+class PanelInput:
+    """pyglet window events -> imgui io events (positions in imgui's top-down pixels)."""
+
+    def __init__(self, height_px: int) -> None:
+        self.io = imgui.get_io()
+        self.height_px = height_px
+        self.keys = _key_map()
+
+    def mouse_move(self, x: float, y: float) -> None:
+        self.io.add_mouse_pos_event(float(x), float(self.height_px - y))
+
+    def mouse_button(self, x: float, y: float, button: int, down: bool) -> None:
+        from pyglet.window import mouse
+
+        self.mouse_move(x, y)
+        index = {mouse.LEFT: 0, mouse.RIGHT: 1, mouse.MIDDLE: 2}.get(button)
+        if index is not None:
+            self.io.add_mouse_button_event(index, down)
+
+    def scroll(self, dx: float, dy: float) -> None:
+        self.io.add_mouse_wheel_event(float(dx), float(dy))
+
+    def key(self, symbol: int, modifiers: int, down: bool) -> None:
+        from pyglet.window import key
+
+        io = self.io
+        for mod, mask, symbols in ((imgui.Key.mod_ctrl, key.MOD_CTRL, (key.LCTRL, key.RCTRL)),
+                                   (imgui.Key.mod_shift, key.MOD_SHIFT,
+                                    (key.LSHIFT, key.RSHIFT)),
+                                   (imgui.Key.mod_alt, key.MOD_ALT, (key.LALT, key.RALT))):
+            # The modifier key itself: its own press or release decides (pyglet's
+            # modifiers may still show the state before the event).
+            io.add_key_event(mod, down if symbol in symbols else bool(modifiers & mask))
+        k = self.keys.get(symbol)
+        if k is not None:
+            io.add_key_event(k, down)
+
+    def text(self, text: str) -> None:
+        for ch in text:
+            if ch >= " ":
+                self.io.add_input_character(ord(ch))

@@ -1,0 +1,607 @@
+"""The imgui panels of the viewer. They read the Session and call the editor; nothing else.
+
+Layout (our own): a menu bar; on the left "Bodies" (the list and the central body) above
+"Marks" (drawing toggles, style, equal-time sectors); on the right "Orbit" (the element
+editor and its lock) above "Numbers" (the live readout); along the bottom "Time". A help
+overlay lists the shortcuts; modal prompts ask before quitting with unsaved changes and
+for a file name on save-as. Every number shown carries its unit.
+
+``Panels.report`` collects, per frame, the screen rectangles of the named inputs and the
+texts of the readout, so tests (and the docs' screenshot script) can drive the window
+through the X server and read what it shows.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from imgui_bundle import imgui
+
+from ..errors import UserInputError
+from ..orbit import DAY_S, swept_area
+from ..units import QuantityError, parse_quantity
+from .camera_input import focus, preset
+from .clock import Clock, next_apsis_s
+from .editor import Editor, EditRefused
+from .readout import body_readout, format_time
+
+MENU_H = 26.0
+LEFT_W = 340.0
+RIGHT_W = 430.0
+TIME_H = 92.0
+GAP = 6.0
+
+AMBER = imgui.ImVec4(1.0, 0.75, 0.3, 1.0)
+RED = imgui.ImVec4(1.0, 0.45, 0.4, 1.0)
+DIM = imgui.ImVec4(0.65, 0.68, 0.72, 1.0)
+
+#: Element fields in the order shown, with their labels.
+ELEMENT_ROWS = (
+    ("a", "a  semi-major axis"), ("e", "e  eccentricity"), ("i", "i  inclination"),
+    ("raan", "RAAN  node longitude"), ("argp", "argp  arg. of periapsis"),
+    ("M", "M  mean anomaly at epoch"), ("nu", "nu  true anomaly at epoch"),
+)
+#: The same size in the forms users think in: (label, radius field, altitude field).
+FORM_ROWS = (
+    ("periapsis", "periapsis", "periapsis_altitude"),
+    ("apoapsis", "apoapsis", "apoapsis_altitude"),
+)
+LOCKS = (("auto", "natural partner"), ("a", "a and period"), ("e", "e"),
+         ("periapsis", "periapsis"), ("apoapsis", "apoapsis"))
+LOCKS_PER_LINE = 3
+SHOW_LABELS = (("orbit", "orbit"), ("marker", "marker"), ("label", "label"),
+               ("foci", "both foci"), ("axes", "axes"), ("apsides", "apsides"),
+               ("nodes", "line of nodes"), ("velocity", "velocity arrow"),
+               ("sweep", "equal-time sectors"))
+SHORTCUTS = (
+    ("Space", "play / pause"), ("Left / Right", "step one frame back / on"),
+    ("[  /  ]", "halve / double the rate"), ("Home", "back to the timeline start"),
+    ("P / O", "jump to the next periapsis / apoapsis (selected body)"),
+    ("Ctrl+Z / Ctrl+Y", "undo / redo"), ("Ctrl+S", "save"), ("Ctrl+Shift+S", "save as"),
+    ("Ctrl+N / Ctrl+D", "add a body / duplicate the selected one"),
+    ("Up / Down", "select the previous / next body"),
+    ("T / E", "top view / edge view"), ("F / C", "follow the selected body / the centre"),
+    ("drag", "turn the view"), ("right-drag, Shift+drag", "pan"),
+    ("wheel", "zoom toward the cursor"), ("Enter", "apply a typed value"),
+    ("Esc", "leave a field unchanged"), ("F1 or H", "this help"),
+    ("Ctrl+Q", "quit (asks first if there are unsaved changes)"),
+)
+
+
+@dataclass
+class Session:
+    """What the window shows: the editor, the clock, the camera and the open dialogs."""
+
+    editor: Editor
+    clock: Clock
+    camera: Any
+    show_help: bool = False
+    show_plots: bool = False
+    message: str = ""
+    quit_prompt: bool = False
+    quit_now: bool = False
+    save_as_prompt: bool = False
+    save_as_text: str = ""
+
+    def request_quit(self) -> None:
+        if self.editor.dirty:
+            self.quit_prompt = True
+        else:
+            self.quit_now = True
+
+    def save(self) -> None:
+        try:
+            path = self.editor.save()
+            self.message = f"saved {path}"
+        except UserInputError as err:
+            if self.editor.path is None:
+                self.open_save_as()
+            else:
+                self.message = "not saved: " + "; ".join(err.problems)
+
+    def open_save_as(self) -> None:
+        self.save_as_prompt = True
+        self.save_as_text = str(self.editor.path or Path.cwd() / "scene.toml")
+
+
+def _rect() -> tuple[float, float, float, float]:
+    a, b = imgui.get_item_rect_min(), imgui.get_item_rect_max()
+    return (a.x, a.y, b.x, b.y)
+
+
+@dataclass
+class Panels:
+    """The panels' own state: text being typed and refusals, per field."""
+
+    buffers: dict[tuple[int, str], str] = field(default_factory=dict)
+    errors: dict[tuple[int, str], str] = field(default_factory=dict)
+    rename_text: dict[int, str] = field(default_factory=dict)
+    rate_text: str | None = None
+    rate_error: str = ""
+    center_text: dict[str, str] = field(default_factory=dict)
+    center_error: str = ""
+    sweep_error: str = ""
+    report: dict[str, Any] = field(default_factory=dict)
+
+    def draw(self, s: Session, size: tuple[int, int]) -> None:
+        """All panels for one frame (call between imgui.new_frame and imgui.render)."""
+        w, h = float(size[0]), float(size[1])
+        self.report = {"rects": {}, "readout": [], "values": {}, "dirty": s.editor.dirty,
+                       "prompt": "unsaved" if s.quit_prompt else ""}
+        self._menu(s)
+        top = MENU_H + GAP
+        split = top + min(250.0, 0.33 * h)
+        self._bodies(s, (GAP, top), (LEFT_W, split - top))
+        self._marks(s, (GAP, split + GAP), (LEFT_W, h - split - TIME_H - 3 * GAP))
+        split = top + min(470.0, 0.56 * h)
+        self._orbit(s, (w - RIGHT_W - GAP, top), (RIGHT_W, split - top))
+        self._numbers(s, (w - RIGHT_W - GAP, split + GAP),
+                      (RIGHT_W, h - split - TIME_H - 3 * GAP))
+        self._time(s, (GAP, h - TIME_H - GAP), (w - 2 * GAP, TIME_H))
+        if s.show_help:
+            self._help(s, w, h)
+        self._quit_prompt(s)
+        self._save_as(s)
+
+    # --- helpers --------------------------------------------------------------------------
+
+    @staticmethod
+    def _window(name: str, pos: tuple[float, float], size: tuple[float, float]) -> bool:
+        imgui.set_next_window_pos(imgui.ImVec2(*pos), imgui.Cond_.first_use_ever)
+        imgui.set_next_window_size(imgui.ImVec2(*size), imgui.Cond_.first_use_ever)
+        return imgui.begin(name, None, imgui.WindowFlags_.no_collapse)[0]
+
+    def _field(self, s: Session, k: int, name: str, width: float = -1.0) -> None:
+        """One element input: shows the value with its unit; Enter (or leaving the field
+        after typing) applies it through the editor; a refusal stays in place in red."""
+        ed = s.editor
+        key = (k, name)
+        current = ed.field_text(name, k)
+        text = self.buffers.get(key, current)
+        imgui.set_next_item_width(width)
+        flags = imgui.InputTextFlags_.enter_returns_true | imgui.InputTextFlags_.auto_select_all
+        entered, text = imgui.input_text(f"##{name}", text, flags)
+        self.report["rects"][name] = _rect()
+        if imgui.is_item_active():
+            if text != self.buffers.get(key, current):
+                self.errors.pop(key, None)
+            self.buffers[key] = text
+        if entered or imgui.is_item_deactivated_after_edit():
+            try:
+                ed.set_field(name, text, k)
+                self.buffers.pop(key, None)
+                self.errors.pop(key, None)
+            except EditRefused as err:
+                self.errors[key] = err.problems[0]
+                self.buffers[key] = text
+        elif not imgui.is_item_active() and key not in self.errors:
+            self.buffers.pop(key, None)
+        if key in self.errors:
+            imgui.push_text_wrap_pos(0.0)
+            imgui.text_colored(RED, "refused: " + self.errors[key])
+            imgui.pop_text_wrap_pos()
+
+    def _button(self, label: str, size: Any = None) -> bool:
+        """A button whose rectangle is reported under "button:<label>"."""
+        pressed = imgui.button(label) if size is None else imgui.button(label, size)
+        self.report["rects"]["button:" + label.split("##")[0]] = _rect()
+        return pressed
+
+    # --- menu -----------------------------------------------------------------------------
+
+    def _menu(self, s: Session) -> None:
+        ed = s.editor
+        if not imgui.begin_main_menu_bar():
+            return
+        if imgui.begin_menu("File"):
+            if imgui.menu_item_simple("Save", "Ctrl+S"):
+                s.save()
+            if imgui.menu_item_simple("Save as...", "Ctrl+Shift+S"):
+                s.open_save_as()
+            imgui.separator()
+            if imgui.menu_item_simple("Quit", "Ctrl+Q"):
+                s.request_quit()
+            imgui.end_menu()
+        if imgui.begin_menu("Edit"):
+            if imgui.menu_item_simple(f"Undo {ed.undo_label}", "Ctrl+Z", False, ed.can_undo):
+                ed.undo()
+            if imgui.menu_item_simple(f"Redo {ed.redo_label}", "Ctrl+Y", False, ed.can_redo):
+                ed.redo()
+            imgui.end_menu()
+        if imgui.begin_menu("View"):
+            if imgui.menu_item_simple("From the top", "T"):
+                s.camera = preset(s.camera, "top")
+            if imgui.menu_item_simple("Along the edge", "E"):
+                s.camera = preset(s.camera, "edge")
+            if imgui.menu_item_simple("Follow the selected body", "F", False,
+                                      ed.body is not None) and ed.body is not None:
+                s.camera = focus(s.camera, ed.body.name)
+            if imgui.menu_item_simple("Centre on the central body", "C"):
+                s.camera = focus(s.camera, "center")
+            imgui.end_menu()
+        if imgui.begin_menu("Help"):
+            if imgui.menu_item_simple("Shortcuts", "F1"):
+                s.show_help = not s.show_help
+            imgui.end_menu()
+        title = ed.path.name if ed.path else "new scene"
+        state = "unsaved changes" if ed.dirty else "saved"
+        imgui.text_colored(DIM, f"   {ed.scene.title}  -  {title}  ({state})")
+        if s.message:
+            imgui.text_colored(AMBER, "   " + s.message)
+        imgui.end_main_menu_bar()
+
+    # --- bodies ---------------------------------------------------------------------------
+
+    def _bodies(self, s: Session, pos: tuple[float, float], size: tuple[float, float]) -> None:
+        ed = s.editor
+        if self._window("Bodies", pos, size):
+            for k, b in enumerate(ed.scene.bodies):
+                imgui.color_button(f"##c{k}", imgui.ImVec4(*b.color, 1.0),
+                                   imgui.ColorEditFlags_.no_tooltip, imgui.ImVec2(12, 12))
+                imgui.same_line()
+                clicked, _ = imgui.selectable(f"{b.name}##b{k}", ed.selection == k)
+                if clicked:
+                    ed.select(k)
+            imgui.separator()
+            if self._button("Add"):
+                ed.add_body()
+            imgui.same_line()
+            has = ed.body is not None
+            imgui.begin_disabled(not has)
+            if self._button("Duplicate"):
+                ed.duplicate()
+            imgui.same_line()
+            if self._button("Remove"):
+                ed.delete()
+            imgui.same_line()
+            if imgui.arrow_button("##up", imgui.Dir.up) and has:
+                ed.move((ed.selection or 0) - 1)
+            imgui.same_line()
+            if imgui.arrow_button("##down", imgui.Dir.down) and has:
+                ed.move((ed.selection or 0) + 1)
+            imgui.end_disabled()
+            k = ed.selection
+            if k is not None:
+                name = self.rename_text.get(k, ed.scene.bodies[k].name)
+                imgui.set_next_item_width(-70)
+                entered, name = imgui.input_text(
+                    "name##rename", name, imgui.InputTextFlags_.enter_returns_true)
+                self.rename_text[k] = name
+                if entered:
+                    try:
+                        ed.rename(name)
+                        self.rename_text.pop(k, None)
+                        s.message = ""
+                    except EditRefused as err:
+                        s.message = "name refused: " + err.problems[0]
+                elif not imgui.is_item_active():
+                    self.rename_text.pop(k, None)
+            if imgui.collapsing_header("Central body"):
+                self._center(s)
+        imgui.end()
+
+    def _center(self, s: Session) -> None:
+        ed = s.editor
+        c = ed.scene.center
+        rows = (("name", c.name), ("gm", f"{c.gm_m3_s2:.10g} m3/s2"),
+                ("radius", f"{c.radius_m / 1e3:.10g} km"))
+        for key, value in rows:
+            text = self.center_text.get(key, value)
+            imgui.set_next_item_width(-70)
+            entered, text = imgui.input_text(f"{key}##center", text,
+                                             imgui.InputTextFlags_.enter_returns_true)
+            if imgui.is_item_active() or entered:
+                self.center_text[key] = text
+            else:
+                self.center_text.pop(key, None)
+            if entered:
+                try:
+                    ed.set_center(**{key: text})
+                    self.center_error = ""
+                    self.center_text.pop(key, None)
+                except EditRefused as err:
+                    self.center_error = err.problems[0]
+        if self.center_error:
+            imgui.text_colored(RED, "refused: " + self.center_error)
+
+    # --- marks ----------------------------------------------------------------------------
+
+    def _marks(self, s: Session, pos: tuple[float, float], size: tuple[float, float]) -> None:
+        ed = s.editor
+        if self._window("Marks", pos, size):
+            b = ed.body
+            if b is None:
+                imgui.text_colored(DIM, "Select a body to choose what is drawn.")
+            else:
+                imgui.text(f"Drawn for {b.name}:")
+                for i, (flag, label) in enumerate(SHOW_LABELS):
+                    if i % 2:
+                        imgui.same_line(170)
+                    changed, on = imgui.checkbox(label, getattr(b.show, flag))
+                    if changed:
+                        ed.set_show(flag, on)
+                changed, col = imgui.color_edit3("colour", list(b.color),
+                                                 imgui.ColorEditFlags_.no_inputs)
+                if changed:  # one undo step per drag, however many frames it takes
+                    ed.set_color(tuple(col), merge=True)  # type: ignore[arg-type]
+                imgui.set_next_item_width(150)
+                changed, width = imgui.slider_float("line width (px)", b.line_width_px, 0.5,
+                                                    8.0, "%.1f px")
+                if changed:
+                    ed.set_line_width(width, merge=True)
+                if b.show.sweep and b.sweep is not None:
+                    self._sectors(s)
+        imgui.end()
+
+    def _sectors(self, s: Session) -> None:
+        ed = s.editor
+        b = ed.body
+        assert b is not None and b.sweep is not None
+        sw = b.sweep
+        imgui.separator_text("Equal-time sectors")
+        imgui.set_next_item_width(120)
+        changed, count = imgui.input_int("count", sw.count)
+        if changed:
+            self._try_sweep(ed, count=count)
+        imgui.set_next_item_width(160)
+        entered, text = imgui.input_text("interval", format_time(sw.interval_s),
+                                         imgui.InputTextFlags_.enter_returns_true)
+        if entered:
+            self._try_sweep(ed, interval=text)
+        imgui.set_next_item_width(150)
+        changed, op = imgui.slider_float("opacity", sw.opacity, 0.0, 1.0, "%.2f")
+        if changed:
+            self._try_sweep(ed, opacity=op)
+        if self.sweep_error:
+            imgui.text_colored(RED, "refused: " + self.sweep_error)
+        areas = [float(swept_area(b.elements, t0 - b.epoch_offset_s, t1 - b.epoch_offset_s))
+                 for t0, t1 in sw.bounds_s()]
+        unit, f = ("km^2", 1e6) if max(areas) < 1e18 else ("au^2", 149_597_870_700.0**2)
+        imgui.text("areas, side by side:")
+        imgui.text_wrapped("  ".join(f"{a / f:.5g}" for a in areas) + f"  {unit}")
+        if len(areas) > 1 and min(areas) > 0:
+            spread = (max(areas) - min(areas)) / max(areas)
+            imgui.text_colored(DIM, f"largest minus smallest: {spread * 100:.2g} % of the largest")
+
+    def _try_sweep(self, ed: Editor, **changes: Any) -> None:
+        try:
+            ed.set_sweep(**changes)
+            self.sweep_error = ""
+        except EditRefused as err:
+            self.sweep_error = err.problems[0]
+
+    # --- orbit (element editor) -----------------------------------------------------------
+
+    def _orbit(self, s: Session, pos: tuple[float, float], size: tuple[float, float]) -> None:
+        ed = s.editor
+        if self._window("Orbit", pos, size):
+            k = ed.selection
+            if k is None:
+                imgui.text_colored(DIM, "Select or add a body to edit its orbit.")
+            else:
+                b = ed.scene.bodies[k]
+                imgui.text(f"{b.name}: type a value with its unit, then Enter.")
+                imgui.text("Keep fixed while changing the shape:")
+                for i, (hold, label) in enumerate(LOCKS):
+                    if i % LOCKS_PER_LINE:
+                        imgui.same_line()
+                    if imgui.radio_button(f"{label}##lock", ed.hold == hold):
+                        ed.hold = hold
+                    self.report["rects"][f"lock:{hold}"] = _rect()
+                imgui.separator_text("Elements")
+                self._rows(s, k, ELEMENT_ROWS)
+                imgui.separator_text("The same size as radius, altitude, period")
+                self._forms(s, k)
+        imgui.end()
+
+    def _rows(self, s: Session, k: int, rows: tuple[tuple[str, str], ...]) -> None:
+        if not imgui.begin_table(f"rows{rows[0][0]}", 2, imgui.TableFlags_.sizing_stretch_prop):
+            return
+        imgui.table_setup_column("what", imgui.TableColumnFlags_.width_fixed, 190)
+        imgui.table_setup_column("value", imgui.TableColumnFlags_.width_stretch)
+        for name, label in rows:
+            imgui.table_next_row()
+            imgui.table_next_column()
+            imgui.align_text_to_frame_padding()
+            imgui.text(label)
+            imgui.table_next_column()
+            self._field(s, k, name)
+        imgui.end_table()
+
+    def _forms(self, s: Session, k: int) -> None:
+        if not imgui.begin_table("forms", 3, imgui.TableFlags_.sizing_stretch_same):
+            return
+        imgui.table_setup_column("what", imgui.TableColumnFlags_.width_fixed, 90)
+        imgui.table_setup_column("radius", imgui.TableColumnFlags_.width_stretch)
+        imgui.table_setup_column("altitude", imgui.TableColumnFlags_.width_stretch)
+        imgui.table_next_row()
+        imgui.table_next_column()
+        imgui.table_next_column()
+        imgui.text_colored(DIM, "radius")
+        imgui.table_next_column()
+        imgui.text_colored(DIM, "altitude")
+        for label, radius, altitude in FORM_ROWS:
+            imgui.table_next_row()
+            imgui.table_next_column()
+            imgui.align_text_to_frame_padding()
+            imgui.text(label)
+            imgui.table_next_column()
+            self._field(s, k, radius)
+            imgui.table_next_column()
+            self._field(s, k, altitude)
+        imgui.table_next_row()
+        imgui.table_next_column()
+        imgui.align_text_to_frame_padding()
+        imgui.text("period")
+        imgui.table_next_column()
+        self._field(s, k, "period")
+        imgui.end_table()
+
+    # --- numbers (readout) ----------------------------------------------------------------
+
+    def _numbers(self, s: Session, pos: tuple[float, float], size: tuple[float, float]) -> None:
+        ed = s.editor
+        if self._window("Numbers", pos, size):
+            k = ed.selection
+            if k is None:
+                imgui.text_colored(DIM, "No body selected.")
+            else:
+                r = body_readout(ed.scene, k, s.clock.t_s)
+                self.report["readout"] = [list(row) for row in r.rows]
+                self.report["values"] = r.values
+                if imgui.begin_table("readout", 2, imgui.TableFlags_.row_bg):
+                    imgui.table_setup_column("q", imgui.TableColumnFlags_.width_fixed, 170)
+                    imgui.table_setup_column("v", imgui.TableColumnFlags_.width_stretch)
+                    for label, text in r.rows:
+                        imgui.table_next_row()
+                        imgui.table_next_column()
+                        imgui.text_colored(DIM, label)
+                        imgui.table_next_column()
+                        imgui.text(text)
+                    imgui.end_table()
+                for w in r.warnings:
+                    imgui.push_text_wrap_pos(0.0)
+                    imgui.text_colored(AMBER, "warning: " + w)
+                    imgui.pop_text_wrap_pos()
+                self.report["warnings"] = list(r.warnings)
+        imgui.end()
+
+    # --- time -----------------------------------------------------------------------------
+
+    def _time(self, s: Session, pos: tuple[float, float], size: tuple[float, float]) -> None:
+        ed, clock = s.editor, s.clock
+        if self._window("Time", pos, size):
+            if self._button("Pause" if clock.playing else "Play", imgui.ImVec2(70, 0)):
+                clock.playing = not clock.playing
+            imgui.same_line()
+            if self._button("<|"):
+                clock.step(-1)
+            imgui.same_line()
+            if self._button("|>"):
+                clock.step(1)
+            imgui.same_line()
+            b = ed.body
+            for which, label in (("periapsis", "next periapsis"), ("apoapsis", "next apoapsis")):
+                imgui.begin_disabled(b is None)
+                if self._button(label) and b is not None:
+                    t = next_apsis_s(b, clock.t_s, which)
+                    if t is not None:
+                        clock.t_s = t
+                imgui.end_disabled()
+                imgui.same_line()
+            imgui.text("   rate")
+            imgui.same_line()
+            imgui.set_next_item_width(130)
+            shown = self.rate_text if self.rate_text is not None else _rate_text(clock.rate)
+            entered, text = imgui.input_text("##rate", shown,
+                                             imgui.InputTextFlags_.enter_returns_true)
+            self.report["rects"]["rate"] = _rect()
+            self.rate_text = text if imgui.is_item_active() else None
+            if entered:
+                try:
+                    clock.rate = parse_quantity(text, "rate", "d/s")
+                    self.rate_error = ""
+                except QuantityError as err:
+                    self.rate_error = str(err)
+            imgui.same_line()
+            when = ed.scene.epoch.plus_seconds(clock.t_s).iso()
+            imgui.text(f"   {when}   ({clock.t_s / DAY_S:+.3f} d since the scene epoch)")
+            if self.rate_error:
+                imgui.text_colored(RED, "rate refused: " + self.rate_error)
+            lo, hi = clock.span(ed.scene)
+            hi = max(hi, lo + DAY_S)
+            imgui.set_next_item_width(-1)
+            changed, days = imgui.slider_float("##scrub", clock.t_s / DAY_S, lo / DAY_S,
+                                               hi / DAY_S, "%.2f d")
+            if changed:
+                clock.t_s = days * DAY_S
+        imgui.end()
+
+    # --- overlays and prompts ----------------------------------------------------------------
+
+    def _help(self, s: Session, w: float, h: float) -> None:
+        imgui.set_next_window_pos(imgui.ImVec2(0.5 * w, 0.5 * h), imgui.Cond_.always,
+                                  imgui.ImVec2(0.5, 0.5))
+        imgui.set_next_window_bg_alpha(0.94)
+        opened, keep = imgui.begin("Shortcuts", True, imgui.WindowFlags_.always_auto_resize
+                                   | imgui.WindowFlags_.no_collapse)
+        if opened and imgui.begin_table("keys", 2):
+            for key, what in SHORTCUTS:
+                imgui.table_next_row()
+                imgui.table_next_column()
+                imgui.text_colored(AMBER, key)
+                imgui.table_next_column()
+                imgui.text(what)
+            imgui.end_table()
+        imgui.text_colored(DIM, "Two-body Keplerian model: not for operational navigation.")
+        imgui.end()
+        if keep is False:
+            s.show_help = False
+
+    def _quit_prompt(self, s: Session) -> None:
+        if s.quit_prompt and not imgui.is_popup_open("Unsaved changes"):
+            imgui.open_popup("Unsaved changes")
+        opened, _ = imgui.begin_popup_modal("Unsaved changes", None,
+                                            imgui.WindowFlags_.always_auto_resize)
+        if not opened:
+            return
+        imgui.text("This scene has changes that are not saved.")
+        if self._button("Save and quit"):
+            s.save()
+            if not s.editor.dirty:
+                s.quit_now = True
+            s.quit_prompt = False
+            imgui.close_current_popup()
+        self.report["rects"]["prompt:save"] = _rect()
+        imgui.same_line()
+        if self._button("Quit without saving"):
+            s.quit_now = True
+            imgui.close_current_popup()
+        self.report["rects"]["prompt:discard"] = _rect()
+        imgui.same_line()
+        if self._button("Keep editing") or imgui.is_key_pressed(imgui.Key.escape):
+            s.quit_prompt = False
+            imgui.close_current_popup()
+        self.report["rects"]["prompt:cancel"] = _rect()
+        imgui.end_popup()
+
+    def _save_as(self, s: Session) -> None:
+        if s.save_as_prompt and not imgui.is_popup_open("Save as"):
+            imgui.open_popup("Save as")
+        opened, _ = imgui.begin_popup_modal("Save as", None,
+                                            imgui.WindowFlags_.always_auto_resize)
+        if not opened:
+            return
+        imgui.text("File name (.toml):")
+        imgui.set_next_item_width(520)
+        entered, s.save_as_text = imgui.input_text("##saveas", s.save_as_text,
+                                                   imgui.InputTextFlags_.enter_returns_true)
+        if imgui.button("Save") or entered:
+            try:
+                path = s.editor.save(Path(s.save_as_text).expanduser())
+                s.message = f"saved {path}"
+                s.save_as_prompt = False
+                imgui.close_current_popup()
+            except UserInputError as err:
+                s.message = "not saved: " + "; ".join(err.problems)
+        imgui.same_line()
+        if imgui.button("Cancel") or imgui.is_key_pressed(imgui.Key.escape):
+            s.save_as_prompt = False
+            imgui.close_current_popup()
+        imgui.end_popup()
+
+
+def _rate_text(rate: float) -> str:
+    """A rate in the largest time unit per second that keeps it readable."""
+    for unit, f in (("yr", 365.25 * DAY_S), ("d", DAY_S), ("h", 3600.0), ("min", 60.0)):
+        if abs(rate) >= f:
+            return f"{rate / f:.6g} {unit}/s"
+    return f"{rate:.6g} s/s"
+
+
+def shortcut_list() -> tuple[tuple[str, str], ...]:
+    """The shortcuts the help overlay lists (key, what it does)."""
+    return SHORTCUTS
+

@@ -1,0 +1,362 @@
+"""The viewer window: a pyglet window owning the loop, the scene drawn by the shared
+renderer, the panels drawn by imgui on top.
+
+The loop draws only when something changed: an input event (then a few frames, so
+imgui settles), an edit, a camera move, or the clock playing. Otherwise it waits on the
+X connection, so an idle window uses no CPU. ``ViewerWindow.run(quit_after=N,
+screenshot=PNG)`` draws N frames, saves the whole window (panels included) and returns.
+
+No global state: the imgui context, the GL context and the session belong to the window.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import time
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from .camera_input import focus, orbit, pan, preset, zoom
+from .clock import Clock, next_apsis_s
+from .editor import Editor
+from .panels import Panels, Session
+
+#: Frames drawn after an input event, so imgui's hover and focus states settle.
+SETTLE_FRAMES = 3
+#: Longest wait for events when nothing moves, s (the loop wakes up to check quitting).
+IDLE_WAIT_S = 0.5
+BACKGROUND = (0.02, 0.024, 0.035)
+
+
+def _font_path() -> str | None:
+    from importlib import resources
+
+    p = resources.files("viewer").joinpath("fonts", "DejaVuSans.ttf")
+    return str(p) if p.is_file() else None
+
+
+class ViewerWindow:
+    """One scene in one window. ``editor`` holds the scene; ``size`` is (W, H) in px."""
+
+    def __init__(self, editor: Editor, size: tuple[int, int] = (1600, 900),
+                 visible: bool = True, ui_report: str | Path | None = None) -> None:
+        import moderngl
+        import pyglet
+        from imgui_bundle import imgui, implot
+
+        from .imgui_gl import PanelInput, PanelRenderer
+
+        self._pyglet = pyglet
+        self._imgui = imgui
+        self.editor = editor
+        config = pyglet.gl.Config(double_buffer=True, major_version=3, minor_version=3,
+                                  depth_size=0)
+        title = f"Perifocal - {editor.scene.title}"
+        try:
+            self.window = pyglet.window.Window(size[0], size[1], caption=title,
+                                               resizable=True, visible=visible, config=config)
+        except pyglet.window.NoSuchConfigException:
+            self.window = pyglet.window.Window(size[0], size[1], caption=title,
+                                               resizable=True, visible=visible)
+        self.ctx = moderngl.create_context()
+        self.imgui_ctx = imgui.create_context()
+        self.implot_ctx = implot.create_context()
+        io = imgui.get_io()
+        io.set_ini_filename("")  # layout is ours; nothing is written beside the scene
+        io.config_input_text_cursor_blink = False  # a blinking caret would need redraws
+        font = _font_path()
+        if font is not None:
+            io.fonts.add_font_from_file_ttf(font, 16.0)
+        imgui.style_colors_dark()
+        style = imgui.get_style()
+        style.window_rounding = 4.0
+        style.frame_rounding = 3.0
+        w, h = self.window.get_size()
+        io.display_size = imgui.ImVec2(float(w), float(h))
+        self.panel_renderer = PanelRenderer(self.ctx)
+        self.input = PanelInput(h)
+        self.renderer: Any = None
+        self.render_error = ""
+        try:
+            from ..render import Renderer
+
+            self.renderer = Renderer(self.ctx)
+        except Exception as err:  # the window still edits without the scene picture
+            self.render_error = f"the scene cannot be drawn: {err}"
+        self.session = Session(editor=editor, clock=Clock.for_scene(editor.scene),
+                               camera=editor.scene.camera, message=self.render_error)
+        self.panels = Panels()
+        self.ui_report = Path(ui_report) if ui_report is not None else None
+        self._pending = SETTLE_FRAMES
+        self._last_revision = -1
+        self._last_camera: Any = None
+        self._drag_view: Any = None
+        self._closed = False
+        self.frames_drawn = 0
+        self.frame_times_s: list[float] = []
+        self._attach()
+
+    # --- events ---------------------------------------------------------------------------
+
+    def _attach(self) -> None:
+        win = self.window
+        key = self._pyglet.window.key
+        mouse = self._pyglet.window.mouse
+        imgui = self._imgui
+
+        def wake() -> None:
+            self._pending = SETTLE_FRAMES
+
+        def on_mouse_motion(x: int, y: int, dx: int, dy: int) -> None:
+            self.input.mouse_move(x, y)
+            wake()
+
+        def on_mouse_press(x: int, y: int, button: int, mods: int) -> None:
+            self.input.mouse_button(x, y, button, True)
+            wake()
+
+        def on_mouse_release(x: int, y: int, button: int, mods: int) -> None:
+            self.input.mouse_button(x, y, button, False)
+            wake()
+
+        def on_mouse_drag(x: int, y: int, dx: int, dy: int, buttons: int, mods: int) -> None:
+            self.input.mouse_move(x, y)
+            wake()
+            if imgui.get_io().want_capture_mouse:
+                return
+            s = self.session
+            view = self._view()
+            if buttons & mouse.RIGHT or (buttons & mouse.LEFT and mods & key.MOD_SHIFT):
+                s.camera = pan(s.camera, view, dx, -dy)
+            elif buttons & mouse.LEFT:
+                s.camera = orbit(s.camera, dx, -dy)
+
+        def on_mouse_scroll(x: int, y: int, sx: float, sy: float) -> None:
+            self.input.mouse_move(x, y)
+            wake()
+            if imgui.get_io().want_capture_mouse:
+                self.input.scroll(sx, sy)
+                return
+            h = self.window.get_size()[1]
+            self.session.camera = zoom(self.session.camera, self._view(), sy, x, h - y)
+
+        def on_key_press(symbol: int, mods: int) -> bool:
+            self.input.key(symbol, mods, True)
+            wake()
+            self._shortcut(symbol, mods)
+            return True  # Escape must not close the window
+
+        def on_key_release(symbol: int, mods: int) -> None:
+            self.input.key(symbol, mods, False)
+            wake()
+
+        def on_text(text: str) -> None:
+            self.input.text(text)
+            wake()
+
+        def on_resize(w: int, h: int) -> None:
+            self.input.height_px = h
+            imgui.get_io().display_size = imgui.ImVec2(float(w), float(h))
+            wake()
+
+        def on_close() -> bool:
+            self.session.request_quit()
+            wake()
+            return True
+
+        def on_expose() -> None:
+            wake()
+
+        for handler in (on_mouse_motion, on_mouse_press, on_mouse_release, on_mouse_drag,
+                        on_mouse_scroll, on_key_press, on_key_release, on_text, on_resize,
+                        on_close, on_expose):
+            win.push_handlers(**{handler.__name__: handler})
+
+    def _shortcut(self, symbol: int, mods: int) -> None:
+        key = self._pyglet.window.key
+        s, ed, clock = self.session, self.editor, self.session.clock
+        ctrl = bool(mods & key.MOD_CTRL)
+        shift = bool(mods & key.MOD_SHIFT)
+        if ctrl:
+            if symbol == key.Z and not shift:
+                ed.undo()
+            elif symbol == key.Y or (symbol == key.Z and shift):
+                ed.redo()
+            elif symbol == key.S:
+                s.open_save_as() if shift else s.save()
+            elif symbol == key.Q:
+                s.request_quit()
+            elif symbol == key.N:
+                ed.add_body()
+            elif symbol == key.D and ed.body is not None:
+                ed.duplicate()
+            return
+        if self._imgui.get_io().want_text_input or s.quit_prompt or s.save_as_prompt:
+            return
+        if symbol == key.SPACE:
+            clock.playing = not clock.playing
+        elif symbol in (key.LEFT, key.RIGHT):
+            clock.step(1 if symbol == key.RIGHT else -1)
+        elif symbol == key.BRACKETLEFT:
+            clock.rate /= 2.0
+        elif symbol == key.BRACKETRIGHT:
+            clock.rate *= 2.0
+        elif symbol == key.HOME:
+            clock.t_s = ed.scene.timeline.start_s
+        elif symbol in (key.P, key.O) and ed.body is not None:
+            t = next_apsis_s(ed.body, clock.t_s, "periapsis" if symbol == key.P else "apoapsis")
+            if t is not None:
+                clock.t_s = t
+        elif symbol in (key.UP, key.DOWN) and ed.scene.bodies:
+            k = ed.selection if ed.selection is not None else 0
+            ed.select(max(0, min(len(ed.scene.bodies) - 1, k + (1 if symbol == key.DOWN
+                                                                 else -1))))
+        elif symbol == key.T:
+            s.camera = preset(s.camera, "top")
+        elif symbol == key.E:
+            s.camera = preset(s.camera, "edge")
+        elif symbol == key.F and ed.body is not None:
+            s.camera = focus(s.camera, ed.body.name)
+        elif symbol == key.C:
+            s.camera = focus(s.camera, "center")
+        elif symbol in (key.F1, key.H):
+            s.show_help = not s.show_help
+
+    # --- drawing --------------------------------------------------------------------------
+
+    def _view(self) -> Any:
+        from ..geometry.camera import view_for
+
+        s = self.session
+        size = self.window.get_framebuffer_size()
+        try:
+            return view_for(self.editor.scene, s.clock.t_s, size, s.camera)
+        except KeyError:  # the followed body was renamed or removed
+            s.camera = focus(s.camera, "center")
+            return view_for(self.editor.scene, s.clock.t_s, size, s.camera)
+
+    def _input_queued(self) -> bool:
+        """True while imgui still holds input events: it spreads a burst (a key pressed
+        and released between two frames, typed text) over several frames."""
+        return len(self._imgui.get_current_context().input_events_queue) > 0
+
+    def needs_frame(self) -> bool:
+        """True when the next frame would differ from the last one drawn."""
+        return (self._pending > 0 or self.session.clock.playing or self._input_queued()
+                or self.editor.revision != self._last_revision
+                or self.session.camera is not self._last_camera)
+
+    def draw(self) -> None:
+        """Draw one frame: the scene, then the panels over it (not flipped yet)."""
+        imgui = self._imgui
+        t0 = time.perf_counter()
+        # What this frame shows; an edit made by the panels below changes the revision
+        # again, so the loop draws the next frame at once (the edit is seen next frame).
+        self._last_revision = self.editor.revision
+        self._last_camera = self.session.camera
+        self.window.switch_to()
+        fw, fh = self.window.get_framebuffer_size()
+        self.ctx.screen.use()
+        self.ctx.viewport = (0, 0, fw, fh)
+        if self.renderer is not None:
+            try:
+                view = self._view()
+                geom = self.renderer.geometry(self.editor.scene, self.session.clock.t_s, view)
+                self.renderer.draw(geom, self.ctx.screen)
+            except Exception as err:  # keep the editor usable; say what went wrong
+                self.session.message = f"the scene cannot be drawn: {err}"
+                self.ctx.clear(*BACKGROUND)
+        else:
+            self.ctx.clear(*BACKGROUND)
+        imgui.get_io().delta_time = 1.0 / 60.0
+        imgui.new_frame()
+        self.panels.draw(self.session, self.window.get_size())
+        imgui.render()
+        self.panel_renderer.render(imgui.get_draw_data(), (fw, fh))
+        self.frames_drawn += 1
+        self.frame_times_s.append(time.perf_counter() - t0)
+        if self.ui_report is not None:
+            self._write_report()
+
+    def _write_report(self) -> None:
+        assert self.ui_report is not None
+        r = dict(self.panels.report)
+        r["frames"] = self.frames_drawn
+        r["t_s"] = self.session.clock.t_s
+        r["playing"] = self.session.clock.playing
+        r["selection"] = self.editor.selection
+        r["message"] = self.session.message
+        r["dirty"] = self.editor.dirty  # after this frame's edits, like the readout
+        r["prompt"] = "unsaved" if self.session.quit_prompt else ""
+        tmp = self.ui_report.with_name(self.ui_report.name + ".tmp")
+        tmp.write_text(json.dumps(r), encoding="utf-8")
+        os.replace(tmp, self.ui_report)
+
+    def screenshot(self) -> np.ndarray:
+        """The window's back buffer as RGBA uint8 (H, W, 4), top row first."""
+        import ctypes
+
+        from pyglet import gl
+
+        fw, fh = self.window.get_framebuffer_size()
+        # Read the default framebuffer's back buffer with GL directly (moderngl's screen
+        # object names a colour attachment the default framebuffer does not have).
+        buf = (ctypes.c_ubyte * (fw * fh * 4))()
+        gl.glBindFramebuffer(gl.GL_READ_FRAMEBUFFER, 0)
+        gl.glReadBuffer(gl.GL_BACK)
+        gl.glPixelStorei(gl.GL_PACK_ALIGNMENT, 1)
+        gl.glReadPixels(0, 0, fw, fh, gl.GL_RGBA, gl.GL_UNSIGNED_BYTE, buf)
+        img = np.frombuffer(buf, dtype=np.uint8).reshape(fh, fw, 4)[::-1].copy()
+        img[..., 3] = 255
+        return img
+
+    # --- the loop ---------------------------------------------------------------------------
+
+    def run(self, quit_after: int | None = None, screenshot: str | Path | None = None) -> int:
+        """Run until the user quits (or ``quit_after`` frames are drawn); returns 0."""
+        pyglet = self._pyglet
+        loop = pyglet.app.platform_event_loop
+        loop.start()
+        last = time.perf_counter()
+        try:
+            while not self.session.quit_now:
+                busy = self.needs_frame() or quit_after is not None
+                loop.step(0.0 if busy else IDLE_WAIT_S)
+                self.window.dispatch_events()
+                if self.window.has_exit and not self.session.quit_prompt:
+                    self.window.has_exit = False
+                now = time.perf_counter()
+                self.session.clock.advance(now - last)
+                last = now
+                if not (self.needs_frame() or quit_after is not None):
+                    continue
+                self._pending = max(0, self._pending - 1)
+                self.draw()
+                if quit_after is not None and self.frames_drawn >= quit_after:
+                    if screenshot is not None:
+                        from ..export.encode import write_still
+
+                        write_still(Path(screenshot), self.screenshot(), "png")
+                    self.window.flip()
+                    break
+                self.window.flip()
+        finally:
+            self.close()
+        return 0
+
+    def close(self) -> None:
+        if self._closed:
+            return
+        self._closed = True
+        imgui = self._imgui
+        from imgui_bundle import implot
+
+        self.panel_renderer.release()
+        if self.renderer is not None:
+            self.renderer.release()
+        implot.destroy_context(self.implot_ctx)
+        imgui.destroy_context(self.imgui_ctx)
+        self.window.close()
