@@ -27,6 +27,7 @@ COMMANDS: dict[str, str] = {
     "import": "import_",
     "ephemeris": "ephemeris",
     "transfer": "transfer",
+    "open": "open",
     "render": "render",
 }
 
