@@ -6,8 +6,13 @@ target); ``render(scene, t_s, ...)`` builds the geometry and returns the frame a
 uint8 array, top row first. A frame is a pure function of (scene, time, camera, size):
 buffers are reused between frames, but nothing drawn depends on an earlier frame.
 
-Per frame: one clear and about eight draw calls (stars, grid, population points, sector
-fills, glows, lines, markers, one per label size). No depth buffer (draw order does the
+Per frame: one clear and about eight draw calls (stars, grid, sector fills, glows,
+lines, markers, one per label size). Populations (100,000 bodies and more) cost one
+transform-feedback pass each (Kepler's equation in the vertex stage, no rasterising):
+their pixels come back and are splatted, on the CPU, into the backdrop that replaces
+the clear. llvmpipe spends about 0.1 us per point primitive but only ns per touched
+pixel in numpy, so this is several times faster than drawing points.
+No depth buffer (draw order does the
 layering), no MSAA (the shaders anti-alias), premultiplied alpha throughout.
 """
 
@@ -24,7 +29,12 @@ from numpy.typing import NDArray
 from ..geometry.camera import View, view_for
 from ..geometry.fills import FILL_FLOATS
 from ..geometry.frame import MARKER_FLOATS, FrameGeometry, StaticCache, build_frame
-from ..geometry.population import PopulationConstants, mean_anomaly_at, population_constants
+from ..geometry.population import (
+    PopulationConstants,
+    composite_population,
+    mean_anomaly_at,
+    population_constants,
+)
 from ..geometry.stars import make_starfield
 from ..geometry.strokes import STROKE_FLOATS
 from ..scene.model import Camera, Population, Scene
@@ -77,6 +87,7 @@ class _PopulationGPU:
     constants: PopulationConstants
     static: Any
     anomaly: Any
+    pixels: Any
     vao: Any
 
 
@@ -99,7 +110,11 @@ class Renderer:
         self.p_fill = load_program(ctx, "fill")
         self.p_marker = load_program(ctx, "marker")
         self.p_points = load_program(ctx, "points")
-        self.p_pop = load_program(ctx, "population", "points")
+        self.p_pop = load_program(ctx, "population", varyings=("v_px_seen",))
+        self.p_backdrop = load_program(ctx, "backdrop")
+        self._backdrop_vao = ctx.vertex_array(self.p_backdrop, [])
+        self._backdrop_tex: dict[tuple[int, int], Any] = {}
+        self._backdrop_np: dict[tuple[int, int], tuple[Any, Any]] = {}
         self.p_text = load_program(ctx, "text")
         stroke_layout = "2f 1f 1f 2f 1f 2f 4f"
         stroke_names = ("in_pos_px", "in_across", "in_along", "in_caps", "in_half_width",
@@ -152,27 +167,66 @@ class Renderer:
         # origin_px places the frame in a larger framebuffer (the dome's face atlas);
         # the clear is limited to that rectangle.
         ctx.viewport = (origin_px[0], origin_px[1], w, h)
-        bg = geom.background
-        framebuffer.clear(bg[0] * bg[3], bg[1] * bg[3], bg[2] * bg[3], bg[3],
-                          viewport=ctx.viewport)
+        size = (float(w), float(h))
+        y_sign = -1.0 if top_row_first else 1.0
+        for prog in (self.p_stroke, self.p_fill, self.p_marker, self.p_points, self.p_text,
+                     self.p_backdrop):
+            prog["u_size_px"].value = size
+            prog["u_y_sign"].value = y_sign
         ctx.disable(mgl.DEPTH_TEST | mgl.CULL_FACE)
+        bg = geom.background
+        if geom.populations:
+            self._backdrop(geom, framebuffer, top_row_first, origin_px)
+        else:
+            framebuffer.clear(bg[0] * bg[3], bg[1] * bg[3], bg[2] * bg[3], bg[3],
+                              viewport=ctx.viewport)
         ctx.enable(mgl.BLEND | mgl.PROGRAM_POINT_SIZE)
         ctx.blend_func = mgl.ONE, mgl.ONE_MINUS_SRC_ALPHA
         ctx.blend_equation = mgl.FUNC_ADD
-        size = (float(w), float(h))
-        for prog in (self.p_stroke, self.p_fill, self.p_marker, self.p_points, self.p_pop,
-                     self.p_text):
-            prog["u_size_px"].value = size
-            prog["u_y_sign"].value = -1.0 if top_row_first else 1.0
         self._points(self.s_stars, geom.stars)
         self._triangles(self.s_grid, geom.grid, STROKE_FLOATS)
-        for pop in geom.populations:
-            self._population(pop, geom)
         self._triangles(self.s_fill, geom.fills, FILL_FLOATS)
         self._instances(self.s_glow, geom.glows)
         self._triangles(self.s_lines, geom.strokes, STROKE_FLOATS)
         self._instances(self.s_markers, geom.markers)
         self._labels(geom)
+
+    def _backdrop(self, geom: FrameGeometry, framebuffer: Any, top_row_first: bool,
+                  origin_px: tuple[int, int]) -> None:
+        """The background colour with every population's dots, made on the CPU from the
+        transform-feedback positions and written into the frame in one go: straight into
+        an offscreen texture, or by one unblended full-frame draw (the window)."""
+        w, h = geom.view.size_px
+        bg = geom.background
+        bg8 = np.rint(np.array([bg[0] * bg[3], bg[1] * bg[3], bg[2] * bg[3], bg[3]])
+                      * 255.0).astype(np.uint8)
+        image, scratch = self._backdrop_buffers(w, h)
+        image.view(np.uint32).fill(int(bg8.view(np.uint32)[0]))
+        uniform: Any = bg8
+        for pop in geom.populations:
+            px = self._population_pixels(pop, geom)
+            if px is not None:
+                composite_population(image, px, pop.color,
+                                     pop.point_size_px * geom.view.style_scale,
+                                     uniform_under=uniform, scratch=scratch)
+                uniform = None
+        attachment = framebuffer.color_attachments[0] if framebuffer.color_attachments \
+            else None
+        if top_row_first and isinstance(attachment, self._mgl.Texture) and \
+                attachment.components == 4 and attachment.dtype == "f1":
+            attachment.write(image, viewport=(origin_px[0], origin_px[1], w, h))
+            return
+        tex = self._backdrop_tex.get((w, h))
+        if tex is None:
+            tex = self.ctx.texture((w, h), 4)
+            tex.filter = (self._mgl.NEAREST, self._mgl.NEAREST)
+            self._backdrop_tex[(w, h)] = tex
+        tex.write(image)
+        tex.use(0)
+        self.p_backdrop["u_image"].value = 0
+        self.p_backdrop["u_origin_px"].value = origin_px
+        self.ctx.disable(self._mgl.BLEND)
+        self._backdrop_vao.render(self._mgl.TRIANGLES, vertices=3)
 
     def _triangles(self, stream: _Stream, data: np.ndarray, floats: int) -> None:
         if len(data) == 0:
@@ -194,7 +248,18 @@ class Renderer:
         stream.write(rows)
         stream.vao.render(self._mgl.TRIANGLE_STRIP, vertices=4, instances=len(data))
 
-    def _population(self, pop: Population, geom: FrameGeometry) -> None:
+    def _backdrop_buffers(self, w: int, h: int) -> tuple[Any, Any]:
+        """The backdrop image and the splat's scratch for this size, kept between frames
+        (both are wholly rewritten before use, so no frame sees another's values)."""
+        bufs = self._backdrop_np.get((w, h))
+        if bufs is None:
+            bufs = (np.empty((h, w, 4), dtype=np.uint8),
+                    np.zeros(w * h + w + 2, dtype=np.float32))
+            self._backdrop_np = {(w, h): bufs}
+        return bufs
+
+    def _population_pixels(self, pop: Population, geom: FrameGeometry) -> Any:
+        """(N, 3) float32 rows (x px, y px, seen) of a population at the frame's time."""
         gpu = self._populations.get(id(pop))
         if gpu is None or gpu.population is not pop:
             if gpu is not None:
@@ -203,10 +268,11 @@ class Renderer:
             self._populations[id(pop)] = gpu
         c = gpu.constants
         if c.count == 0:
-            return
+            return None
         gpu.anomaly.write(mean_anomaly_at(c, geom.t_s).astype(np.float32).tobytes())
         v = geom.view
         p = self.p_pop
+        p["u_size_px"].value = (float(v.size_px[0]), float(v.size_px[1]))
         p["u_origin_m"].value = tuple(float(x) for x in v.origin_m)
         p["u_right"].value = tuple(float(x) for x in v.basis[0])
         p["u_up"].value = tuple(float(x) for x in v.basis[1])
@@ -216,10 +282,8 @@ class Renderer:
         p["u_focal_px"].value = float(v.focal_px)
         p["u_distance_m"].value = float(v.distance_m)
         p["u_near_m"].value = float(v.near_m)
-        hs = v.style_scale
-        p["u_point_px"].value = float(pop.point_size_px * hs)
-        p["u_color"].value = (*pop.color, 0.85)
-        gpu.vao.render(self._mgl.POINTS, vertices=c.count)
+        gpu.vao.transform(gpu.pixels, self._mgl.POINTS, vertices=c.count)
+        return np.frombuffer(gpu.pixels.read(), dtype=np.float32).reshape(c.count, 3)
 
     def _upload_population(self, pop: Population) -> _PopulationGPU:
         c = population_constants(pop)
@@ -229,14 +293,16 @@ class Renderer:
         static[:, 6] = c.e
         sbuf = self.ctx.buffer(static.tobytes() if c.count else b"\0" * 28)
         abuf = self.ctx.buffer(reserve=max(4 * c.count, 4), dynamic=True)
+        pbuf = self.ctx.buffer(reserve=max(12 * c.count, 12), dynamic=True)
         vao = self.ctx.vertex_array(self.p_pop, [(sbuf, "3f 3f 1f", "in_aP", "in_bQ", "in_e"),
                                                  (abuf, "1f", "in_M")])
-        return _PopulationGPU(pop, c, sbuf, abuf, vao)
+        return _PopulationGPU(pop, c, sbuf, abuf, pbuf, vao)
 
     def _release_population(self, gpu: _PopulationGPU) -> None:
         gpu.vao.release()
         gpu.static.release()
         gpu.anomaly.release()
+        gpu.pixels.release()
 
     def _labels(self, geom: FrameGeometry) -> None:
         if not geom.labels:
@@ -281,8 +347,9 @@ class Renderer:
         """An offscreen RGBA8 framebuffer of ``size_px`` (kept for reuse)."""
         fbo = self._targets.get(size_px)
         if fbo is None:
-            rb = self.ctx.renderbuffer(size_px, 4)
-            fbo = self.ctx.framebuffer(color_attachments=[rb])
+            # A texture (not a renderbuffer), so a backdrop can be written straight in.
+            tex = self.ctx.texture(size_px, 4)
+            fbo = self.ctx.framebuffer(color_attachments=[tex])
             self._targets[size_px] = fbo
         return fbo
 
@@ -331,13 +398,17 @@ class Renderer:
             tex.release()
         for gpu in self._populations.values():
             self._release_population(gpu)
+        for tex in self._backdrop_tex.values():
+            tex.release()
+        self._backdrop_tex.clear()
+        self._backdrop_vao.release()
         for fbo in self._targets.values():
             for att in fbo.color_attachments:
                 att.release()
             fbo.release()
         self._corner_buf.release()
         for prog in (self.p_stroke, self.p_fill, self.p_marker, self.p_points, self.p_pop,
-                     self.p_text):
+                     self.p_text, self.p_backdrop):
             prog.release()
         self._targets.clear()
         self._populations.clear()

@@ -24,11 +24,21 @@ def shader_source(filename: str) -> str:
         raise ShaderError(f"shader file shaders/{filename} not found ({err})") from err
 
 
-def load_program(ctx: Any, vertex: str, fragment: str | None = None) -> Any:
-    """Compile ``shaders/<vertex>.vert`` with ``shaders/<fragment or vertex>.frag``."""
+def load_program(ctx: Any, vertex: str, fragment: str | None = None,
+                 varyings: tuple[str, ...] = ()) -> Any:
+    """Compile ``shaders/<vertex>.vert`` with ``shaders/<fragment or vertex>.frag``.
+
+    With ``varyings`` the program is a transform-feedback one: a vertex stage only,
+    whose named outputs are captured into a buffer.
+    """
     vs_name = f"{vertex}.vert"
-    fs_name = f"{fragment or vertex}.frag"
     vs = shader_source(vs_name)
+    if varyings:
+        try:
+            return ctx.program(vertex_shader=vs, varyings=list(varyings))
+        except Exception as err:
+            raise ShaderError(f"shaders/{vs_name}: {err}") from err
+    fs_name = f"{fragment or vertex}.frag"
     fs = shader_source(fs_name)
     try:
         return ctx.program(vertex_shader=vs, fragment_shader=fs)
