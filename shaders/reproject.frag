@@ -1,0 +1,76 @@
+#version 330 core
+// Cube faces -> dome master (square angular fisheye) or 2:1 equirectangular panorama.
+// The same definitions as viewer/export/projection.py (tested there against the formats),
+// in the camera basis (r image right, u image up, f eye toward target); the faces' own
+// vectors are given in that basis too. Each output pixel averages an n x n grid of
+// sub-pixel samples (supersampling), each bilinear from the face that sees it.
+uniform int u_mode;            // 0 dome, 1 panorama
+uniform vec2 u_out_size;       // output pixels (W, H)
+uniform float u_half_fov;      // dome: FOV / 2, radians
+uniform vec2 u_tilt_cs;        // dome: (cos, sin) of the tilt toward the front
+uniform int u_grid;            // n: n*n samples per output pixel
+uniform vec3 u_face_fwd[6];
+uniform vec3 u_face_right[6];
+uniform vec3 u_face_up[6];
+uniform vec4 u_outside;        // colour outside the dome's circle (premultiplied)
+uniform sampler2D u_atlas;     // the six faces side by side, 3 across and 2 down
+uniform float u_face_px;       // one face's size in texels
+
+out vec4 f_color;
+
+// One fetch from the atlas (a branch per face would cost llvmpipe a fetch per face).
+// uv is kept half a texel inside the face so bilinear never reads its neighbour.
+vec4 face_sample(int k, vec2 uv) {
+    vec2 tile = vec2(float(k % 3), float(k / 3));
+    vec2 inner = clamp(uv, 0.5 / u_face_px, 1.0 - 0.5 / u_face_px);
+    return textureLod(u_atlas, (tile + inner) / vec2(3.0, 2.0), 0.0);
+}
+
+// c: direction in the camera basis. The faces are the basis axes, so the face is the
+// component of largest size, and its plane coordinates are two components over it.
+vec4 sky(vec3 c) {
+    vec3 a = abs(c);
+    int k;
+    if (a.z >= a.x && a.z >= a.y) k = c.z > 0.0 ? 0 : 1;        // front / back
+    else if (a.x >= a.y) k = c.x > 0.0 ? 2 : 3;                  // right / left
+    else k = c.y > 0.0 ? 4 : 5;                                  // up / down
+    float most = dot(c, u_face_fwd[k]);
+    vec2 plane = vec2(dot(c, u_face_right[k]), dot(c, u_face_up[k])) / most;
+    return face_sample(k, plane * 0.5 + 0.5);
+}
+
+// x right, y up, both in (-1, 1) over the output image.
+vec4 sample_at(vec2 xy, out bool inside) {
+    inside = true;
+    vec3 c;  // direction in the camera basis (r, u, f)
+    if (u_mode == 0) {
+        float rho = length(xy);
+        if (rho > 1.0) { inside = false; return vec4(0.0); }
+        float theta = rho * u_half_fov;
+        // (sin(theta) cos(phi), sin(theta) sin(phi)) without the angle phi itself.
+        vec2 radial = rho > 0.0 ? xy * (sin(theta) / rho) : vec2(0.0);
+        c = vec3(radial, cos(theta));
+        c = vec3(c.x, c.y * u_tilt_cs.x - c.z * u_tilt_cs.y, c.y * u_tilt_cs.y + c.z * u_tilt_cs.x);
+    } else {
+        float lon = xy.x * 3.14159265358979;
+        float lat = xy.y * 1.57079632679490;
+        c = vec3(cos(lat) * sin(lon), sin(lat), cos(lat) * cos(lon));
+    }
+    return sky(c);
+}
+
+void main() {
+    // gl_FragCoord.y counts from the first row in memory, which is the image's top row.
+    vec4 sum = vec4(0.0);
+    float n = float(u_grid);
+    for (int i = 0; i < u_grid; ++i) {
+        for (int j = 0; j < u_grid; ++j) {
+            vec2 px = floor(gl_FragCoord.xy) + (vec2(float(i), float(j)) + 0.5) / n;
+            vec2 xy = vec2(2.0 * px.x / u_out_size.x - 1.0, 1.0 - 2.0 * px.y / u_out_size.y);
+            bool inside;
+            vec4 s = sample_at(xy, inside);
+            sum += inside ? s : u_outside;
+        }
+    }
+    f_color = sum / (n * n);
+}

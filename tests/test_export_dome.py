@@ -1,0 +1,133 @@
+"""Dome masters and panoramas measured from their pixels.
+
+A body at a known direction from the eye must land where the square angular fisheye
+(the Dome Master draft format: angle from the zenith proportional to the radius, the
+bottom of the frame the front of the dome) or the equirectangular projection puts it;
+nothing is lit outside the dome's circle.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+
+import numpy as np
+import pytest
+
+from viewer.export.immersive import Immersive, ImmersiveRenderer
+from viewer.export.projection import dome_pixel, panorama_pixel
+from viewer.geometry.camera import view_for
+from viewer.orbit import AU_M, state_from_elements
+from viewer.render.samples import elements, plain_scene
+from viewer.scene.model import Body, BodyShow, Camera
+
+pytestmark = pytest.mark.gl
+
+PIXEL = 1.0
+
+
+@pytest.fixture(scope="module")
+def immersive():
+    from viewer.render.context import headless_context
+    from viewer.render.renderer import Renderer
+
+    ctx = headless_context()
+    r = Renderer(ctx)
+    im = ImmersiveRenderer(r)
+    yield im
+    im.release()
+    r.release()
+    ctx.release()
+
+
+def marker_only(nu_deg: float, a_au: float = 1.0, i_deg: float = 20.0) -> Body:
+    return Body("probe", elements(a_au, 0.0, i_deg, 30.0, 0.0, nu_deg), color=(1.0, 1.0, 1.0),
+                show=BodyShow(orbit=False, marker=True, label=False))
+
+
+def centroid(img: np.ndarray, near: np.ndarray, box: int = 24) -> np.ndarray:
+    """Brightness-weighted centroid (column, row) of the pixels near ``near``."""
+    c0, r0 = (int(round(v)) for v in near)
+    h, w = img.shape[:2]
+    rows = slice(max(0, r0 - box), min(h, r0 + box + 1))
+    cols = slice(max(0, c0 - box), min(w, c0 + box + 1))
+    lum = img[rows, cols, :3].astype(np.float64).sum(axis=2)
+    assert lum.sum() > 0, "nothing drawn near the expected place"
+    rr, cc = np.mgrid[rows, cols]
+    # Pixel (i, j) covers [i, i+1]: its centre is at i + 0.5 in the projection's
+    # convention of pixel centres at integers, so no offset is added here.
+    return np.array([(cc * lum).sum() / lum.sum(), (rr * lum).sum() / lum.sum()])
+
+
+def camera_direction(scene, camera, body: Body) -> np.ndarray:
+    view = view_for(scene, 0.0, (64, 64), camera)
+    r, _ = state_from_elements(body.elements_at(0.0))
+    d = np.asarray(r) - view.eye_m
+    basis = np.vstack([view.basis[0], view.basis[1], -view.basis[2]])
+    return basis @ d
+
+
+CAMERA = Camera(projection="orthographic", look="angles", elevation_rad=math.radians(40.0),
+                azimuth_rad=math.radians(-70.0), width_m=3 * AU_M, distance_m=2.5 * AU_M)
+
+
+#: An eye just outside the orbit, so bodies are seen far from the zenith, near the rim.
+CLOSE = replace(CAMERA, distance_m=1.1 * AU_M)
+
+
+@pytest.mark.parametrize(("camera", "nu_deg", "fov", "tilt"),
+                         [(CAMERA, 0.0, 180.0, 0.0), (CAMERA, 140.0, 180.0, 0.0),
+                          (CAMERA, 250.0, 200.0, 15.0), (CAMERA, 310.0, 160.0, -10.0),
+                          (CLOSE, 60.0, 180.0, 0.0), (CLOSE, 200.0, 180.0, 0.0),
+                          (CLOSE, 300.0, 180.0, 25.0), (CLOSE, 120.0, 220.0, 0.0)])
+def test_a_body_lands_where_the_angular_fisheye_puts_it(immersive, camera, nu_deg, fov,
+                                                        tilt) -> None:
+    body = marker_only(nu_deg)
+    scene = plain_scene((body,), camera)
+    size = 768
+    img = immersive.render(scene, 0.0, Immersive("dome", (size, size), fov, tilt))
+    want = dome_pixel(camera_direction(scene, camera, body), size, fov, tilt)
+    assert np.hypot(*(want - (size - 1) / 2)) < size / 2, "test body outside the dome"
+    got = centroid(img, want)
+    assert np.hypot(*(got - want)) < 1.5 * PIXEL
+
+
+def test_nothing_is_lit_outside_the_dome_circle(immersive) -> None:
+    scene = replace(plain_scene((marker_only(0.0),), CAMERA),
+                    render=replace(plain_scene((), CAMERA).render, stars=True, grid=True))
+    size = 512
+    img = immersive.render(scene, 0.0, Immersive("dome", (size, size), 180.0))
+    x = (np.arange(size) + 0.5) / size * 2 - 1
+    rho = np.hypot(*np.meshgrid(x, x))
+    outside = rho > 1.0 + 2.0 / size
+    assert img[outside][:, :3].max() == 0
+    assert (img[outside][:, 3] == 255).all()
+    assert img[rho < 0.99][:, :3].max() > 0  # the inside is drawn (stars, grid)
+
+
+@pytest.mark.parametrize("nu_deg", [0.0, 95.0, 200.0])
+def test_a_body_lands_where_the_equirectangular_panorama_puts_it(immersive, nu_deg) -> None:
+    body = marker_only(nu_deg)
+    scene = plain_scene((body,), CAMERA)
+    w, h = 1024, 512
+    img = immersive.render(scene, 0.0, Immersive("panorama", (w, h)))
+    want = panorama_pixel(camera_direction(scene, CAMERA, body), w, h)
+    got = centroid(img, want)
+    assert np.hypot(*(got - want)) < 1.5 * PIXEL
+
+
+def test_a_dome_re_render_is_byte_identical(immersive) -> None:
+    scene = plain_scene((marker_only(30.0),), CAMERA)
+    spec = Immersive("dome", (256, 256))
+    assert np.array_equal(immersive.render(scene, 0.0, spec), immersive.render(scene, 0.0, spec))
+
+
+def test_bad_immersive_sizes_are_refused() -> None:
+    from viewer.errors import UserInputError
+
+    with pytest.raises(UserInputError, match="square"):
+        Immersive("dome", (800, 600))
+    with pytest.raises(UserInputError, match="2:1"):
+        Immersive("panorama", (800, 600))
+    with pytest.raises(UserInputError, match="FOV"):
+        Immersive("dome", (512, 512), fov_deg=400.0)

@@ -1,0 +1,173 @@
+"""Fulldome masters and panoramas: render cube faces with the one renderer, then reproject.
+
+The eye is the camera's eye (``target + distance * d``, also for orthographic cameras).
+Each needed cube face is drawn by ``Renderer.draw`` as a 90 deg square perspective view
+from that eye into a texture; ``shaders/reproject.frag`` then maps every output pixel's
+direction (the definitions of ``projection.py``) to the face that sees it, averaging an
+n x n grid of sub-pixel samples so lines stay crisp at 4K and 8K. Line widths, markers
+and labels are sized for the output's height, not the faces'.
+
+Labels are screen-space marks of each face: one that straddles a face edge is cut there.
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+from dataclasses import dataclass, replace
+from typing import Any
+
+import numpy as np
+from numpy.typing import NDArray
+
+from ..errors import UserInputError
+from ..geometry.camera import View, view_for
+from ..render.renderer import Renderer
+from ..render.shaders import load_program
+from ..scene.model import Camera, Scene
+from .projection import CUBE_FACES, dome_directions, panorama_directions
+
+UInt8s = NDArray[np.uint8]
+FACE_NAMES = tuple(CUBE_FACES)
+#: Largest face the renderer is asked for (llvmpipe's texture limit is 16384).
+MAX_FACE_PX = 8192
+
+
+@dataclass(frozen=True)
+class Immersive:
+    """What to make: ``kind`` "dome" (square, FOV and tilt in degrees) or "panorama" (2:1)."""
+
+    kind: str
+    size_px: tuple[int, int]
+    fov_deg: float = 180.0
+    tilt_deg: float = 0.0
+    grid: int = 2
+
+    def __post_init__(self) -> None:
+        w, h = self.size_px
+        if self.kind == "dome":
+            if w != h:
+                raise UserInputError("--size", f"a dome master is square; got {w}x{h}")
+            if not 0.0 < self.fov_deg <= 360.0:
+                raise UserInputError("--dome", f"FOV must be in (0, 360] deg, got "
+                                     f"{self.fov_deg:g}")
+            if not -90.0 <= self.tilt_deg <= 90.0:
+                raise UserInputError("--tilt", f"tilt must be within -90..90 deg, got "
+                                     f"{self.tilt_deg:g}")
+        elif self.kind == "panorama":
+            if w != 2 * h:
+                raise UserInputError("--size", f"a panorama is 2:1; got {w}x{h}")
+        else:
+            raise ValueError(self.kind)
+
+    def face_px(self) -> int:
+        """Face size so a face pixel is no larger than an output pixel where they meet."""
+        w, h = self.size_px
+        per_rad = h / math.radians(self.fov_deg) if self.kind == "dome" else w / (2 * math.pi)
+        return min(MAX_FACE_PX, max(16, int(math.ceil(per_rad * math.pi / 2))))
+
+    def directions(self, n: int = 1024) -> NDArray[np.float64]:
+        """A grid of this output's camera-basis directions (to find the needed faces),
+        reaching 1 % past the dome's edge so sub-pixel samples there are covered."""
+        if self.kind == "dome":
+            d, inside = dome_directions(n, min(360.0, self.fov_deg * 1.01), self.tilt_deg)
+            return d[inside]
+        return panorama_directions(2 * n, n).reshape(-1, 3)
+
+
+@functools.lru_cache(maxsize=16)
+def needed_faces(spec: Immersive) -> tuple[str, ...]:
+    """The faces that some output direction falls on (others are not drawn)."""
+    d = spec.directions()
+    fwd = np.array([CUBE_FACES[k][0] for k in FACE_NAMES])
+    hit = set(np.unique(np.argmax(d @ fwd.T, axis=1)).tolist())
+    return tuple(name for i, name in enumerate(FACE_NAMES) if i in hit)
+
+
+def face_views(base: View, spec: Immersive) -> dict[str, View]:
+    """One perspective View per needed face, from the base view's eye."""
+    r, u, f = base.basis[0], base.basis[1], -base.basis[2]
+    eye = base.eye_m
+    size = spec.face_px()
+    style = spec.size_px[1]
+    views = {}
+    for name in needed_faces(spec):
+        (fx, fy, fz), (ux, uy, uz) = CUBE_FACES[name]
+        F = fx * r + fy * u + fz * f
+        U = ux * r + uy * u + uz * f
+        R = np.cross(F, U)
+        views[name] = replace(
+            base, size_px=(size, size), projection="perspective",
+            origin_m=eye + base.distance_m * F, basis=np.vstack([R, U, -F]),
+            fov_rad=math.pi / 2, style_height_px=style)
+    return views
+
+
+class ImmersiveRenderer:
+    """Dome masters and panoramas through one Renderer; GL objects kept between frames."""
+
+    def __init__(self, renderer: Renderer) -> None:
+        self.renderer = renderer
+        self.ctx = renderer.ctx
+        self.program = load_program(self.ctx, "reproject")
+        self.vao = self.ctx.vertex_array(self.program, [])
+        self._faces: dict[int, tuple[Any, Any]] = {}
+        self._out: dict[tuple[int, int], Any] = {}
+
+    def _atlas(self, size: int) -> tuple[Any, Any]:
+        """The faces' texture: six tiles of size x size, 3 across, 2 down (kept)."""
+        if size not in self._faces:
+            mgl = self.renderer._mgl
+            tex = self.ctx.texture((3 * size, 2 * size), 4)
+            tex.filter = (mgl.LINEAR, mgl.LINEAR)
+            tex.repeat_x = tex.repeat_y = False
+            self._faces[size] = (tex, self.ctx.framebuffer(color_attachments=[tex]))
+        return self._faces[size]
+
+    def render(self, scene: Scene, t_s: float, spec: Immersive, camera: Camera | None = None,
+               transparent: bool = False, out: UInt8s | None = None) -> UInt8s:
+        """The dome master or panorama of ``scene`` at scene time ``t_s`` as RGBA uint8."""
+        base = view_for(scene, t_s, spec.size_px, camera)
+        views = face_views(base, spec)
+        prog = self.program
+        size = spec.face_px()
+        atlas, atlas_fbo = self._atlas(size)
+        for i, name in enumerate(FACE_NAMES):
+            view = views.get(name)
+            if view is None:
+                continue
+            geom = self.renderer.geometry(scene, t_s, view, transparent)
+            self.renderer.draw(geom, atlas_fbo, top_row_first=False,
+                               origin_px=((i % 3) * size, (i // 3) * size))
+        atlas.use(location=0)
+        prog["u_atlas"].value = 0
+        prog["u_face_px"].value = float(size)
+        # The faces' vectors in the camera basis (r, u, f): the shader works there.
+        cam = np.vstack([base.basis[0], base.basis[1], -base.basis[2]])
+        for row, name in ((2, "u_face_fwd"), (0, "u_face_right"), (1, "u_face_up")):
+            sign = -1.0 if row == 2 else 1.0
+            vecs = [sign * cam @ views[n].basis[row] if n in views else np.zeros(3)
+                    for n in FACE_NAMES]
+            prog[name].write(np.ascontiguousarray(vecs, dtype="f4").tobytes())
+        prog["u_mode"].value = 0 if spec.kind == "dome" else 1
+        prog["u_out_size"].value = tuple(float(x) for x in spec.size_px)
+        prog["u_half_fov"].value = math.radians(spec.fov_deg) / 2
+        tilt = math.radians(spec.tilt_deg)
+        prog["u_tilt_cs"].value = (math.cos(tilt), math.sin(tilt))
+        prog["u_grid"].value = spec.grid
+        prog["u_outside"].value = (0.0, 0.0, 0.0, 0.0 if transparent else 1.0)
+        fbo = self.renderer.target(spec.size_px)
+        fbo.use()
+        self.ctx.viewport = (0, 0, *spec.size_px)
+        self.ctx.disable(self.renderer._mgl.BLEND)
+        self.vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
+        self.ctx.enable(self.renderer._mgl.BLEND)
+        return self.renderer.read(fbo, spec.size_px, transparent, out)
+
+    def release(self) -> None:
+        for tex, fbo in self._faces.values():
+            fbo.release()
+            tex.release()
+        self._faces.clear()
+        self.vao.release()
+        self.program.release()
