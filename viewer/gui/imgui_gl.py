@@ -69,7 +69,10 @@ class PanelRenderer:
                         self._textures.pop(gl_tex.glo, None)
                         gl_tex.release()
                     gl_tex = self.ctx.texture((tex.width, tex.height), 4, pixels.tobytes())
-                    gl_tex.filter = (self._mgl.LINEAR, self._mgl.LINEAR)
+                    # imgui places glyphs on whole pixels, so nearest sampling keeps text
+                    # sharp and costs llvmpipe less than linear (lines are drawn without
+                    # the atlas's baked textures, see ViewerWindow).
+                    gl_tex.filter = (self._mgl.NEAREST, self._mgl.NEAREST)
                     gl_tex.repeat_x = gl_tex.repeat_y = False
                     self._textures[gl_tex.glo] = gl_tex
                     tex.set_tex_id(gl_tex.glo)

@@ -17,14 +17,16 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+import numpy as np
 from imgui_bundle import imgui
 
 from ..errors import UserInputError
-from ..orbit import DAY_S, swept_area
+from ..orbit import AU_M, DAY_S, swept_area
 from ..units import QuantityError, parse_quantity
 from .camera_input import focus, preset
 from .clock import Clock, next_apsis_s
 from .editor import Editor, EditRefused
+from .plots import orbit_profile, third_law
 from .readout import body_readout, format_time
 
 MENU_H = 26.0
@@ -62,7 +64,8 @@ SHORTCUTS = (
     ("Ctrl+Z / Ctrl+Y", "undo / redo"), ("Ctrl+S", "save"), ("Ctrl+Shift+S", "save as"),
     ("Ctrl+N / Ctrl+D", "add a body / duplicate the selected one"),
     ("Up / Down", "select the previous / next body"),
-    ("T / E", "top view / edge view"), ("F / C", "follow the selected body / the centre"),
+    ("T / E", "top view / edge view"), ("G", "plots: distance and speed, third law"),
+    ("F / C", "follow the selected body / the centre"),
     ("drag", "turn the view"), ("right-drag, Shift+drag", "pan"),
     ("wheel", "zoom toward the cursor"), ("Enter", "apply a typed value"),
     ("Esc", "leave a field unchanged"), ("F1 or H", "this help"),
@@ -106,6 +109,21 @@ class Session:
         self.save_as_text = str(self.editor.path or Path.cwd() / "scene.toml")
 
 
+def scene_area(size: tuple[int, int]) -> tuple[int, int, int, int]:
+    """(x, y from the top, width, height) in px of the window left for the picture
+    between the panels' home places (at least a quarter of the window each way)."""
+    w, h = size
+    x0 = int(LEFT_W + 2 * GAP)
+    x1 = int(w - RIGHT_W - 2 * GAP)
+    top = int(MENU_H)
+    bottom = int(h - TIME_H - 2 * GAP)
+    if x1 - x0 < w // 4:
+        x0, x1 = 0, w
+    if bottom - top < h // 4:
+        top, bottom = 0, h
+    return x0, top, x1 - x0, bottom - top
+
+
 def _rect() -> tuple[float, float, float, float]:
     a, b = imgui.get_item_rect_min(), imgui.get_item_rect_max()
     return (a.x, a.y, b.x, b.y)
@@ -140,6 +158,8 @@ class Panels:
         self._numbers(s, (w - RIGHT_W - GAP, split + GAP),
                       (RIGHT_W, h - split - TIME_H - 3 * GAP))
         self._time(s, (GAP, h - TIME_H - GAP), (w - 2 * GAP, TIME_H))
+        if s.show_plots:
+            self._plots(s, w, h)
         if s.show_help:
             self._help(s, w, h)
         self._quit_prompt(s)
@@ -220,6 +240,9 @@ class Panels:
                 s.camera = focus(s.camera, ed.body.name)
             if imgui.menu_item_simple("Centre on the central body", "C"):
                 s.camera = focus(s.camera, "center")
+            imgui.separator()
+            if imgui.menu_item_simple("Plots", "G", s.show_plots):
+                s.show_plots = not s.show_plots
             imgui.end_menu()
         if imgui.begin_menu("Help"):
             if imgui.menu_item_simple("Shortcuts", "F1"):
@@ -518,6 +541,67 @@ class Panels:
             if changed:
                 clock.t_s = days * DAY_S
         imgui.end()
+
+    # --- plots ------------------------------------------------------------------------------
+
+    def _plots(self, s: Session, w: float, h: float) -> None:
+        from imgui_bundle import implot
+
+        x0, top, fw, fh = scene_area((int(w), int(h)))
+        imgui.set_next_window_pos(imgui.ImVec2(x0 + fw - 520 - GAP, top + GAP),
+                                  imgui.Cond_.first_use_ever)
+        imgui.set_next_window_size(imgui.ImVec2(520, min(640.0, fh - 2 * GAP)),
+                                   imgui.Cond_.first_use_ever)
+        opened, keep = imgui.begin("Plots", True, imgui.WindowFlags_.no_collapse)
+        if opened:
+            ed = s.editor
+            b = ed.body
+            prof = orbit_profile(b, s.clock.t_s) if b is not None else None
+            half = 0.5 * (imgui.get_content_region_avail().y - 8)
+            if prof is None:
+                imgui.text_colored(DIM, "Distance and speed: select a closed orbit.")
+            elif implot.begin_plot(f"{b.name}: one period##profile",  # type: ignore[union-attr]
+                                   imgui.ImVec2(-1, half)):
+                L = ed.scene.length_unit
+                unit, f = (("au", AU_M) if L == "au" and prof.distance_m.max() >= 1e9
+                           else ("km", 1e3))
+                days = (prof.t_s - prof.now_s) / DAY_S
+                implot.setup_axes("days from now", f"distance ({unit})")
+                implot.setup_axis(implot.ImAxis_.y2, "speed (km/s)",
+                                  implot.AxisFlags_.aux_default)
+                implot.setup_axes_limits(float(days[0]), float(days[-1]),
+                                         0.0, 1.1 * float(prof.distance_m.max() / f),
+                                         implot.Cond_.always)
+                implot.setup_axis_limits(implot.ImAxis_.y2, 0.0,
+                                         1.1 * float(prof.speed_m_s.max() / 1e3),
+                                         implot.Cond_.always)
+                implot.plot_line("distance", days, prof.distance_m / f)
+                implot.set_axes(implot.ImAxis_.x1, implot.ImAxis_.y2)
+                implot.plot_line("speed", days, prof.speed_m_s / 1e3)
+                implot.set_axes(implot.ImAxis_.x1, implot.ImAxis_.y1)
+                implot.plot_inf_lines("now", np.array([0.0]))
+                implot.end_plot()
+            law = third_law(ed.scene)
+            if len(law.a_m) and implot.begin_plot("Third law: T^2 grows as a^3##law",
+                                                  imgui.ImVec2(-1, -1)):
+                implot.setup_axes("semi-major axis a (au)", "period T (d)")
+                implot.setup_axis_scale(implot.ImAxis_.x1, implot.Scale_.log10)
+                implot.setup_axis_scale(implot.ImAxis_.y1, implot.Scale_.log10)
+                implot.setup_axes_limits(float(law.line_a_m[0] / AU_M),
+                                         float(law.line_a_m[-1] / AU_M),
+                                         float(law.line_period_s[0] / DAY_S),
+                                         float(law.line_period_s[-1] / DAY_S),
+                                         implot.Cond_.always)
+                implot.plot_line("T = 2 pi sqrt(a^3/GM): slope 3/2", law.line_a_m / AU_M,
+                                 law.line_period_s / DAY_S)
+                implot.plot_scatter("bodies", law.a_m / AU_M, law.period_s / DAY_S)
+                for name, a, T in zip(law.names, law.a_m, law.period_s, strict=True):
+                    implot.plot_text(name, float(a / AU_M), float(T / DAY_S),
+                                     imgui.ImVec2(0, -10))
+                implot.end_plot()
+        imgui.end()
+        if keep is False:
+            s.show_plots = False
 
     # --- overlays and prompts ----------------------------------------------------------------
 

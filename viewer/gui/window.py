@@ -74,6 +74,7 @@ class ViewerWindow:
         style = imgui.get_style()
         style.window_rounding = 4.0
         style.frame_rounding = 3.0
+        io.fonts.flags |= imgui.ImFontAtlasFlags_.no_baked_lines  # sampled nearest
         w, h = self.window.get_size()
         io.display_size = imgui.ImVec2(float(w), float(h))
         self.panel_renderer = PanelRenderer(self.ctx)
@@ -130,7 +131,7 @@ class ViewerWindow:
             s = self.session
             view = self._view()
             if buttons & mouse.RIGHT or (buttons & mouse.LEFT and mods & key.MOD_SHIFT):
-                s.camera = pan(s.camera, view, dx, -dy)
+                s.camera = self._unshift(pan(s.camera, view, dx, -dy))
             elif buttons & mouse.LEFT:
                 s.camera = orbit(s.camera, dx, -dy)
 
@@ -141,7 +142,8 @@ class ViewerWindow:
                 self.input.scroll(sx, sy)
                 return
             h = self.window.get_size()[1]
-            self.session.camera = zoom(self.session.camera, self._view(), sy, x, h - y)
+            self.session.camera = self._unshift(zoom(self.session.camera, self._view(), sy,
+                                                     x, h - y))
 
         def on_key_press(symbol: int, mods: int) -> bool:
             self.input.key(symbol, mods, True)
@@ -222,21 +224,57 @@ class ViewerWindow:
             s.camera = focus(s.camera, ed.body.name)
         elif symbol == key.C:
             s.camera = focus(s.camera, "center")
+        elif symbol == key.G:
+            s.show_plots = not s.show_plots
         elif symbol in (key.F1, key.H):
             s.show_help = not s.show_help
 
     # --- drawing --------------------------------------------------------------------------
 
+    def _scene_area(self) -> tuple[int, int, int, int]:
+        """(x, y from the top, width, height) in px of the picture: the window less the
+        panels' home places, so no part of the scene hides behind a panel."""
+        from .panels import scene_area
+
+        return scene_area(self.window.get_framebuffer_size())
+
+    def _shift_m(self, view: Any) -> Any:
+        """World offset (m) from the camera's target to the point drawn at the window's
+        centre, so that the target sits at the centre of the picture between the panels."""
+        fw, fh = view.size_px
+        x0, top, w, h = self._scene_area()
+        cx, cy = x0 + 0.5 * w - 0.5 * fw, top + 0.5 * h - 0.5 * fh
+        return (cy * view.basis[1] - cx * view.basis[0]) / view.px_per_m
+
     def _view(self) -> Any:
+        """The view drawn in the window: the whole window, the target at the picture's
+        centre (drawing the whole window costs less on llvmpipe than a copy)."""
+        from dataclasses import replace
+
         from ..geometry.camera import view_for
 
         s = self.session
         size = self.window.get_framebuffer_size()
         try:
-            return view_for(self.editor.scene, s.clock.t_s, size, s.camera)
+            view = view_for(self.editor.scene, s.clock.t_s, size, s.camera)
         except KeyError:  # the followed body was renamed or removed
             s.camera = focus(s.camera, "center")
-            return view_for(self.editor.scene, s.clock.t_s, size, s.camera)
+            view = view_for(self.editor.scene, s.clock.t_s, size, s.camera)
+        return replace(view, origin_m=view.origin_m + self._shift_m(view))
+
+    def _unshift(self, camera: Any) -> Any:
+        """A camera made from the shifted view (its target the point at the window's
+        centre) back to one whose target is the picture's centre."""
+        from dataclasses import replace
+
+        from ..geometry.camera import view_for
+
+        if isinstance(camera.target, str):
+            return camera
+        size = self.window.get_framebuffer_size()
+        view = view_for(self.editor.scene, self.session.clock.t_s, size, camera)
+        t = view.origin_m - self._shift_m(view)
+        return replace(camera, target=(float(t[0]), float(t[1]), float(t[2])))
 
     def _input_queued(self) -> bool:
         """True while imgui still holds input events: it spreads a burst (a key pressed
@@ -261,15 +299,18 @@ class ViewerWindow:
         fw, fh = self.window.get_framebuffer_size()
         self.ctx.screen.use()
         self.ctx.viewport = (0, 0, fw, fh)
+        drawn = False
         if self.renderer is not None:
             try:
-                view = self._view()
-                geom = self.renderer.geometry(self.editor.scene, self.session.clock.t_s, view)
+                geom = self.renderer.geometry(self.editor.scene, self.session.clock.t_s,
+                                              self._view())
                 self.renderer.draw(geom, self.ctx.screen)
+                drawn = True
             except Exception as err:  # keep the editor usable; say what went wrong
                 self.session.message = f"the scene cannot be drawn: {err}"
-                self.ctx.clear(*BACKGROUND)
-        else:
+            self.ctx.screen.use()
+            self.ctx.viewport = (0, 0, fw, fh)
+        if not drawn:
             self.ctx.clear(*BACKGROUND)
         imgui.get_io().delta_time = 1.0 / 60.0
         imgui.new_frame()
