@@ -78,6 +78,19 @@ NODE_RGB = (0.80, 0.82, 0.88)
 
 
 @dataclass
+class VectorParts:
+    """The frame's lines and fills before they become triangles, for vector output (SVG).
+
+    ``grid`` and ``lines`` are the world polylines (m) with their styles, as stroked;
+    ``sectors`` the sector outlines (world, m: focus, arc, focus) with their fill RGBA.
+    """
+
+    grid: PolylineBatch
+    lines: PolylineBatch
+    sectors: list[tuple[Floats, RGBA]]
+
+
+@dataclass
 class FrameGeometry:
     """A frame ready to draw: arrays in image pixels (y down), float64, straight alpha."""
 
@@ -92,6 +105,7 @@ class FrameGeometry:
     labels: list[PlacedLabel]
     populations: list[Population] = field(default_factory=list)
     t_s: float = 0.0
+    vector: VectorParts | None = None
 
 
 def _rgba(c: RGB, a: float = 1.0) -> RGBA:
@@ -186,7 +200,21 @@ class StaticCache:
 
     def __init__(self, limit: int = 512) -> None:
         self._items: dict[int, tuple[Body, dict[str, object]]] = {}
+        self._frames: dict[tuple[object, ...], tuple[tuple[object, ...], _StaticPart]] = {}
         self._limit = limit
+
+    def frame_part(self, key: tuple[object, ...], owners: tuple[object, ...]) -> _StaticPart | None:
+        """The time-independent part of a frame for this view, if kept (see build_frame)."""
+        hit = self._frames.get(key)
+        if hit is not None and all(a is b for a, b in zip(hit[0], owners, strict=True)):
+            return hit[1]
+        return None
+
+    def keep_frame_part(self, key: tuple[object, ...], owners: tuple[object, ...],
+                        part: _StaticPart) -> None:
+        if len(self._frames) >= 8:
+            self._frames.clear()
+        self._frames[key] = (owners, part)
 
     def of(self, body: Body) -> dict[str, object]:
         hit = self._items.get(id(body))
@@ -208,30 +236,124 @@ def _static(cache: StaticCache | None, body: Body, key: str, make):  # type: ign
     return entry[key]
 
 
+@dataclass
+class _StaticPart:
+    """What a frame holds that depends on the scene and the view but not on time."""
+
+    grid: Floats
+    fills: Floats
+    glows: Floats
+    strokes: Floats
+    markers: Floats
+    labels: list[LabelRequest]
+    obstacles: list[tuple[float, float, float, float]]
+    occluder: tuple[Floats, float] | None
+    stars: Floats
+    vector: VectorParts
+
+
+def _view_key(view: View) -> tuple[object, ...]:
+    return (view.size_px, view.projection, view.origin_m.tobytes(), view.basis.tobytes(),
+            view.width_m, view.distance_m, view.fov_rad, view.near_m, view.style_height_px)
+
+
 def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
                 transparent: bool = False, starfield: Starfield | None = None,
                 cache: StaticCache | None = None) -> FrameGeometry:
     """The geometry of ``scene`` at scene time ``t_s`` (s) seen through ``view``.
 
     ``measure`` sizes label text (the renderer's font); ``starfield`` may be passed to
-    reuse one already made and ``cache`` to keep per-body constants between frames
-    (both are deterministic, so the result is the same with or without them).
+    reuse one already made and ``cache`` to keep what does not change between frames
+    (per-body constants, and everything but the bodies' positions while the scene and
+    the view stay the same). Both are deterministic: the result is the same with or
+    without them.
     """
     w, h = view.size_px
     hs = view.style_scale
-    unit = scene.length_unit
-    unit_m = unit_factor(unit, "length")
     bg = scene.render.background
     background = (bg[0], bg[1], bg[2], 0.0 if transparent else 1.0)
+    key = (_view_key(view), id(scene.bodies), id(scene.center), id(scene.render),
+           scene.length_unit)
+    static = cache.frame_part(key, (scene.bodies, scene.center, scene.render)) \
+        if cache is not None else None
+    if static is None:
+        static = _static_part(scene, view, measure, starfield, cache)
+        if cache is not None:
+            cache.keep_frame_part(key, (scene.bodies, scene.center, scene.render), static)
 
+    lines = PolylineBatch.empty()
+    markers = _Marks()
+    arrows = _Marks()
+    labels = list(static.labels)
+    obstacles = list(static.obstacles)
+    occluder = static.occluder
+    v_ref = _reference_speed(scene)
+    for k, body in enumerate(scene.bodies):
+        show = body.show
+        if not (show.marker or show.label or show.velocity):
+            continue
+        col = body.color
+        r, v = state_from_elements(body.elements_at(t_s))
+        r = np.asarray(r, dtype=np.float64)
+        q, f = _seen_px(view, r, occluder)
+        if not f:
+            continue
+        cam = view.to_camera(r.reshape(1, 3))
+        mpp = float(view.metres_per_px(cam)[0])
+        m_r = BODY_MARKER_PX * hs
+        if body.radius_m:
+            m_r = max(m_r, body.radius_m / mpp)
+        if show.velocity:
+            _velocity_arrow(lines, arrows, labels, view, r, np.asarray(v), mpp, v_ref, col,
+                            hs, m_r, scene.render.labels)
+        if show.marker:
+            markers.add(q, m_r, DISC, col, param=1.3 * hs)
+            obstacles.append((q[0] - m_r, q[1] - m_r, q[0] + m_r, q[1] + m_r))
+        if show.label and scene.render.labels:
+            labels.append(LabelRequest(body.name, (float(q[0]), float(q[1])), m_r + 1.0 * hs,
+                                       LABEL_PX * hs, _rgba(_lighten(col, 0.45)), 1 + k))
+    moving = (stroke_vertices(lines, view, height_scale=hs, occluder=occluder)
+              if lines.points else np.zeros((0, STROKE_FLOATS)))
+    strokes = np.vstack([static.strokes, moving]) if len(moving) else static.strokes
+    marker_rows = np.vstack([static.markers, markers.array(), arrows.array()])
+    placed = place_labels(labels, measure, (w, h), obstacles)
+    sv = static.vector
+    vector = VectorParts(sv.grid, PolylineBatch(sv.lines.points + lines.points,
+                                                sv.lines.closed + lines.closed,
+                                                sv.lines.styles + lines.styles), sv.sectors)
+    return FrameGeometry(
+        view=view, background=background, stars=static.stars, grid=static.grid,
+        fills=static.fills, glows=static.glows, strokes=strokes, markers=marker_rows,
+        labels=placed, populations=list(scene.populations), t_s=t_s, vector=vector)
+
+
+def _seen_px(view: View, p: Floats, occluder: tuple[Floats, float] | None
+             ) -> tuple[Floats, bool]:
+    """Pixels of a world point and whether it can be seen (in front, not hidden)."""
+    pw = np.asarray(p, dtype=np.float64).reshape(1, 3)
+    q, f = view.project(pw)
+    seen = bool(f[0])
+    if seen and occluder is not None and np.any(pw != 0.0):
+        cam = view.to_camera(pw)
+        centre = view.to_camera(occluder[0].reshape(1, 3))[0]
+        seen = not bool(hidden_by_sphere(view, cam, centre, occluder[1])[0])
+    return q[0], seen
+
+
+def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfield | None,
+                 cache: StaticCache | None) -> _StaticPart:
+    """Grid, sectors, the central body, orbits, axes, nodes, foci and apsides."""
+    hs = view.style_scale
+    unit = scene.length_unit
+    unit_m = unit_factor(unit, "length")
     curves = CurveBatch.empty()
     grid_lines = PolylineBatch.empty()
     lines = PolylineBatch.empty()
     fill_tris: list[Floats] = []
     fill_cols: list[Floats] = []
+    sector_rings: list[tuple[Floats, RGBA]] = []
     glows = _Marks()
     markers = _Marks()
-    arrows = _Marks()
     labels: list[LabelRequest] = []
     obstacles: list[tuple[float, float, float, float]] = []
 
@@ -295,17 +417,10 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
                                    _rgba(_lighten(center.color, 0.45)), 0))
 
     def px_of(p: Floats) -> tuple[Floats, bool]:
-        """Pixels of a world point and whether it can be seen (in front, not hidden)."""
-        pw = np.asarray(p, dtype=np.float64).reshape(1, 3)
-        q, f = view.project(pw)
-        seen = bool(f[0])
-        if seen and occluder is not None and np.any(pw != 0.0):
-            cam = view.to_camera(pw)
-            centre = view.to_camera(occluder[0].reshape(1, 3))[0]
-            seen = not bool(hidden_by_sphere(view, cam, centre, occluder[1])[0])
-        return q[0], seen
+        return _seen_px(view, p, occluder)
 
     # --- sectors: fans from the occupied focus, edges inside them -----------------------
+    sector_rings: list[tuple[Floats, RGBA]] = []
     for k, arcs in sector_arcs.items():
         body = scene.bodies[k]
         sw = body.sweep
@@ -319,6 +434,7 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
             alpha = sw.opacity * (ALTERNATE_FILL if (j % 2 and sw.opacity < 1.0) else 1.0)
             fill_cols.append(np.tile(_rgba(sw.color, alpha), (len(tris), 1)))
             ring = np.vstack([np.zeros((1, 3)), pts, np.zeros((1, 3))])
+            sector_rings.append((ring, _rgba(sw.color, alpha)))
             ring_px, front = view.project(ring)
             offset = 0.0
             if np.all(front):
@@ -329,7 +445,8 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
                 offset = -1.0 if signed > 0 else 1.0
             lines.add(ring, StrokeStyle(_rgba(_lighten(sw.color, 0.15), edge_a), EDGE_PX,
                                         offset=offset))
-            if sw.show_area:
+            sector_rings.append((ring, _rgba(sw.color, alpha)))
+            if sw.show_area and scene.render.labels:
                 area = _static(cache, body, f"area{t0!r}:{t1!r}",
                                lambda body=body, t0=t0, t1=t1: _sector_area_m2(body, t0, t1))
                 cx, cy = _polygon_centroid(ring_px) if np.all(front) else (np.nan, np.nan)
@@ -340,8 +457,7 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
                                                _rgba(_lighten(sw.color, 0.55)), 30,
                                                at_px=(cx - 0.5 * tw, cy + 0.35 * asc)))
 
-    # --- each body's lines and marks ----------------------------------------------------
-    v_ref = _reference_speed(scene)
+    # --- each body's fixed lines and marks ----------------------------------------------
     for k, (body, _shape) in enumerate(zip(scene.bodies, shapes, strict=True)):
         el = body.elements
         col = body.color
@@ -392,25 +508,6 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
                                                    APSIS_PX * hs, SMALL_LABEL_PX * hs,
                                                    _rgba(_lighten(col, 0.4), 0.85), 40,
                                                    required=False))
-        el_t = body.elements_at(t_s)
-        r, v = state_from_elements(el_t)
-        q, f = px_of(r)
-        if not f:
-            continue
-        cam = view.to_camera(np.asarray(r).reshape(1, 3))
-        mpp = float(view.metres_per_px(cam)[0])
-        m_r = BODY_MARKER_PX * hs
-        if body.radius_m:
-            m_r = max(m_r, body.radius_m / mpp)
-        if show.velocity:
-            _velocity_arrow(lines, arrows, labels, view, np.asarray(r), np.asarray(v), mpp,
-                            v_ref, col, hs, m_r, scene.render.labels)
-        if show.marker:
-            markers.add(q, m_r, DISC, col, param=1.3 * hs)
-            obstacle(q, m_r)
-        if show.label and scene.render.labels:
-            labels.append(LabelRequest(body.name, (float(q[0]), float(q[1])), m_r + 1.0 * hs,
-                                       LABEL_PX * hs, _rgba(_lighten(col, 0.45)), 1 + k))
 
     if scene.render.grid and scene.render.labels and grid_arcs:
         for _arc, r in grid_arcs[:: max(1, len(grid_arcs) // 6)]:
@@ -426,17 +523,14 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
              else np.zeros((0, 7)))
     fills = (fill_vertices(view, np.concatenate(fill_tris), np.concatenate(fill_cols))
              if fill_tris else np.zeros((0, FILL_FLOATS)))
-    marker_rows = np.vstack([markers.array(), arrows.array()])
-    placed = place_labels(labels, measure, (w, h), obstacles)
-    return FrameGeometry(
-        view=view, background=background, stars=stars,
+    return _StaticPart(
         grid=stroke_vertices(grid_lines, view, height_scale=hs, occluder=occluder)
-        if grid_lines.points
-        else np.zeros((0, STROKE_FLOATS)),
+        if grid_lines.points else np.zeros((0, STROKE_FLOATS)),
         fills=fills, glows=glows.array(),
-        strokes=stroke_vertices(lines, view, height_scale=hs, occluder=occluder) if lines.points
-        else np.zeros((0, STROKE_FLOATS)),
-        markers=marker_rows, labels=placed, populations=list(scene.populations), t_s=t_s)
+        strokes=stroke_vertices(lines, view, height_scale=hs, occluder=occluder)
+        if lines.points else np.zeros((0, STROKE_FLOATS)),
+        markers=markers.array(), labels=labels, obstacles=obstacles, occluder=occluder,
+        stars=stars, vector=VectorParts(grid_lines, lines, sector_rings))
 
 
 def _sector_area_m2(body: Body, t0: float, t1: float) -> float:

@@ -14,6 +14,9 @@ from __future__ import annotations
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
+import numpy as np
+from numpy.typing import NDArray
+
 #: (text, size_px) -> (advance width, ascent, descent) in pixels.
 Measure = Callable[[str, float], tuple[float, float, float]]
 
@@ -24,6 +27,9 @@ _PAD_PX = 2.0
 _RINGS = 3
 # Unit directions tried around an anchor: right, upper right, lower right, left, ...
 _PLACES = ((1, 0), (1, -1), (1, 1), (-1, 0), (-1, -1), (-1, 1), (0, -1), (0, 1))
+_RING_OF = np.repeat(np.arange(_RINGS), len(_PLACES)).astype(np.float64)
+_DX = np.tile(np.array([p[0] for p in _PLACES], dtype=np.float64), _RINGS)
+_DY = np.tile(np.array([p[1] for p in _PLACES], dtype=np.float64), _RINGS)
 
 
 @dataclass(frozen=True)
@@ -55,17 +61,21 @@ class PlacedLabel:
 Box = tuple[float, float, float, float]  # x0, y0, x1, y1
 
 
-def _overlap(a: Box, b: Box) -> float:
-    w = min(a[2], b[2]) - max(a[0], b[0])
-    h = min(a[3], b[3]) - max(a[1], b[1])
-    return w * h if w > 0 and h > 0 else 0.0
+def _overlaps(cand: NDArray[np.float64], boxes: NDArray[np.float64]) -> NDArray[np.float64]:
+    """Overlap areas (C, B) of candidate boxes with placed boxes, all (x0, y0, x1, y1)."""
+    w = np.minimum(cand[:, None, 2], boxes[None, :, 2]) - np.maximum(cand[:, None, 0],
+                                                                    boxes[None, :, 0])
+    h = np.minimum(cand[:, None, 3], boxes[None, :, 3]) - np.maximum(cand[:, None, 1],
+                                                                    boxes[None, :, 1])
+    return np.where((w > 0) & (h > 0), w * h, 0.0)
 
 
-def _outside(box: Box, size: tuple[int, int]) -> float:
+def _outside_area(cand: NDArray[np.float64], size: tuple[int, int]) -> NDArray[np.float64]:
+    """Area of each box that falls outside the image."""
     w, h = size
-    inside = (min(box[2], w) - max(box[0], 0)) * (min(box[3], h) - max(box[1], 0))
-    area = (box[2] - box[0]) * (box[3] - box[1])
-    return area - max(inside, 0.0) if inside > 0 else area
+    iw = np.clip(np.minimum(cand[:, 2], w) - np.maximum(cand[:, 0], 0), 0, None)
+    ih = np.clip(np.minimum(cand[:, 3], h) - np.maximum(cand[:, 1], 0), 0, None)
+    return (cand[:, 2] - cand[:, 0]) * (cand[:, 3] - cand[:, 1]) - iw * ih
 
 
 def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tuple[int, int],
@@ -89,38 +99,26 @@ def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tu
                           y + descent + _PAD_PX))
             continue
         ax, ay = req.anchor_px
-        best: tuple[float, float, float, Box] | None = None
-        for ring, (dx, dy) in ((r, p) for r in range(_RINGS) for p in _PLACES):
-            gap = req.clearance_px + (0.25 + 1.1 * ring) * req.size_px
-            # The text box's near edge sits ``gap`` from the anchor in this direction.
-            if dx > 0:
-                x = ax + gap
-            elif dx < 0:
-                x = ax - gap - width
-            else:
-                x = ax - 0.5 * width
-            text_h = ascent + descent
-            if dy < 0:
-                top = ay - gap * (0.7 if dx else 1.0) - text_h
-            elif dy > 0:
-                top = ay + gap * (0.7 if dx else 1.0)
-            else:
-                top = ay - 0.5 * text_h
-            y = top + ascent
-            box = (x - _PAD_PX, top - _PAD_PX, x + width + _PAD_PX, top + text_h + _PAD_PX)
-            score = sum(_overlap(box, b) for b in boxes)
-            score += sum(_overlap(box, b) for b in obstacles)
-            score += 4.0 * _outside(box, size_px)
-            if best is None or score < best[0]:
-                best = (score, x, y, box)
-            if score == 0.0:
-                break
-        assert best is not None
-        score, x, y, box = best
-        if score > 0.0 and not req.required:
+        text_h = ascent + descent
+        gap = req.clearance_px + (0.25 + 1.1 * _RING_OF) * req.size_px
+        # The text box's near edge sits ``gap`` from the anchor in each direction.
+        x = np.where(_DX > 0, ax + gap, np.where(_DX < 0, ax - gap - width, ax - 0.5 * width))
+        lift = gap * np.where(_DX != 0, 0.7, 1.0)
+        top = np.where(_DY < 0, ay - lift - text_h,
+                       np.where(_DY > 0, ay + lift, ay - 0.5 * text_h))
+        cand = np.stack([x - _PAD_PX, top - _PAD_PX, x + width + _PAD_PX,
+                         top + text_h + _PAD_PX], axis=1)
+        taken = np.array(boxes + list(obstacles), dtype=np.float64).reshape(-1, 4)
+        score = _overlaps(cand, taken).sum(axis=1) + 4.0 * _outside_area(cand, size_px)
+        clear = np.flatnonzero(score == 0.0)
+        pick = int(clear[0]) if clear.size else int(np.argmin(score))
+        if score[pick] > 0.0 and not req.required:
             continue
-        if _outside(box, size_px) >= (box[2] - box[0]) * (box[3] - box[1]):
+        box_a = cand[pick]
+        area = (box_a[2] - box_a[0]) * (box_a[3] - box_a[1])
+        if _outside_area(box_a[None, :], size_px)[0] >= area:
             continue  # wholly off the image: nothing to show
-        placed.append(PlacedLabel(req.text, x, y, req.size_px, req.rgba))
-        boxes.append(box)
+        placed.append(PlacedLabel(req.text, float(x[pick]), float(top[pick] + ascent),
+                                  req.size_px, req.rgba))
+        boxes.append(tuple(float(v) for v in box_a))  # type: ignore[arg-type]
     return placed
