@@ -10,12 +10,21 @@ from __future__ import annotations
 
 import contextlib
 import errno
+import functools
 import os
 import tempfile
 from collections.abc import Iterator
 from pathlib import Path
 
 from .errors import UserInputError
+
+
+@functools.lru_cache(maxsize=1)
+def _umask() -> int:
+    """The process's umask (read once: os.umask can only be read by setting it)."""
+    mask = os.umask(0o022)
+    os.umask(mask)
+    return mask
 
 
 def _fsync_dir(folder: Path) -> None:
@@ -58,6 +67,8 @@ def atomic_path(target: str | os.PathLike[str], suffix: str | None = None) -> It
                                     + ".tmp", dir=folder)
     os.close(fd)
     tmp = Path(tmp_name)
+    # mkstemp makes the file private (0600); give it the mode a plain open() would.
+    os.chmod(tmp, 0o666 & ~_umask())
     try:
         yield tmp
         with open(tmp, "rb+") as f:

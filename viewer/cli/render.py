@@ -1,9 +1,13 @@
-"""``perifocal render SCENE --at T -o still.png``: one frame of a scene to a PNG or JPEG.
+"""``perifocal render SCENE -o OUT``: stills, frame sequences, video, dome masters,
+panoramas and SVG diagrams of a scene.
 
-The frame is drawn headlessly (OpenGL through EGL; Mesa llvmpipe when there is no GPU)
-by the same renderer the window uses, and written atomically (a temporary file renamed
-over the target), so a failed render never leaves half a file. GL is imported inside
-``run`` only.
+What is made follows OUT: a .png/.jpg/.svg file is a still (``--at T``), a folder (a name
+ending in ``/``) is a numbered frame sequence, a .mp4 file is an H.264 video; ``--frames
+A:B`` picks frames A..B-1 of the timeline. ``--dome [FOV]`` and ``--panorama`` reproject
+the view from the camera's eye into a fulldome master or a 2:1 panorama. Frames are
+drawn headlessly (OpenGL through EGL; Mesa llvmpipe when there is no GPU) by the same
+renderer the window uses and written atomically, so a failed render never leaves half a
+file. GL is imported inside ``run`` only.
 """
 
 from __future__ import annotations
@@ -20,13 +24,26 @@ EXAMPLES = """examples:
   perifocal render scenes/demo.toml --at "120 d" -o day120.jpg
   perifocal render scenes/laws.toml --at "2030-06-01T00:00:00 TDB" --size 3840x2160 -o laws.png
   perifocal render scenes/demo.toml --transparent -o overlay.png
+  perifocal render scenes/demo.toml -o diagram.svg
+  perifocal render scenes/demo.toml -o frames/                 # the whole timeline
+  perifocal render scenes/demo.toml --frames 0:300 -o frames/ --resume
+  perifocal render scenes/demo.toml -o show.mp4 --quality final
+  perifocal render scenes/demo.toml --dome --size 4096x4096 -o dome/
+  perifocal render scenes/demo.toml --dome 200 --tilt 20 --at "30 d" -o dome.png
+  perifocal render scenes/demo.toml --panorama -o pano.png
 
 --at is an offset from the scene epoch ("90 d", "-15 d"; a bare number is in the scene's
 time unit) or an epoch ("2030-06-01T00:00:00 TDB"); the default is the timeline start.
---size overrides [render] size; --transparent gives a PNG with an alpha background.
+--frames A:B renders frames A..B-1; files are numbered by absolute frame, so shards
+rendered on several machines (--frames 0:3000, 3000:6000, ...) fill one folder.
+--size overrides [render] size (dome: HxH, panorama: 2HxH from the render height H).
+
+Dome shows: rapid flashing or fast, high-contrast motion is a photosensitivity risk for
+some viewers; follow your venue's guidance before you show a render.
 """
 
-STILL_SUFFIXES = {".png": "png", ".jpg": "jpg", ".jpeg": "jpg"}
+STILL_SUFFIXES = {".png": "png", ".jpg": "jpg", ".jpeg": "jpg", ".svg": "svg"}
+VIDEO_SUFFIXES = (".mp4",)
 _EPOCH_LIKE = re.compile(r"^\s*[+-]?\d{4}-\d{2}-\d{2}")
 MAX_SIDE_PX = 16384
 
@@ -35,18 +52,39 @@ def add_parser(sub: Any) -> None:
     from . import CAUTION
 
     p = sub.add_parser(
-        "render", help="render a still of a scene to PNG or JPEG",
-        description="Render one frame of a scene (at a scene time) to a PNG or JPEG file, "
-        "with the same renderer as the viewer.",
+        "render", help="render stills, frame sequences, video, dome masters, SVG",
+        description="Render a scene with the viewer's renderer: a still (.png, .jpg, .svg), "
+        "a numbered frame sequence (a folder ending in /), or an H.264 video (.mp4); "
+        "optionally as a fulldome master (--dome) or a 2:1 panorama (--panorama).",
         epilog=EXAMPLES + "\n" + CAUTION, formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("scene", metavar="SCENE", help="a scene file (.toml)")
     p.add_argument("-o", "--output", required=True, metavar="OUT",
-                   help="the image to write: .png or .jpg")
-    p.add_argument("--at", metavar="T", help="scene time: an offset (\"90 d\") or an epoch")
+                   help="a still (.png, .jpg, .svg), a folder ending in / for a frame "
+                   "sequence, or a video (.mp4)")
+    p.add_argument("--at", metavar="T", help="scene time of a still: an offset (\"90 d\") or "
+                   "an epoch; default the timeline start")
+    p.add_argument("--frames", metavar="A:B", help="timeline frames A..B-1 (sequence, video)")
     p.add_argument("--size", metavar="WxH", help="image size in pixels, e.g. 1920x1080")
     p.add_argument("--transparent", action="store_true",
                    help="alpha background instead of the scene's background colour (PNG)")
+    p.add_argument("--format", choices=("png", "jpg"), default="png",
+                   help="image format of a frame sequence (default png)")
+    p.add_argument("--bits", type=int, choices=(8, 16), default=8,
+                   help="PNG bits per channel (default 8)")
+    p.add_argument("--quality", choices=("draft", "preview", "final"), default="preview",
+                   help="video: draft (fastest), preview (default) or final (best, slow)")
+    p.add_argument("--dome", nargs="?", type=float, const=180.0, metavar="FOV",
+                   help="a square angular-fisheye dome master; FOV in deg (default 180)")
+    p.add_argument("--tilt", type=float, default=0.0, metavar="DEG",
+                   help="dome: turn the zenith toward the front by DEG")
+    p.add_argument("--panorama", action="store_true",
+                   help="a 2:1 equirectangular 360-degree panorama")
+    p.add_argument("--supersample", type=int, choices=(1, 2, 3, 4), metavar="N",
+                   help="dome/panorama: N x N samples per output pixel (default 2; 1 from "
+                   "4096 px up)")
+    p.add_argument("--resume", action="store_true",
+                   help="sequence: skip frames whose files are already complete")
     p.set_defaults(run=run)
 
 
@@ -95,29 +133,144 @@ def output_format(path: str, transparent: bool) -> str:
     return fmt
 
 
-def write_still(rgba: Any, path: str, fmt: str, transparent: bool) -> None:
+def write_still(rgba: Any, path: str, fmt: str, transparent: bool, bits: int = 8) -> None:
     """Encode and write atomically; a write the user can fix is a UserInputError."""
     from ..export.encode import encode_still
     from ..fileio import atomic_write_bytes, user_write_error
 
-    data = encode_still(rgba, fmt, transparent)
+    data = encode_still(rgba, fmt, transparent, bits)
     try:
         atomic_write_bytes(path, data)
     except OSError as err:
         raise user_write_error(path, err) from None
 
 
+def output_kind(path: str) -> str:
+    """"sequence" (a folder), "video" (.mp4) or "still" (by suffix); UserInputError otherwise."""
+    if path.endswith(("/", "\\")) or Path(path).is_dir():
+        return "sequence"
+    suffix = Path(path).suffix.lower()
+    if suffix in VIDEO_SUFFIXES:
+        return "video"
+    if suffix in STILL_SUFFIXES:
+        return "still"
+    raise UserInputError("-o", f"{path!r}: write a still (.png, .jpg, .svg), a folder "
+                         "ending in / (a frame sequence) or a video (.mp4)")
+
+
+def immersive_spec(args: argparse.Namespace, scene: Any, size: tuple[int, int] | None) -> Any:
+    """The dome/panorama request, with the default sizes (HxH, 2HxH), or None."""
+    if args.dome is None and not args.panorama:
+        if args.tilt:
+            raise UserInputError("--tilt", "--tilt applies to a dome master: add --dome")
+        return None
+    if args.dome is not None and args.panorama:
+        raise UserInputError("--dome/--panorama", "choose one: a dome master or a panorama")
+    from ..export.immersive import Immersive
+
+    h = scene.render.size_px[1]
+    if args.dome is not None:
+        size = size or (h, h)
+        grid = args.supersample or (2 if size[1] < 4096 else 1)
+        return Immersive("dome", size, args.dome, args.tilt, grid)
+    size = size or (2 * h, h)
+    grid = args.supersample or (2 if size[1] < 4096 else 1)
+    return Immersive("panorama", size, grid=grid)
+
+
 def run(args: argparse.Namespace) -> int:
     size = parse_size(args.size)
-    fmt = output_format(args.output, args.transparent)
+    kind = output_kind(args.output)
+    fmt = output_format(args.output, args.transparent) if kind == "still" else args.format
+    if kind == "sequence" and args.transparent and fmt == "jpg":
+        raise UserInputError("--transparent", "JPEG has no alpha channel; use --format png")
+    if kind == "video" and args.transparent:
+        raise UserInputError("--transparent", "H.264 video has no alpha channel; render a "
+                             "PNG sequence (-o frames/) for compositing")
+    if kind == "still" and args.frames is not None:
+        raise UserInputError("--frames", "a still is one frame: use --at, or write a folder "
+                             "(-o frames/) or a video (-o show.mp4)")
+    if kind != "still" and args.at is not None:
+        raise UserInputError("--at", "--at picks the time of a still; sequences and videos "
+                             "follow the timeline (use --frames A:B)")
+    if args.resume and kind != "sequence":
+        raise UserInputError("--resume", "--resume applies to a frame sequence (-o frames/)")
     from ..scene import load_scene
 
     scene = load_scene(args.scene)
-    t_s = parse_time(args.at, scene)
-    from ..render import render_still
+    spec = immersive_spec(args, scene, size)
+    if spec is not None and fmt == "svg":
+        raise UserInputError("-o", "an SVG diagram is a flat view; dome masters and "
+                             "panoramas are written as .png or .jpg")
+    out_size = spec.size_px if spec is not None else (size or tuple(scene.render.size_px))
+    if kind == "video":
+        from ..export.encode import check_video_size
 
-    rgba = render_still(scene, t_s, size, transparent=args.transparent)
-    write_still(rgba, args.output, fmt, args.transparent)
-    h, w = rgba.shape[:2]
-    print(f"wrote {args.output} ({w}x{h}, scene time {t_s / 86400.0:.6g} d)")
+        check_video_size(*out_size)
+    if fmt == "svg":
+        from ..export.svg import write_svg
+
+        t_s = parse_time(args.at, scene)
+        write_svg(scene, t_s, args.output, out_size)
+        print(f"wrote {args.output} ({out_size[0]}x{out_size[1]}, scene time "
+              f"{t_s / 86400.0:.6g} d)")
+        return 0
+    with _Frames(scene, out_size, spec, args.transparent) as frames:
+        if kind == "still":
+            t_s = parse_time(args.at, scene)
+            rgba = frames.at(t_s)
+            write_still(rgba, args.output, fmt, args.transparent, args.bits)
+            h, w = rgba.shape[:2]
+            print(f"wrote {args.output} ({w}x{h}, scene time {t_s / 86400.0:.6g} d)")
+            return 0
+        from ..export.frames import parse_frame_range, render_sequence, render_video
+
+        todo = parse_frame_range(args.frames, scene.timeline.frame_count)
+        if kind == "sequence":
+            options = {"transparent": args.transparent, "bits": args.bits} if fmt == "png" else {}
+            result = render_sequence(todo, frames.frame, Path(args.output), fmt,
+                                     resume=args.resume, **options)
+        else:
+            result = render_video(todo, frames.frame, Path(args.output), out_size,
+                                  scene.timeline.fps, args.quality)
+        print(result.summary)
     return 0
+
+
+class _Frames:
+    """Frames of a scene: flat through the Renderer, or dome/panorama through the
+    ImmersiveRenderer on the same context."""
+
+    def __init__(self, scene: Any, size: tuple[int, int], spec: Any, transparent: bool) -> None:
+        from ..render.context import headless_context
+        from ..render.renderer import Renderer
+
+        self.scene = scene
+        self.size = size
+        self.spec = spec
+        self.transparent = transparent
+        self.ctx = headless_context()
+        self.renderer = Renderer(self.ctx)
+        self.immersive = None
+        if spec is not None:
+            from ..export.immersive import ImmersiveRenderer
+
+            self.immersive = ImmersiveRenderer(self.renderer)
+
+    def at(self, t_s: float) -> Any:
+        if self.immersive is not None:
+            return self.immersive.render(self.scene, t_s, self.spec,
+                                         transparent=self.transparent)
+        return self.renderer.render(self.scene, t_s, self.size, transparent=self.transparent)
+
+    def frame(self, k: int) -> Any:
+        return self.at(float(self.scene.timeline.time_of_frame(k)))
+
+    def __enter__(self) -> _Frames:
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        if self.immersive is not None:
+            self.immersive.release()
+        self.renderer.release()
+        self.ctx.release()
