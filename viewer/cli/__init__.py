@@ -29,6 +29,7 @@ COMMANDS: dict[str, str] = {
     "transfer": "transfer",
     "open": "open",
     "render": "render",
+    "demo": "demo",
 }
 
 CAUTION = (

@@ -233,7 +233,8 @@ def run(args: argparse.Namespace) -> int:
         else:
             result = render_video(todo, frames.frame, Path(args.output), out_size,
                                   scene.timeline.fps, args.quality)
-        print(result.summary)
+        print(f"wrote {args.output} ({result.rendered} frames rendered"
+              + (f", {result.skipped} already complete" if result.skipped else "") + ")")
     return 0
 
 
