@@ -109,3 +109,19 @@ def test_a_broken_scene_file_exits_2(tmp_path, capsys):
     assert main(["render", str(bad), "-o", str(tmp_path / "x.png")]) == 2
     assert "bad.toml" in capsys.readouterr().err
     assert not (tmp_path / "x.png").exists()
+
+
+def test_with_no_usable_opengl_render_says_in_one_line_what_to_install(tmp_path, capsys,
+                                                                       monkeypatch):
+    import moderngl
+
+    def no_egl(*args, **kwargs):
+        raise Exception("libEGL.so.1: cannot open shared object file")
+
+    monkeypatch.setattr(moderngl, "create_standalone_context", no_egl)
+    out = tmp_path / "x.png"
+    assert main(["render", str(SCENES[0]), "-o", str(out)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 2 and "OpenGL" in err[0]
+    assert "libegl1" in err[1] and "libgl1-mesa-dri" in err[1] and "Traceback" not in err[1]
+    assert not out.exists()

@@ -55,7 +55,8 @@ MARKER_FLOATS = 10
 
 #: Sizes in pixels at 1080 px image height; every one scales with the height.
 LABEL_PX = 17.0
-SMALL_LABEL_PX = 13.0
+SMALL_LABEL_PX = 13.5
+AREA_LABEL_PX = 15.0
 BODY_MARKER_PX = 5.5
 STAR_MIN_RADIUS_PX = 7.0
 PLANET_MIN_RADIUS_PX = 6.0
@@ -63,7 +64,7 @@ FOCUS_RING_PX = 7.5
 APSIS_PX = 4.5
 NODE_PX = 3.5
 ARROW_MAX_PX = 150.0
-EDGE_PX = 1.4
+EDGE_PX = 1.2
 GRID_PX = 1.0
 AXIS_PX = 1.1
 #: Opacity factor of every other translucent sector.
@@ -425,7 +426,7 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
         body = scene.bodies[k]
         sw = body.sweep
         assert sw is not None
-        edge_a = min(1.0, sw.opacity + 0.35)
+        edge_a = min(1.0, sw.opacity + 0.3)
         for j, (arc, t0, t1) in enumerate(arcs):
             pts = tess.arc(arc)
             tris = fan_triangles(np.zeros(3), pts)
@@ -443,7 +444,7 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                 # In a y-down image a positive shoelace sum runs clockwise on screen, so
                 # the inside is to the right of the direction of travel.
                 offset = -1.0 if signed > 0 else 1.0
-            lines.add(ring, StrokeStyle(_rgba(_lighten(sw.color, 0.15), edge_a), EDGE_PX,
+            lines.add(ring, StrokeStyle(_rgba(_lighten(sw.color, 0.3), edge_a), EDGE_PX,
                                         offset=offset))
             sector_rings.append((ring, _rgba(sw.color, alpha)))
             if sw.show_area and scene.render.labels:
@@ -452,8 +453,8 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                 cx, cy = _polygon_centroid(ring_px) if np.all(front) else (np.nan, np.nan)
                 if math.isfinite(cx):
                     text = format_area(area, unit)
-                    tw, asc, _desc = measure(text, SMALL_LABEL_PX * hs)
-                    labels.append(LabelRequest(text, (cx, cy), 0.0, SMALL_LABEL_PX * hs,
+                    tw, asc, _desc = measure(text, AREA_LABEL_PX * hs)
+                    labels.append(LabelRequest(text, (cx, cy), 0.0, AREA_LABEL_PX * hs,
                                                _rgba(_lighten(sw.color, 0.55)), 30,
                                                at_px=(cx - 0.5 * tw, cy + 0.35 * asc)))
 
@@ -510,7 +511,7 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                                                    required=False))
 
     if scene.render.grid and scene.render.labels and grid_arcs:
-        for _arc, r in grid_arcs[:: max(1, len(grid_arcs) // 6)]:
+        for _arc, r in grid_arcs[1:: max(2, len(grid_arcs) // 4)]:
             p = np.array([r, 0.0, 0.0])
             q, f = px_of(p)
             if f:

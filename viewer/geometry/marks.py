@@ -110,16 +110,16 @@ def nice_step(span: float, target_count: float = 8.0) -> float:
 def grid_radii_m(view: View, unit_m: float, extent_m: float) -> tuple[Floats, float]:
     """Radii (m) of the reference-plane grid's rings and their step.
 
-    The step is a round number of the scene's length unit, about an eighth of the field;
+    The step is a round number of the scene's length unit, about a tenth of the field;
     rings reach ``extent_m`` (and the field's corners), at most 60 of them, and only
     those that can cross the field are kept.
     """
     field = view.field_width_m
-    step = nice_step(field / unit_m) * unit_m
+    step = nice_step(field / unit_m, 10.0) * unit_m
     d = float(np.hypot(view.origin_m[0], view.origin_m[1]))
     half_diag = 0.5 * field * math.hypot(1.0, view.size_px[1] / view.size_px[0])
     if view.perspective:
-        r_lo, r_hi = step, max(extent_m, d + 4.0 * half_diag)
+        r_lo, r_hi = step, extent_m
     else:
         r_lo, r_hi = max(step, d - half_diag), d + half_diag
     k0 = max(1, math.ceil(r_lo / step))

@@ -1,0 +1,65 @@
+"""Make the renders in docs/renders/ from the bundled scenes, so they can be remade after
+any change to the renderer or the scenes:
+
+    python docs/make_renders.py            # every bundled scene, plus two other views
+    python docs/make_renders.py demo laws  # only these
+
+Each still is the scene at its timeline start through its own camera, at 1600x900
+(labels and lines scale with the height), drawn headlessly by the same renderer as the
+viewer. Two more show other ways of looking at the demo: a perspective view from low
+over the reference plane, and an edge-on view.
+"""
+
+from __future__ import annotations
+
+import sys
+from dataclasses import replace
+from importlib import resources
+from pathlib import Path
+
+import numpy as np
+
+SIZE = (1600, 900)
+OUT = Path(__file__).resolve().parent / "renders"
+
+
+def _scenes() -> dict[str, Path]:
+    folder = Path(str(resources.files("viewer") / "scenes"))
+    return {p.stem: p for p in sorted(folder.glob("*.toml"))}
+
+
+def _extra_views(scene):  # type: ignore[no-untyped-def]
+    """(name, camera, time) of the demo's two other views."""
+    cam = scene.camera
+    low = replace(cam, projection="perspective", look="angles", elevation_rad=np.radians(24),
+                  azimuth_rad=np.radians(235), distance_m=cam.width_m * 0.62)
+    edge = replace(cam, projection="orthographic", look="edge", width_m=cam.width_m * 0.8)
+    return [("demo-perspective", low, 400 * 86400.0), ("demo-edge", edge, 0.0)]
+
+
+def main(argv: list[str]) -> int:
+    from viewer.export.encode import png_bytes
+    from viewer.fileio import atomic_write_bytes
+    from viewer.render import headless_renderer
+    from viewer.scene import load_scene
+
+    wanted = set(argv) or None
+    OUT.mkdir(parents=True, exist_ok=True)
+    with headless_renderer() as renderer:
+        for name, path in _scenes().items():
+            scene = load_scene(path)
+            jobs = [(name, None, scene.timeline.start_s)]
+            if name == "demo":
+                jobs += _extra_views(scene)
+            for out_name, camera, t_s in jobs:
+                if wanted and out_name not in wanted and name not in wanted:
+                    continue
+                rgba = renderer.render(scene, t_s, SIZE, camera)
+                target = OUT / f"{out_name}.png"
+                atomic_write_bytes(target, png_bytes(rgba))
+                print(f"wrote {target.relative_to(OUT.parent.parent)}")
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main(sys.argv[1:]))
