@@ -113,3 +113,12 @@ def test_a_hidden_central_body_and_labels_off_leave_no_central_marks():
                     render=replace(scene.render, labels=False))
     f = _frame(scene)
     assert len(f.glows) == 0 and f.labels == []
+
+
+def test_vector_parts_hold_each_sector_once_and_every_line():
+    scene = demo_like_scene()
+    f = _frame(scene, 5 * DAY_S)
+    assert f.vector is not None
+    sweeps = sum(b.sweep.count for b in scene.bodies if b.sweep is not None and b.show.sweep)
+    assert len(f.vector.sectors) == sweeps
+    assert len(f.vector.lines.points) >= len(scene.bodies) + sweeps

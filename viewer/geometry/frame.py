@@ -367,9 +367,9 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
     if scene.render.grid:
         radii, _step = marks.grid_radii_m(view, unit_m, 1.2 * extent)
         for r in radii:
-            ring = ConicShape(0, 0.0, float(r), float(r), np.array([1.0, 0, 0]),
-                              np.array([0, 1.0, 0]))
-            grid_arcs.append((curves.add(ring, 0.0, 2.0 * math.pi, 0.4), float(r)))
+            circle = ConicShape(0, 0.0, float(r), float(r), np.array([1.0, 0, 0]),
+                                np.array([0, 1.0, 0]))
+            grid_arcs.append((curves.add(circle, 0.0, 2.0 * math.pi, 0.4), float(r)))
         if len(radii):
             r_out = float(radii[-1])
             for k in range(12):
@@ -421,7 +421,6 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
         return _seen_px(view, p, occluder)
 
     # --- sectors: fans from the occupied focus, edges inside them -----------------------
-    sector_rings: list[tuple[Floats, RGBA]] = []
     for k, arcs in sector_arcs.items():
         body = scene.bodies[k]
         sw = body.sweep
@@ -446,7 +445,6 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                 offset = -1.0 if signed > 0 else 1.0
             lines.add(ring, StrokeStyle(_rgba(_lighten(sw.color, 0.3), edge_a), EDGE_PX,
                                         offset=offset))
-            sector_rings.append((ring, _rgba(sw.color, alpha)))
             if sw.show_area and scene.render.labels:
                 area = _static(cache, body, f"area{t0!r}:{t1!r}",
                                lambda body=body, t0=t0, t1=t1: _sector_area_m2(body, t0, t1))
