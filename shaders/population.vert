@@ -1,7 +1,8 @@
 #version 330 core
 // Many small bodies, by transform feedback (no rasterisation): each point solves
 // Kepler's equation M = E - e sin E (Newton from Danby's starter E0 = M + 0.85 e sign(sin M),
-// a fixed number of steps, so every frame is reproducible), then
+// until a step is below float32 resolution, at most 10; the same inputs always take the
+// same steps, so every frame is reproducible), then
 // r = (cos E - e) aP + sin E bQ is made relative to the view's target and projected to
 // image pixels (y down). The CPU advances and reduces M in float64 each frame and
 // splats the pixels into a density image (viewer.geometry.population), which
@@ -28,8 +29,10 @@ void main() {
     float e = in_e;
     float M = in_M;
     float E = M + 0.85 * e * sign(sin(M));
-    for (int k = 0; k < 6; ++k) {
-        E -= (E - e * sin(E) - M) / (1.0 - e * cos(E));
+    for (int k = 0; k < 10; ++k) {
+        float step = (E - e * sin(E) - M) / (1.0 - e * cos(E));
+        E -= step;
+        if (abs(step) < 2e-7) break;  // float32 resolution: the result no longer moves
     }
     vec3 rel = (cos(E) - e) * in_aP + sin(E) * in_bQ - u_origin_m;
     vec3 cam = vec3(dot(u_right, rel), dot(u_up, rel), dot(u_back, rel));

@@ -204,7 +204,7 @@ class Renderer:
         image.view(np.uint32).fill(int(bg8.view(np.uint32)[0]))
         uniform: Any = bg8
         for pop in geom.populations:
-            px = self._population_pixels(pop, geom)
+            px = self.population_pixels(pop, geom)
             if px is not None:
                 composite_population(image, px, pop.color,
                                      pop.point_size_px * geom.view.style_scale,
@@ -258,8 +258,11 @@ class Renderer:
             self._backdrop_np = {(w, h): bufs}
         return bufs
 
-    def _population_pixels(self, pop: Population, geom: FrameGeometry) -> Any:
-        """(N, 3) float32 rows (x px, y px, seen) of a population at the frame's time."""
+    def population_pixels(self, pop: Population, geom: FrameGeometry) -> Any:
+        """(N, 3) float32 rows (x px, y px, seen) of a population at the frame's time.
+
+        Runs the transform-feedback stage; a framebuffer of this context must be bound.
+        """
         gpu = self._populations.get(id(pop))
         if gpu is None or gpu.population is not pop:
             if gpu is not None:
