@@ -11,9 +11,9 @@ lines, markers, one per label size). Populations (100,000 bodies and more) cost 
 transform-feedback pass each (Kepler's equation in the vertex stage, no rasterising):
 their pixels come back and are splatted, on the CPU, into the backdrop that replaces
 the clear. llvmpipe spends about 0.1 us per point primitive but only ns per touched
-pixel in numpy, so this is several times faster than drawing points.
-No depth buffer (draw order does the
-layering), no MSAA (the shaders anti-alias), premultiplied alpha throughout.
+pixel in numpy, so this is several times faster than drawing points. No depth buffer
+(draw order does the layering), no MSAA (the shaders anti-alias), premultiplied alpha
+throughout.
 """
 
 from __future__ import annotations
