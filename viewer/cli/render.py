@@ -239,39 +239,23 @@ def run(args: argparse.Namespace) -> int:
 
 
 class _Frames:
-    """Frames of a scene: flat through the Renderer, or dome/panorama through the
-    ImmersiveRenderer on the same context."""
+    """The show's frames (viewer.export.show.ShowFrames) on a headless context of their own."""
 
     def __init__(self, scene: Any, size: tuple[int, int], spec: Any, transparent: bool) -> None:
+        from ..export.show import ShowFrames
         from ..render.context import headless_context
         from ..render.renderer import Renderer
 
-        self.scene = scene
-        self.size = size
-        self.spec = spec
-        self.transparent = transparent
         self.ctx = headless_context()
         self.renderer = Renderer(self.ctx)
-        self.immersive = None
-        if spec is not None:
-            from ..export.immersive import ImmersiveRenderer
-
-            self.immersive = ImmersiveRenderer(self.renderer)
-
-    def at(self, t_s: float) -> Any:
-        if self.immersive is not None:
-            return self.immersive.render(self.scene, t_s, self.spec,
-                                         transparent=self.transparent)
-        return self.renderer.render(self.scene, t_s, self.size, transparent=self.transparent)
-
-    def frame(self, k: int) -> Any:
-        return self.at(float(self.scene.timeline.time_of_frame(k)))
+        self.show = ShowFrames(self.renderer, scene, size, spec, transparent)
+        self.at = self.show.at
+        self.frame = self.show.frame
 
     def __enter__(self) -> _Frames:
         return self
 
     def __exit__(self, *exc: object) -> None:
-        if self.immersive is not None:
-            self.immersive.release()
+        self.show.close()
         self.renderer.release()
         self.ctx.release()

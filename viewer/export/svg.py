@@ -193,12 +193,16 @@ def _population(view: View, pop: object, t_s: float) -> str:
 
 def write_svg(scene: Scene, t_s: float, path: str | Path,
               size_px: tuple[int, int] | None = None) -> None:
-    """Write the SVG diagram of ``scene`` at scene time ``t_s`` atomically."""
+    """Write the SVG diagram of ``scene`` at scene time ``t_s`` atomically (with the
+    show's camera, fades, captions and clock at the show time that t_s falls at)."""
     from ..render.text import FontCache
+    from ..scene.timeline import overlay_at, scene_at_show_time, show_time_of
 
-    view = view_for(scene, t_s, size_px)
+    show_s = show_time_of(scene, t_s)
+    shown = scene_at_show_time(scene, show_s, t_s)
+    view = view_for(shown, t_s, size_px)
     fonts = FontCache()
-    geom = build_frame(scene, t_s, view, fonts.measure)
+    geom = build_frame(shown, t_s, view, fonts.measure, overlay=overlay_at(scene, show_s, t_s))
     data = svg_text(geom, scene.title).encode("utf-8")
     try:
         atomic_write_bytes(path, data)

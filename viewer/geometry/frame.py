@@ -15,6 +15,7 @@ hides them, so an orbit goes behind the planet and in front of it as it should.
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -22,6 +23,7 @@ from numpy.typing import NDArray
 
 from ..orbit import state_from_elements
 from ..scene.model import Body, Population, Scene
+from ..scene.timeline import OverlayText
 from ..units import unit_factor
 from . import marks
 from .camera import View
@@ -260,14 +262,16 @@ def _view_key(view: View) -> tuple[object, ...]:
 
 def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
                 transparent: bool = False, starfield: Starfield | None = None,
-                cache: StaticCache | None = None) -> FrameGeometry:
+                cache: StaticCache | None = None,
+                overlay: Sequence[OverlayText] = ()) -> FrameGeometry:
     """The geometry of ``scene`` at scene time ``t_s`` (s) seen through ``view``.
 
     ``measure`` sizes label text (the renderer's font); ``starfield`` may be passed to
     reuse one already made and ``cache`` to keep what does not change between frames
     (per-body constants, and everything but the bodies' positions while the scene and
     the view stay the same). Both are deterministic: the result is the same with or
-    without them.
+    without them. ``overlay`` is text fixed on the picture (captions, the clock: see
+    viewer.scene.timeline.overlay_at), placed before every other label.
     """
     w, h = view.size_px
     hs = view.style_scale
@@ -291,7 +295,9 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     v_ref = _reference_speed(scene)
     for k, body in enumerate(scene.bodies):
         show = body.show
-        if not (show.marker or show.label or show.velocity):
+        fade = body.fade
+        if not ((show.marker and fade.marker > 0) or (show.label and fade.label > 0)
+                or (show.velocity and fade.velocity > 0)):
             continue
         col = body.color
         r, v = state_from_elements(body.elements_at(t_s))
@@ -304,19 +310,25 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
         m_r = BODY_MARKER_PX * hs
         if body.radius_m:
             m_r = max(m_r, body.radius_m / mpp)
-        if show.velocity:
+        if show.velocity and fade.velocity > 0:
             _velocity_arrow(lines, arrows, labels, view, r, np.asarray(v), mpp, v_ref, col,
-                            hs, m_r, scene.render.labels)
-        if show.marker:
-            markers.add(q, m_r, DISC, col, param=1.3 * hs)
+                            hs, m_r, scene.render.labels, fade.velocity)
+        if show.marker and fade.marker > 0:
+            markers.add(q, m_r, DISC, col, fade.marker, param=1.3 * hs)
             obstacles.append((q[0] - m_r, q[1] - m_r, q[0] + m_r, q[1] + m_r))
-        if show.label and scene.render.labels:
+        if show.label and scene.render.labels and fade.label > 0:
             labels.append(LabelRequest(body.name, (float(q[0]), float(q[1])), m_r + 1.0 * hs,
-                                       LABEL_PX * hs, _rgba(_lighten(col, 0.45)), 1 + k))
+                                       LABEL_PX * hs, _rgba(_lighten(col, 0.45), fade.label),
+                                       1 + k))
     moving = (stroke_vertices(lines, view, height_scale=hs, occluder=occluder)
               if lines.points else np.zeros((0, STROKE_FLOATS)))
     strokes = np.vstack([static.strokes, moving]) if len(moving) else static.strokes
     marker_rows = np.vstack([static.markers, markers.array(), arrows.array()])
+    for text in overlay:
+        labels.append(_overlay_label(text, measure, (w, h), hs))
+        x0, y0 = labels[-1].at_px  # type: ignore[misc]
+        tw, asc, desc = measure(text.text, text.size_px * hs)
+        obstacles.append((x0, y0 - asc, x0 + tw, y0 + desc))
     placed = place_labels(labels, measure, (w, h), obstacles)
     sv = static.vector
     vector = VectorParts(sv.grid, PolylineBatch(sv.lines.points + lines.points,
@@ -326,6 +338,28 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
         view=view, background=background, stars=static.stars, grid=static.grid,
         fills=static.fills, glows=static.glows, strokes=strokes, markers=marker_rows,
         labels=placed, populations=list(scene.populations), t_s=t_s, vector=vector)
+
+
+#: Margin between overlay text and the picture's edge, px at 1080 px image height.
+OVERLAY_MARGIN_PX = 28.0
+
+
+def _overlay_label(text: OverlayText, measure: Measure, size: tuple[int, int],
+                   hs: float) -> LabelRequest:
+    """A caption or the clock as a label fixed at its position on the picture."""
+    w, h = size
+    px = text.size_px * hs
+    tw, asc, desc = measure(text.text, px)
+    m = OVERLAY_MARGIN_PX * hs
+    pos = text.position
+    x = m if pos.endswith("left") else (w - m - tw if pos.endswith("right") else 0.5 * (w - tw))
+    if pos.startswith("top"):
+        y = m + asc
+    elif pos.startswith("bottom"):
+        y = h - m - desc
+    else:
+        y = 0.5 * (h + asc - desc)
+    return LabelRequest(text.text, (x, y), 0.0, px, text.rgba, -1, at_px=(x, y))
 
 
 def _seen_px(view: View, p: Floats, occluder: tuple[Floats, float] | None
@@ -384,10 +418,11 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
     orbit_arc: dict[int, tuple[int, bool]] = {}
     sector_arcs: dict[int, list[tuple[int, float, float]]] = {}
     for k, (body, shape) in enumerate(zip(scene.bodies, shapes, strict=True)):
-        if body.show.orbit:
+        if body.show.orbit and body.fade.orbit > 0:
             u0, u1, closed = whole_orbit_range(body.elements, body.limit_radius_m)
             orbit_arc[k] = (curves.add(shape, u0, u1), closed)
-        if body.show.sweep and body.sweep is not None and body.sweep.count > 0:
+        if (body.show.sweep and body.sweep is not None and body.sweep.count > 0
+                and body.fade.sweep > 0):
             params = _static(cache, body, "sectors",
                              lambda body=body, shape=shape: _sector_params(body, shape))
             sector_arcs[k] = [(curves.add(shape, u0, u1, 0.2), t0, t1)
@@ -425,13 +460,16 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
         body = scene.bodies[k]
         sw = body.sweep
         assert sw is not None
-        edge_a = min(1.0, sw.opacity + 0.3)
+        fa = body.fade.sweep
+        if fa <= 0:
+            continue
+        edge_a = min(1.0, sw.opacity + 0.3) * fa
         for j, (arc, t0, t1) in enumerate(arcs):
             pts = tess.arc(arc)
             tris = fan_triangles(np.zeros(3), pts)
             fill_tris.append(tris)
             # Translucent neighbours alternate in strength, so each sector reads on its own.
-            alpha = sw.opacity * (ALTERNATE_FILL if (j % 2 and sw.opacity < 1.0) else 1.0)
+            alpha = fa * sw.opacity * (ALTERNATE_FILL if (j % 2 and sw.opacity < 1.0) else 1.0)
             fill_cols.append(np.tile(_rgba(sw.color, alpha), (len(tris), 1)))
             ring = np.vstack([np.zeros((1, 3)), pts, np.zeros((1, 3))])
             sector_rings.append((ring, _rgba(sw.color, alpha)))
@@ -453,7 +491,7 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                     text = format_area(area, unit)
                     tw, asc, _desc = measure(text, AREA_LABEL_PX * hs)
                     labels.append(LabelRequest(text, (cx, cy), 0.0, AREA_LABEL_PX * hs,
-                                               _rgba(_lighten(sw.color, 0.55)), 30,
+                                               _rgba(_lighten(sw.color, 0.55), fa), 30,
                                                at_px=(cx - 0.5 * tw, cy + 0.35 * asc)))
 
     # --- each body's fixed lines and marks ----------------------------------------------
@@ -462,27 +500,29 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
         col = body.color
         show = body.show
         limit = _body_limit(body)
-        if k in orbit_arc:
+        fade = body.fade
+        if k in orbit_arc and fade.orbit > 0:
             arc, closed = orbit_arc[k]
-            lines.add(tess.arc(arc), StrokeStyle(_rgba(col, 0.92), body.line_width_px),
-                      closed=closed)
-        if show.axes:
+            lines.add(tess.arc(arc), StrokeStyle(_rgba(col, 0.92 * fade.orbit),
+                                                 body.line_width_px), closed=closed)
+        if show.axes and fade.axes > 0:
             for seg in marks.axes_m(el, limit):
-                lines.add(seg, StrokeStyle(_rgba(col, 0.55), AXIS_PX, dash_px=(7.0, 5.0)))
-        if show.nodes:
+                lines.add(seg, StrokeStyle(_rgba(col, 0.55 * fade.axes), AXIS_PX,
+                                           dash_px=(7.0, 5.0)))
+        if show.nodes and fade.nodes > 0:
             nodes = marks.nodes_m(el, limit)
             if nodes is not None:
                 asc, desc = nodes
                 lines.add(np.stack([desc, asc]),
-                          StrokeStyle(_rgba(_mix(col, NODE_RGB, 0.6), 0.7), AXIS_PX,
-                                      dash_px=(2.0, 4.0)))
+                          StrokeStyle(_rgba(_mix(col, NODE_RGB, 0.6), 0.7 * fade.nodes),
+                                      AXIS_PX, dash_px=(2.0, 4.0)))
                 for p, shape_id in ((asc, DISC), (desc, RING)):
                     q, f = px_of(p)
                     if f:
                         markers.add(q, NODE_PX * hs, shape_id, _mix(col, NODE_RGB, 0.6),
-                                    param=1.2 * hs)
+                                    fade.nodes, param=1.2 * hs)
                         obstacle(q, NODE_PX * hs)
-        if show.foci:
+        if show.foci and fade.foci > 0:
             occ, emp = marks.foci_m(el)
             for p, shape_id in ((occ, RING), (emp, CROSSHAIR)):
                 if p is None:
@@ -491,21 +531,22 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                 if f:
                     markers.add(q, FOCUS_RING_PX * hs, shape_id,
                                 FOCUS_RGB if shape_id == RING else _lighten(col, 0.35),
-                                param=1.5 * hs)
+                                fade.foci, param=1.5 * hs)
                     obstacle(q, FOCUS_RING_PX * hs)
-        if show.apsides:
+        if show.apsides and fade.apsides > 0:
             peri, apo = marks.apsides_m(el)
             for p, text in ((peri, "periapsis"), (apo, "apoapsis")):
                 if p is None:
                     continue
                 q, f = px_of(p)
                 if f:
-                    markers.add(q, APSIS_PX * hs, DIAMOND, _lighten(col, 0.2))
+                    markers.add(q, APSIS_PX * hs, DIAMOND, _lighten(col, 0.2), fade.apsides)
                     obstacle(q, APSIS_PX * hs)
                     if scene.render.labels:
                         labels.append(LabelRequest(text, (float(q[0]), float(q[1])),
                                                    APSIS_PX * hs, SMALL_LABEL_PX * hs,
-                                                   _rgba(_lighten(col, 0.4), 0.85), 40,
+                                                   _rgba(_lighten(col, 0.4),
+                                                         0.85 * fade.apsides), 40,
                                                    required=False))
 
     if scene.render.grid and scene.render.labels and grid_arcs:
@@ -558,7 +599,7 @@ def _reference_speed(scene: Scene) -> float:
 
 def _velocity_arrow(lines: PolylineBatch, arrows: _Marks, labels: list[LabelRequest],
                     view: View, r: Floats, v: Floats, mpp: float, v_ref: float, col: RGB,
-                    hs: float, marker_r: float, with_label: bool) -> None:
+                    hs: float, marker_r: float, with_label: bool, alpha: float = 1.0) -> None:
     """An arrow from the body along its velocity, length proportional to speed."""
     speed = float(np.linalg.norm(v))
     if speed <= 0:
@@ -579,10 +620,10 @@ def _velocity_arrow(lines: PolylineBatch, arrows: _Marks, labels: list[LabelRequ
     end_f = (L - 0.8 * head) / L
     shaft = np.stack([r + (tip_w - r) * start_f, r + (tip_w - r) * end_f])
     colour = _lighten(col, 0.25)
-    lines.add(shaft, StrokeStyle(_rgba(colour), 1.6))
-    arrows.add(b_px - u * 0.5 * head, 0.5 * head, ARROWHEAD, colour,
+    lines.add(shaft, StrokeStyle(_rgba(colour, alpha), 1.6))
+    arrows.add(b_px - u * 0.5 * head, 0.5 * head, ARROWHEAD, colour, alpha,
                angle=float(math.atan2(u[1], u[0])))
     if with_label:
         labels.append(LabelRequest(format_speed(speed), (float(b_px[0]), float(b_px[1])),
-                                   4.0 * hs, SMALL_LABEL_PX * hs, _rgba(_lighten(col, 0.5)),
-                                   20))
+                                   4.0 * hs, SMALL_LABEL_PX * hs,
+                                   _rgba(_lighten(col, 0.5), alpha), 20))

@@ -18,7 +18,7 @@ throughout.
 
 from __future__ import annotations
 
-from collections.abc import Iterator
+from collections.abc import Iterator, Sequence
 from contextlib import contextmanager
 from dataclasses import dataclass
 from typing import Any
@@ -38,6 +38,7 @@ from ..geometry.population import (
 from ..geometry.stars import make_starfield
 from ..geometry.strokes import STROKE_FLOATS
 from ..scene.model import Camera, Population, Scene
+from ..scene.timeline import OverlayText
 from .shaders import load_program
 from .text import TEXT_FLOATS, FontCache, GlyphAtlas
 
@@ -144,10 +145,10 @@ class Renderer:
         return self.fonts.measure(text, size_px)
 
     def geometry(self, scene: Scene, t_s: float, view: View,
-                 transparent: bool = False) -> FrameGeometry:
+                 transparent: bool = False, overlay: Sequence[OverlayText] = ()) -> FrameGeometry:
         """The frame's geometry (viewer.geometry.frame.build_frame with this font)."""
         return build_frame(scene, t_s, view, self.measure, transparent, self.starfield,
-                           self.static)
+                           self.static, overlay)
 
     # --- drawing ------------------------------------------------------------------------
 
@@ -379,15 +380,16 @@ class Renderer:
 
     def render(self, scene: Scene, t_s: float, size_px: tuple[int, int] | None = None,
                camera: Camera | None = None, transparent: bool = False,
-               out: UInt8s | None = None) -> UInt8s:
+               out: UInt8s | None = None, overlay: Sequence[OverlayText] = ()) -> UInt8s:
         """The frame of ``scene`` at scene time ``t_s`` (s) as RGBA uint8 (H, W, 4).
 
         ``size_px`` (W, H) and ``camera`` override the scene's; ``transparent`` gives an
         alpha background (straight alpha) instead of the scene's background colour;
-        ``out`` is an array to fill instead of a new one (see ``read``).
+        ``out`` is an array to fill instead of a new one (see ``read``); ``overlay`` is
+        text fixed on the picture (captions, the clock).
         """
         view = view_for(scene, t_s, size_px, camera)
-        geom = self.geometry(scene, t_s, view, transparent)
+        geom = self.geometry(scene, t_s, view, transparent, overlay)
         fbo = self.target(view.size_px)
         self.draw(geom, fbo, top_row_first=True)
         return self.read(fbo, view.size_px, transparent, out)

@@ -32,7 +32,10 @@ from .model import (
     Body,
     BodyShow,
     Camera,
+    CameraKey,
+    Caption,
     Center,
+    Fade,
     Population,
     RenderSettings,
     Scene,
@@ -837,6 +840,141 @@ class _Loader:
         sizes = [s for s in sizes if math.isfinite(s) and s > 0]
         return max(sizes) if sizes else None
 
+    # [[timeline.camera]], [[timeline.fade]], [[timeline.caption]] -----------------------
+
+    def _items(self, t: dict[str, Any], key: spec.Key) -> list[tuple[str, dict[str, Any]]]:
+        """(path, table) of each [[timeline.<key>]] table, keys checked."""
+        v = t.get(key.name)
+        if v is None:
+            return []
+        if not isinstance(v, list) or not all(isinstance(x, dict) for x in v):
+            self.r.problem(f"timeline.{key.name}", f"write each one as a [[timeline.{key.name}]] "
+                           "table")
+            return []
+        out = []
+        for i, item in enumerate(v):
+            path = f"timeline.{key.name}[{i}]"
+            self.r.check_keys(item, key, path)
+            out.append((path, item))
+        return out
+
+    def _show_time(self, t: dict[str, Any], key: str, path: str) -> float | None:
+        if key not in t:
+            return None
+        x = self.r.quantity_value(t[key], f"{path}.{key}", "time", "s")
+        if x is not None and x < 0:
+            self.r.problem(f"{path}.{key}", "times into the show are 0 or later")
+            return None
+        return x
+
+    def _camera_keys(self, t: dict[str, Any]) -> tuple[CameraKey, ...]:
+        r = self.r
+        keys = []
+        for path, item in self._items(t, spec.CAMERA_KEY):
+            at = self._show_time(item, "at", path)
+            if at is None:
+                if "at" not in item:
+                    r.problem(path, 'a camera keyframe needs "at", its time into the show')
+                continue
+            look = r.choice(item, "look", path, ("top", "edge", "angles"))
+            elevation = r.quantity(item, "elevation", path, "angle")
+            if elevation is not None and abs(elevation) > math.pi / 2 + 1e-12:
+                r.problem(f"{path}.elevation", "elevation is -90 to 90 deg")
+                elevation = None
+            azimuth = r.quantity(item, "azimuth", path, "angle")
+            if look is None and (elevation is not None or azimuth is not None):
+                look = "angles"
+            fov = r.quantity(item, "fov", path, "angle")
+            if fov is not None and not 0.0 < fov < math.pi:
+                r.problem(f"{path}.fov", "fov must be above 0 and below 180 deg")
+                fov = None
+            keys.append(CameraKey(
+                at_s=at, ease=r.choice(item, "ease", path, spec.EASES) or "in-out",
+                projection=r.choice(item, "projection", path, ("orthographic", "perspective")),
+                look=look, elevation_rad=elevation, azimuth_rad=azimuth,
+                target=self._target(item, None) if "target" in item else None,
+                width_m=self._positive(item, "width", path),
+                distance_m=self._positive(item, "distance", path), fov_rad=fov))
+        times = [k.at_s for k in keys]
+        if times != sorted(times) or len(set(times)) != len(times):
+            r.problem("timeline.camera", "camera keyframes must be in order of increasing "
+                      '"at", each at a different time')
+        return tuple(keys)
+
+    def _fades(self, t: dict[str, Any]) -> tuple[Fade, ...]:
+        r = self.r
+        fades = []
+        for path, item in self._items(t, spec.FADE):
+            body = r.string(item, "body", path, nonempty=True)
+            if body is None:
+                if "body" not in item:
+                    r.problem(path, 'a fade needs "body": a body\'s name, or "*" for every body')
+                continue
+            if body != "*" and body not in self.body_names:
+                from .values import suggest
+
+                r.problem(f"{path}.body", f'no body is named "{body}"'
+                          f'{suggest(body, self.body_names)}; write a body\'s name or "*"')
+                continue
+            mark = r.choice(item, "mark", path, spec.FADE_MARKS) or "all"
+            times = self._list(item, "at", path, lambda v, w: self.r.quantity_value(
+                v, w, "time", "s"))
+            values = self._list(item, "opacity", path, self._opacity)
+            if times is None or values is None:
+                continue
+            if len(times) != len(values):
+                r.problem(path, f'"at" has {len(times)} times but "opacity" has {len(values)} '
+                          "values; give one opacity per time")
+                continue
+            if any(b <= a for a, b in zip(times[:-1], times[1:], strict=True)) or min(times) < 0:
+                r.problem(f"{path}.at", "times must be 0 or later and increasing")
+                continue
+            fades.append(Fade(body, mark, tuple(times), tuple(values),
+                              r.choice(item, "ease", path, spec.EASES) or "in-out"))
+        return tuple(fades)
+
+    def _opacity(self, v: Any, where: str) -> float | None:
+        if isinstance(v, bool) or not isinstance(v, (int, float)) or not 0.0 <= v <= 1.0:
+            self.r.problem(where, f"{v!r} is not an opacity: a bare number from 0 to 1")
+            return None
+        return float(v)
+
+    def _list(self, t: dict[str, Any], key: str, path: str, parse: Any) -> list[float] | None:
+        where = f"{path}.{key}"
+        if key not in t:
+            self.r.problem(path, f'"{key}" is required here')
+            return None
+        v = t[key]
+        if not isinstance(v, list) or not v:
+            self.r.problem(where, f"{key} is a non-empty list [ ... ], one entry per time")
+            return None
+        out = [parse(x, f"{where}[{i}]") for i, x in enumerate(v)]
+        return None if any(x is None for x in out) else out
+
+    def _captions(self, t: dict[str, Any]) -> tuple[Caption, ...]:
+        r = self.r
+        out = []
+        d = Caption("")
+        for path, item in self._items(t, spec.CAPTION):
+            text = r.string(item, "text", path, nonempty=True, max_len=500)
+            if text is None:
+                if "text" not in item:
+                    r.problem(path, 'a caption needs "text"')
+                continue
+            start = self._show_time(item, "start", path)
+            end = self._show_time(item, "end", path)
+            if start is not None and end is not None and end <= start:
+                r.problem(f"{path}.end", "end must be after start")
+                continue
+            fade = self._show_time(item, "fade", path)
+            size = r.number(item, "size", path, 0.0, 400.0, lo_open=True)
+            out.append(Caption(text, d.start_s if start is None else start,
+                               d.end_s if end is None else end, d.fade_s if fade is None else fade,
+                               r.choice(item, "position", path, spec.CAPTION_POSITIONS)
+                               or d.position, size or d.size_px,
+                               r.color(item, "color", path) or d.color))
+        return tuple(out)
+
     def _timeline(self) -> Timeline:
         r = self.r
         t = r.table(self.data, spec.TIMELINE, "") or {}
@@ -852,8 +990,11 @@ class _Loader:
             if duration is not None and duration <= 0:
                 r.problem("timeline.duration", "duration must be positive")
                 duration = None
+        clock = r.choice(t, "clock", "timeline", ("none", "date", "elapsed")) or "none"
         tl = Timeline(start_s=start or 0.0, rate=rate or d.rate, fps=fps or d.fps,
-                      duration_s=duration or d.duration_s)
+                      duration_s=duration or d.duration_s, clock=clock,
+                      camera_keys=self._camera_keys(t), fades=self._fades(t),
+                      captions=self._captions(t))
         if tl.frame_count < 1 or tl.frame_count > 10_000_000:
             r.problem("timeline", f"duration x fps gives {tl.frame_count} frames; allowed: 1 to "
                       "10,000,000")

@@ -38,6 +38,22 @@ class BodyShow:
 
 
 @dataclass(frozen=True)
+class MarkOpacity:
+    """How opaque each mark of a body is drawn right now (a show's fades set these):
+    0 hides the mark, 1 draws it as its style says."""
+
+    orbit: float = 1.0
+    marker: float = 1.0
+    label: float = 1.0
+    foci: float = 1.0
+    axes: float = 1.0
+    apsides: float = 1.0
+    nodes: float = 1.0
+    velocity: float = 1.0
+    sweep: float = 1.0
+
+
+@dataclass(frozen=True)
 class Sweep:
     """Equal-time sectors: ``count`` sectors of ``interval_s`` from ``start_s`` (scene time)."""
 
@@ -75,6 +91,8 @@ class Body:
     radius_m: float | None = None
     #: Legal but suspicious things about this body (one line each, without its name).
     warnings: tuple[str, ...] = ()
+    #: Opacity of each mark at the frame being drawn (set per frame from the show's fades).
+    fade: MarkOpacity = field(default_factory=MarkOpacity)
 
     def elements_at(self, t_s: float) -> Elements:
         """The body's elements (its true anomaly) at scene time t_s."""
@@ -144,13 +162,68 @@ class RenderSettings:
 
 
 @dataclass(frozen=True)
+class CameraKey:
+    """A camera keyframe at ``at_s`` seconds into the show: the camera keys that change
+    there (None: as at the keyframe before), reached from the previous one with ``ease``.
+    Units as in Camera."""
+
+    at_s: float
+    ease: str = "in-out"
+    projection: str | None = None
+    look: str | None = None
+    elevation_rad: float | None = None
+    azimuth_rad: float | None = None
+    target: str | tuple[float, float, float] | None = None
+    width_m: float | None = None
+    distance_m: float | None = None
+    fov_rad: float | None = None
+
+
+@dataclass(frozen=True)
+class Fade:
+    """Opacity of the ``mark`` of ``body`` ("*": every body) at show times ``at_s``."""
+
+    body: str
+    mark: str
+    at_s: tuple[float, ...]
+    opacity: tuple[float, ...]
+    ease: str = "in-out"
+
+
+@dataclass(frozen=True)
+class Caption:
+    """Text on the picture from ``start_s`` to ``end_s`` seconds into the show, fading in
+    and out over ``fade_s``; ``size_px`` at 1080 px image height."""
+
+    text: str
+    start_s: float = 0.0
+    end_s: float = float("inf")
+    fade_s: float = 0.5
+    position: str = "bottom"
+    size_px: float = 30.0
+    color: RGB = (242 / 255, 242 / 255, 242 / 255)  # "#f2f2f2"
+
+
+@dataclass(frozen=True)
 class Timeline:
-    """Scene time of the show: frame k is at ``start_s + k * rate / fps`` scene seconds."""
+    """Scene time of the show: frame k is at ``start_s + k * rate / fps`` scene seconds.
+
+    Camera keyframes, fades and captions are placed in seconds of show (``k / fps``);
+    ``clock`` is "none", "date" or "elapsed" (an on-screen clock).
+    """
 
     start_s: float = 0.0
     rate: float = 5.0 * 86_400.0  # scene seconds per second of show
     fps: float = 30.0
     duration_s: float = 20.0  # seconds of show
+    clock: str = "none"
+    camera_keys: tuple[CameraKey, ...] = ()
+    fades: tuple[Fade, ...] = ()
+    captions: tuple[Caption, ...] = ()
+
+    def show_time_of_frame(self, k: Any) -> Any:
+        """Seconds into the show of frame k."""
+        return np.asarray(k, dtype=np.float64) / self.fps
 
     @property
     def frame_count(self) -> int:

@@ -466,7 +466,62 @@ def _dump_views(doc: Any, scene: Scene, lu: str, lf: float) -> None:
     tt["rate"] = f"{tl.rate!r} s/s"
     tt["fps"] = tl.fps
     tt["duration"] = f"{tl.duration_s!r} s"
+    if tl.clock != "none":
+        tt["clock"] = tl.clock
+    _dump_show(tt, tl, lu, lf)
     doc["timeline"] = tt
+
+
+def _dump_show(tt: Any, tl: Any, lu: str, lf: float) -> None:
+    """The show's keyframes, fades and captions as [[timeline.*]] tables."""
+    import tomlkit
+
+    if tl.camera_keys:
+        aot = tomlkit.aot()
+        for key in tl.camera_keys:
+            t = tomlkit.table()
+            t["at"] = f"{key.at_s!r} s"
+            t["ease"] = key.ease
+            for name in ("projection", "look"):
+                if getattr(key, name) is not None:
+                    t[name] = getattr(key, name)
+            for name, field in (("elevation", "elevation_rad"), ("azimuth", "azimuth_rad"),
+                                ("fov", "fov_rad")):
+                if getattr(key, field) is not None:
+                    t[name] = f"{math.degrees(getattr(key, field))!r} deg"
+            if key.target is not None:
+                t["target"] = (key.target if isinstance(key.target, str)
+                               else [_q(x, lu, lf) for x in key.target])
+            for name, field in (("width", "width_m"), ("distance", "distance_m")):
+                if getattr(key, field) is not None:
+                    t[name] = _q(getattr(key, field), lu, lf)
+            aot.append(t)
+        tt["camera"] = aot
+    if tl.fades:
+        aot = tomlkit.aot()
+        for f in tl.fades:
+            t = tomlkit.table()
+            t["body"] = f.body
+            t["mark"] = f.mark
+            t["at"] = [f"{x!r} s" for x in f.at_s]
+            t["opacity"] = list(f.opacity)
+            t["ease"] = f.ease
+            aot.append(t)
+        tt["fade"] = aot
+    if tl.captions:
+        aot = tomlkit.aot()
+        for c in tl.captions:
+            t = tomlkit.table()
+            t["text"] = c.text
+            t["start"] = f"{c.start_s!r} s"
+            if math.isfinite(c.end_s):
+                t["end"] = f"{c.end_s!r} s"
+            t["fade"] = f"{c.fade_s!r} s"
+            t["position"] = c.position
+            t["size"] = c.size_px
+            t["color"] = _hex(c.color)
+            aot.append(t)
+        tt["caption"] = aot
 
 
 def save_scene(scene: Scene, path: str | Path) -> Path:

@@ -35,6 +35,7 @@ _RANGES: dict[str, dict[str, Any]] = {
     "body.sweep.count": {"minimum": 1, "maximum": 1000},
     "body.sweep.opacity": {"minimum": 0, "maximum": 1},
     "timeline.fps": {"exclusiveMinimum": 0, "maximum": 1000},
+    "timeline.caption.size": {"exclusiveMinimum": 0, "maximum": 400},
     "scene.format": {"enum": [1]},
     "population.point_size": {"exclusiveMinimum": 0, "maximum": 100},
     "population.generate.count": {"minimum": 1, "maximum": 5_000_000},
@@ -69,6 +70,9 @@ _RULES: dict[str, dict[str, Any]] = {
         "oneOf": [{"required": ["table"]}, {"required": ["generate"]}],
     },
     "population.generate": {"required": ["count", "a"]},
+    "timeline.camera": {"required": ["at"]},
+    "timeline.fade": {"required": ["body", "at", "opacity"]},
+    "timeline.caption": {"required": ["text"]},
 }
 
 
@@ -81,6 +85,13 @@ def _value(key: Key, path: str) -> dict[str, Any]:
     out: dict[str, Any]
     if kind in ("length", "time", "angle", "gm", "rate"):
         out = dict(_QUANTITY)
+    elif kind == "show_time":
+        out = dict(_QUANTITY)
+    elif kind == "show_times":
+        out = {"type": "array", "items": _QUANTITY, "minItems": 1}
+    elif kind == "opacities":
+        out = {"type": "array", "items": {"type": "number", "minimum": 0, "maximum": 1},
+               "minItems": 1}
     elif kind == "time_or_epoch":
         out = {"anyOf": [{"type": "number"}, {"type": "string", "pattern": QUANTITY_PATTERN},
                          {"type": "string", "pattern": EPOCH_PATTERN}]}

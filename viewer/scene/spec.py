@@ -28,6 +28,9 @@ KINDS: dict[str, str] = {
     "epoch": 'an ISO 8601 epoch in quotes, such as "2030-01-01T00:00:00 TDB"',
     "time_or_epoch": 'an offset from the scene epoch ("90 d", "-15 d") or an epoch',
     "color": 'a hex colour such as "#7fd0ff"',
+    "show_time": 'a time into the show such as "8 s" (a bare number is in seconds)',
+    "show_times": 'a list of times into the show, such as ["0 s", "2 s", "8 s"]',
+    "opacities": "a list of bare numbers from 0 to 1, one per time",
     "choice": "one of the listed words, in quotes",
     "target": '"center", a body\'s name, or [x, y, z] in the length unit',
     "size": "[width, height] in pixels",
@@ -178,12 +181,52 @@ RENDER = Key("render", "table", "image settings", keys=(
     Key("labels", "bool", "all labels", "true"),
 ))
 
+#: Ways a keyframed value moves from one key to the next.
+EASES = ("in-out", "linear", "in", "out")
+#: The marks of a body whose opacity a fade can change.
+FADE_MARKS = ("all", "orbit", "marker", "label", "foci", "axes", "apsides", "nodes",
+              "velocity", "sweep")
+CAPTION_POSITIONS = ("bottom", "top", "center", "bottom-left", "bottom-right", "top-left",
+                     "top-right")
+
+CAMERA_KEY = Key("camera", "tables", "camera keyframes: at a time of the show, the camera "
+                 "keys that change there; values ease from one keyframe to the next", keys=(
+    Key("at", "show_time", "the time into the show of this keyframe", required=True),
+    Key("ease", "choice", "how values move from the previous keyframe to this one",
+        "in-out", EASES),
+    *(k for k in CAMERA.keys),
+))
+
+FADE = Key("fade", "tables", "the opacity of a body's marks over the show", keys=(
+    Key("body", "name", 'the body\'s name, or "*" for every body', required=True),
+    Key("mark", "choice", "which marks fade", "all", FADE_MARKS),
+    Key("at", "show_times", "times into the show, increasing", required=True),
+    Key("opacity", "opacities", "the opacity at each time (0 hidden, 1 as drawn)",
+        required=True),
+    Key("ease", "choice", "how the opacity moves between the times", "in-out", EASES),
+))
+
+CAPTION = Key("caption", "tables", "text on the picture for part of the show", keys=(
+    Key("text", "name", "the caption's text", required=True),
+    Key("start", "show_time", "when it appears", "0 s"),
+    Key("end", "show_time", "when it is gone", "the end of the show"),
+    Key("fade", "show_time", "fade-in and fade-out time", "0.5 s"),
+    Key("position", "choice", "where on the picture", "bottom", CAPTION_POSITIONS),
+    Key("size", "number", "text height in pixels at 1080 px image height", "30"),
+    Key("color", "color", "the text's colour", "#f2f2f2"),
+))
+
 TIMELINE = Key("timeline", "table", "scene time of the show", keys=(
     Key("start", "time_or_epoch", "scene time of frame 0", "0 d"),
     Key("rate", "rate", "scene time per second of show (negative runs backwards)",
         "5 d/s"),
     Key("fps", "number", "frames per second of show, above 0 and at most 1000", "30"),
     Key("duration", "time", "length of the show (bare number: seconds)", "20 s"),
+    Key("clock", "choice", "an on-screen clock: the scene date, or days since the start",
+        "none", ("none", "date", "elapsed")),
+    CAMERA_KEY,
+    FADE,
+    CAPTION,
 ))
 
 GENERATE = Key("generate", "table", "a deterministic random belt instead of a table file",
