@@ -197,3 +197,32 @@ def test_progress_prints_rate_and_time_left_then_a_summary() -> None:
     for _ in range(6):
         p.advance(skipped=True)
     assert p.finish("out/") == "4 frames in 0:05, 0.8/s, 6 already complete, skipped -> out/"
+
+
+def test_a_full_disk_during_a_video_leaves_no_partial_file(tmp_path: Path) -> None:
+    # ffmpeg inherits the child's 20 kB file-size limit; the video needs more.
+    script = textwrap.dedent(f"""
+        import io, resource, signal, sys
+        import numpy as np
+        signal.signal(signal.SIGXFSZ, signal.SIG_IGN)
+        resource.setrlimit(resource.RLIMIT_FSIZE, (20_000, 20_000))
+        from pathlib import Path
+        from viewer.cli import report_input_error
+        from viewer.errors import UserInputError
+        from viewer.export.frames import render_video
+        rng = np.random.default_rng(2)
+        def noisy(k):
+            return rng.integers(0, 255, (64, 64, 4), dtype=np.uint8)
+        try:
+            render_video(range(60), noisy, Path({str(tmp_path / "show.mp4")!r}), (64, 64), 24,
+                         stream=io.StringIO())
+        except UserInputError as err:
+            report_input_error(err)
+            sys.exit(2)
+    """)
+    proc = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True)
+    assert proc.returncode == 2, proc.stderr
+    assert "writing the video failed" in proc.stderr
+    assert "file size limit" in proc.stderr
+    assert "Traceback" not in proc.stderr
+    assert list(tmp_path.iterdir()) == []

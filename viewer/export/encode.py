@@ -10,8 +10,11 @@ from __future__ import annotations
 import concurrent.futures
 import errno
 import io
+import queue
+import signal
 import subprocess
 import tempfile
+import threading
 import zlib
 from pathlib import Path
 from typing import Any
@@ -138,8 +141,10 @@ class StillWriter:
         self.close()
 
 
-#: --quality names for video -> x264 CRF and preset.
-VIDEO_QUALITY = {"draft": (28, "ultrafast"), "preview": (23, "veryfast"),
+#: --quality names for video -> x264 CRF and preset. "preview" (the default) is
+#: superfast: on 2 cores shared with llvmpipe it keeps 1080p output above 30 frames/s
+#: (veryfast does not; docs/performance.md), at about twice veryfast's file size.
+VIDEO_QUALITY = {"draft": (28, "ultrafast"), "preview": (23, "superfast"),
                  "final": (17, "slow")}
 
 
@@ -152,12 +157,13 @@ def check_video_size(width: int, height: int) -> None:
 
 
 class VideoWriter:
-    """H.264 MP4: raw RGB frames piped into the ffmpeg that imageio-ffmpeg ships.
+    """H.264 MP4: raw RGBA frames piped into the ffmpeg that imageio-ffmpeg ships.
 
     We run that binary ourselves (``imageio_ffmpeg.get_ffmpeg_exe()``) rather than through
     its ``write_frames`` generator, which leaves pipe files unclosed (imageio-ffmpeg issue
     #61); this way the pipes are closed and ffmpeg's own error text is kept for a clear
-    message.
+    message. A feeder thread writes into the pipe (the write releases the GIL), so the
+    next frame renders while ffmpeg takes in the last one.
     """
 
     def __init__(self, path: Path, size: tuple[int, int], fps: float,
@@ -169,24 +175,41 @@ class VideoWriter:
         w, h = size
         self.size = size
         cmd = [imageio_ffmpeg.get_ffmpeg_exe(), "-y", "-loglevel", "error",
-               "-f", "rawvideo", "-pix_fmt", "rgb24", "-s", f"{w}x{h}", "-r", f"{fps}",
+               "-f", "rawvideo", "-pix_fmt", "rgba", "-s", f"{w}x{h}", "-r", f"{fps}",
                "-i", "-", "-an", "-c:v", "libx264", "-preset", preset, "-crf", str(crf),
                "-pix_fmt", "yuv420p", "-movflags", "+faststart", "-f", "mp4", str(path)]
         self._err = tempfile.TemporaryFile()
         self._proc = subprocess.Popen(cmd, stdin=subprocess.PIPE, stdout=subprocess.DEVNULL,
                                       stderr=self._err)
+        self._queue: queue.Queue[np.ndarray | None] = queue.Queue(maxsize=2)
+        self._broken = False
+        self._feeder = threading.Thread(target=self._feed, daemon=True)
+        self._feeder.start()
+
+    def _feed(self) -> None:
+        stdin = self._proc.stdin
+        assert stdin is not None
+        while (frame := self._queue.get()) is not None:
+            if self._broken:
+                continue
+            try:
+                stdin.write(memoryview(frame))
+            except (BrokenPipeError, OSError):
+                self._broken = True  # ffmpeg has stopped; close() reports its reason
 
     def write(self, rgba: np.ndarray) -> None:
         if rgba.dtype != np.uint8:
             rgba = (rgba >> 8).astype(np.uint8)
-        assert self._proc.stdin is not None
-        try:
-            self._proc.stdin.write(np.ascontiguousarray(rgba[..., :3]).tobytes())
-        except BrokenPipeError:
+        if self._broken:
             self.close()  # raises with ffmpeg's reason
+        # RGBA as it comes from the renderer, no copy: ffmpeg drops the alpha itself.
+        self._queue.put(np.ascontiguousarray(rgba))
 
     def close(self) -> None:
         """Finish the file; raises OSError with ffmpeg's message if it failed."""
+        if self._feeder.is_alive():
+            self._queue.put(None)
+            self._feeder.join()
         if self._proc.stdin is not None and not self._proc.stdin.closed:
             try:
                 self._proc.stdin.close()
@@ -197,6 +220,12 @@ class VideoWriter:
         text = self._err.read().decode(errors="replace").strip()
         self._err.close()
         if code != 0:
+            if code < 0:  # killed by a signal; SIGXFSZ is the file-size limit
+                name = signal.Signals(-code).name
+                reason = text.splitlines()[-1] if text else f"ffmpeg was stopped by {name}"
+                if -code == signal.SIGXFSZ:
+                    raise OSError(errno.EFBIG, reason)
+                raise OSError(reason)
             reason = text.splitlines()[-1] if text else f"ffmpeg exited with code {code}"
             err = errno.ENOSPC if "No space left" in text else (
                 errno.EFBIG if "File too large" in text else None)
