@@ -161,6 +161,23 @@ def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
     return E, d5
 
 
+#: Elements per block in ``_markley_chunked``: the starter's dozens of temporaries then
+#: stay in the CPU cache; 32k blocks are about twice as fast as one pass over 1e6 values.
+_BLOCK = 32_768
+
+
+def _markley_chunked(M: Floats, e: Floats) -> tuple[Floats, Floats]:
+    """``_markley`` over blocks of a large array (the same values, computed faster)."""
+    if M.size <= _BLOCK:
+        return _markley(M, e)
+    Mf, ef = M.reshape(-1), np.broadcast_to(e, M.shape).reshape(-1)
+    E = np.empty_like(Mf)
+    last = np.empty_like(Mf)
+    for i in range(0, Mf.size, _BLOCK):
+        E[i:i + _BLOCK], last[i:i + _BLOCK] = _markley(Mf[i:i + _BLOCK], ef[i:i + _BLOCK])
+    return E.reshape(M.shape), last.reshape(M.shape)
+
+
 @_underflow_is_fine
 def eccentric_anomaly(M: ArrayLike, e: ArrayLike, tol: float = 1e-13) -> float | Floats:
     """Eccentric anomaly E solving Kepler's equation M = E - e sin E, for 0 <= e < 1.
@@ -184,7 +201,7 @@ def eccentric_anomaly(M: ArrayLike, e: ArrayLike, tol: float = 1e-13) -> float |
     turns = np.rint(M_b * (1.0 / TWO_PI))
     Mr = M_b - turns * TWO_PI  # [-pi, pi], as accurate as float64 allows
     Ma = np.abs(Mr)
-    E, last = _markley(Ma, e_b)
+    E, last = _markley_chunked(Ma, e_b)
     check = np.flatnonzero(np.abs(last) > 1e-4)
     if check.size:
         Ec, Mc, ec = E.flat[check], Ma.flat[check], e_b.flat[check]

@@ -336,7 +336,9 @@ def elements_from_state(r: ArrayLike, v: ArrayLike, mu: float) -> Elements:
     e = _norm(e_vec)
     p = hn * hn / mu
 
-    i = np.arccos(np.clip(w_hat[..., 2], -1.0, 1.0))
+    # atan2 of the in-plane and normal parts of h, not acos(h_z/|h|): acos loses every
+    # digit of i near 0 and 180 deg, where a few millimetres out of the plane matter.
+    i = np.arctan2(np.hypot(h_vec[..., 0], h_vec[..., 1]), h_vec[..., 2])
     node = np.stack([-h_vec[..., 1], h_vec[..., 0], np.zeros_like(hn)], axis=-1)
     nn = _norm(node)
     equatorial = nn < EQUATORIAL_SIN_I * hn
