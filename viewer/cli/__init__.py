@@ -30,6 +30,7 @@ COMMANDS: dict[str, str] = {
     "open": "open",
     "render": "render",
     "demo": "demo",
+    "timing": "timing",
 }
 
 CAUTION = (
