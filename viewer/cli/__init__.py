@@ -21,16 +21,16 @@ from ..errors import UserInputError
 
 #: Subcommand name -> module in this package. A command is listed only once it works.
 COMMANDS: dict[str, str] = {
+    "demo": "demo",
+    "open": "open",
     "check": "check",
+    "render": "render",
     "convert": "convert",
-    "bench": "bench",
+    "timing": "timing",
+    "transfer": "transfer",
     "import": "import_",
     "ephemeris": "ephemeris",
-    "transfer": "transfer",
-    "open": "open",
-    "render": "render",
-    "demo": "demo",
-    "timing": "timing",
+    "bench": "bench",
 }
 
 CAUTION = (

@@ -78,7 +78,8 @@ def unit_factor(unit: str, dimension: str) -> float:
             raise QuantityError(
                 f"unit {unit!r} is {_an(other)}, not {_an(dimension)}; "
                 f"allowed: {_allowed(dimension)}")
-    raise QuantityError(f"unknown unit {unit!r}; allowed for a {dimension}: {_allowed(dimension)}")
+    raise QuantityError(f"unknown unit {unit!r}; allowed for {_an(dimension)}: "
+                        f"{_allowed(dimension)}")
 
 
 def parse_quantity(value: object, dimension: str, default_unit: str | None = None) -> float:
