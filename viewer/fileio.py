@@ -27,15 +27,14 @@ def _umask() -> int:
     return mask
 
 
-def _fsync_dir(folder: Path) -> None:
+def fsync_dir(folder: Path) -> None:
+    """Make a rename in ``folder`` durable (POSIX); a no-op where folders cannot be opened."""
     try:
         fd = os.open(folder, os.O_RDONLY)
     except OSError:
         return
     try:
-        os.fsync(fd)
-    except OSError:
-        pass
+        os.fsync(fd)  # a failure here is reported: the rename may not survive a crash
     finally:
         os.close(fd)
 
@@ -74,7 +73,7 @@ def atomic_path(target: str | os.PathLike[str], suffix: str | None = None) -> It
         with open(tmp, "rb+") as f:
             os.fsync(f.fileno())
         os.replace(tmp, target)
-        _fsync_dir(folder)
+        fsync_dir(folder)
     except BaseException:
         with contextlib.suppress(OSError):
             tmp.unlink()

@@ -187,16 +187,7 @@ def _tidy_inline(node: Any) -> None:
 # --- writing files -------------------------------------------------------------------
 
 
-def _fsync_dir(folder: Path) -> None:
-    """Make a rename in ``folder`` durable (POSIX); a no-op where folders cannot be opened."""
-    try:
-        fd = os.open(folder, os.O_RDONLY)
-    except OSError:
-        return
-    try:
-        os.fsync(fd)
-    finally:
-        os.close(fd)
+from ..fileio import fsync_dir as _fsync_dir  # noqa: E402  (one implementation)
 
 
 def _temp_in(folder: Path, name: str) -> tuple[int, str]:
