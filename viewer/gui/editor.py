@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
 
@@ -23,7 +24,7 @@ from ..scene.loader import PALETTE
 from ..scene.model import Body, BodyShow, Center, Scene, Sweep
 from ..scene.report import orbit_warnings
 from ..scene.values import parse_color
-from ..units import QuantityError, parse_quantity
+from ..units import EpochError, QuantityError, parse_epoch, parse_quantity
 from .elements_edit import FIELDS, HOLDS, EditRefused, edit_elements
 
 __all__ = ["Editor", "EditRefused", "FIELDS", "HOLDS"]
@@ -269,6 +270,24 @@ class Editor:
                    f"add {name}")
         return k
 
+    def add_bodies(self, bodies: Sequence[Body], label: str) -> list[int]:
+        """Append ``bodies`` in one edit (one undo step); a name already in use gets a
+        number. Selects the first of them and returns their indices."""
+        if not bodies:
+            return []
+        c = self.scene.center
+        taken = {b.name for b in self.scene.bodies}
+        added = []
+        for b in bodies:
+            name = _unique(b.name, taken)
+            taken.add(name)
+            added.append(_with_elements(replace(b, name=name), b.elements.with_(
+                mu=c.gm_m3_s2), c))
+        first = len(self.scene.bodies)
+        ids = (*self._now.ids, *(self._new_id() for _ in added))
+        self._push(self._with_bodies([*self.scene.bodies, *added]), first, ids, label)
+        return list(range(first, first + len(added)))
+
     def duplicate(self, index: int | None = None) -> int:
         """Copy a body (named "... copy") just after it; select and return the copy."""
         k = self._index(index)
@@ -449,6 +468,33 @@ class Editor:
                   for b in self.scene.bodies]
         scene = _refresh_scene_warnings(replace(self.scene, center=center, bodies=tuple(bodies)))
         self._push(scene, self._now.selection, self._now.ids, "central body")
+
+    # --- the scene epoch --------------------------------------------------------------
+
+    def set_epoch(self, text: str) -> bool:
+        """Set the scene epoch (t = 0 of the scene and of its timeline) from ISO 8601 text
+        with a time scale ("2031-03-14T06:00:00 UTC"; TDB when none; TT, TAI too).
+
+        Bodies and populations keep their own epochs, so each is where it was at every
+        date; the timeline start and sector starts stay offsets from the (new) epoch.
+        Returns False when the text names the current epoch in its scale (no edit);
+        raises EditRefused (nothing changed) for text that is not an epoch.
+        """
+        try:
+            new = parse_epoch(text)
+        except EpochError as err:
+            raise EditRefused("epoch", str(err)) from None
+        old = self.scene.epoch
+        if new == old:
+            return False
+        shift_s = new.seconds_since(old)
+        bodies = [replace(b, epoch_offset_s=b.epoch_offset_s - shift_s)
+                  for b in self.scene.bodies]
+        pops = [replace(p, epoch_offset_s=p.epoch_offset_s - shift_s)
+                for p in self.scene.populations]
+        scene = replace(self.scene, epoch=new, bodies=tuple(bodies), populations=tuple(pops))
+        self._push(scene, self._now.selection, self._now.ids, "scene epoch")
+        return True
 
     # --- saving -----------------------------------------------------------------------
 

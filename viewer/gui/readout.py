@@ -38,16 +38,17 @@ def format_length(x_m: float | None, scene_unit: str = "au") -> str:
     return f"{x_m / AU_M:.7g} au"
 
 
-def format_time(t_s: float | None) -> str:
-    """A duration in the largest unit that keeps it above about 1: s, min, h, d or yr."""
+def format_time(t_s: float | None, digits: int = 7) -> str:
+    """A duration in the largest unit that keeps it above about 1: s, min, h, d or yr,
+    with ``digits`` significant digits."""
     if t_s is None or not math.isfinite(t_s):
         return "none"
     a = abs(t_s)
     for limit, factor, unit in ((120.0, 1.0, "s"), (3 * 3600.0, 60.0, "min"),
                                 (3 * DAY_S, 3600.0, "h"), (2 * JULIAN_YEAR_S, DAY_S, "d")):
         if a < limit:
-            return f"{t_s / factor:.7g} {unit}"
-    return f"{t_s / JULIAN_YEAR_S:.7g} yr"
+            return f"{t_s / factor:.{digits}g} {unit}"
+    return f"{t_s / JULIAN_YEAR_S:.{digits}g} yr"
 
 
 def format_speed(v_m_s: float | None) -> str:

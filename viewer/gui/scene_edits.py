@@ -13,6 +13,7 @@ validates the result with the loader and writes it atomically (through
 from __future__ import annotations
 
 import math
+import re
 import tomllib
 from dataclasses import replace
 from pathlib import Path
@@ -25,6 +26,12 @@ from ..scene.save import SaveError, dump_scene, edit_text, save_text
 Edit = tuple[str, Any]
 _SIZE_KEYS = ("a", "period", "periapsis", "apoapsis")
 _ANOMALY_KEYS = ("M", "nu", "tp")
+#: A time written as a date rather than an offset from the scene epoch.
+_DATE = re.compile(r"^\s*[+-]?\d{4}-\d{2}-\d{2}")
+
+
+def _is_date(value: Any) -> bool:
+    return isinstance(value, str) and _DATE.match(value) is not None
 
 
 def _hex(rgb: tuple[float, float, float]) -> str:
@@ -50,12 +57,18 @@ def _mean_anomaly(body: Body) -> float:
     return float(mean_from_true(body.elements.nu, body.elements.e))
 
 
-def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, Any]
-                ) -> list[Edit]:
-    """Key edits turning the file's table ``raw`` (which loaded as ``old``) into ``new``."""
+def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, Any],
+                epoch_moved: bool = False) -> list[Edit]:
+    """Key edits turning the file's table ``raw`` (which loaded as ``old``) into ``new``.
+
+    ``epoch_moved``: the scene epoch changed, so a sector start written as a date is
+    rewritten as the offset the Scene holds.
+    """
     from ..units import unit_factor
 
-    if new == old:
+    sweep_date = epoch_moved and isinstance(raw.get("sweep"), dict) and _is_date(
+        raw["sweep"].get("start"))
+    if new == old and not sweep_date:
         return []
     out: list[Edit] = []
     d = body_table(scene, new)
@@ -94,6 +107,11 @@ def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, An
             if "tp" in raw:
                 out.append((f"{path}.tp", None))
             out.append((f"{path}.M", _deg(_mean_anomaly(new))))
+    elif epoch_moved and "tp" in raw and not _is_date(raw["tp"]):
+        # tp as an offset counts from the scene epoch, which moved: the same periapsis
+        # time, counted from the new epoch.
+        tp_s = new.epoch_offset_s - float(el.time_since_periapsis)
+        out.append((f"{path}.tp", f"{tp_s!r} s"))
     if new.color != old.color:
         out.append((f"{path}.color", _hex(new.color)))
     if new.line_width_px != old.line_width_px:
@@ -105,7 +123,7 @@ def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, An
         if new.show.sweep != (new.sweep is not None):
             flags["sweep"] = new.show.sweep
         out.append((f"{path}.show", flags or None))
-    if new.sweep != old.sweep:
+    if new.sweep != old.sweep or sweep_date:
         out.append((f"{path}.sweep", d.get("sweep")))
     for attr, key in (("radius_m", "radius"), ("epoch_offset_s", "epoch")):
         if getattr(new, attr) != getattr(old, attr):
@@ -136,13 +154,37 @@ def _center_edits(scene: Scene, saved: Scene, raw: dict[str, Any]) -> list[Edit]
     return out
 
 
+def epoch_text(epoch: Any) -> str:
+    """An epoch as the file writes it: microseconds, none when they are zero."""
+    text = epoch.iso(decimals=6)
+    return text.replace(".000000 ", " ")
+
+
+def _epoch_edits(scene: Scene, saved: Scene, data: dict[str, Any]) -> list[Edit]:
+    """The scene epoch, and what depends on it: population epochs, a timeline start
+    written as a date (bodies' epochs are body keys)."""
+    if scene.epoch == saved.epoch:
+        return []
+    out: list[Edit] = [("scene.epoch", epoch_text(scene.epoch))]
+    timeline = data.get("timeline")
+    if isinstance(timeline, dict) and _is_date(timeline.get("start")):
+        out.append(("timeline.start", f"{scene.timeline.start_s!r} s"))
+    for k, (pop, old) in enumerate(zip(scene.populations, saved.populations, strict=False)):
+        if pop.epoch_offset_s != old.epoch_offset_s:
+            out.append((f"population[{k}].epoch", epoch_text(scene.epoch.plus_seconds(
+                pop.epoch_offset_s)) if pop.epoch_offset_s else None))
+    return out
+
+
 def scene_file_edits(scene: Scene, saved: Scene, origins: tuple[int | None, ...],
                      file_text: str) -> list[Edit]:
     """Key edits (in order) that turn ``file_text`` (which loaded as ``saved``) into
     ``scene``; ``origins[k]`` is the file index of body k of ``scene`` or None if new."""
     data = tomllib.loads(file_text)
     raw_bodies: list[dict[str, Any]] = data.get("body", [])
-    edits: list[Edit] = _center_edits(scene, saved, data.get("center", {}))
+    edits: list[Edit] = _epoch_edits(scene, saved, data)
+    edits += _center_edits(scene, saved, data.get("center", {}))
+    moved = scene.epoch != saved.epoch
     kept = [o for o in origins if o is not None]
     gone = sorted(set(range(len(saved.bodies))) - set(kept), reverse=True)
     if gone and not kept:
@@ -162,7 +204,7 @@ def scene_file_edits(scene: Scene, saved: Scene, origins: tuple[int | None, ...]
         o = origins[k]
         assert o is not None
         edits.extend(_body_edits(f"body[{k}]", scene, scene.bodies[k], saved.bodies[o],
-                                 raw_bodies[o]))
+                                 raw_bodies[o], moved))
     for k in range(in_place, len(scene.bodies)):
         table = body_table(scene, scene.bodies[k])
         edits.append((f"body[{k}]" if k < len(kept) else "body[+]", table))

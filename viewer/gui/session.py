@@ -1,0 +1,203 @@
+"""What one window shows and is doing: the editor, the clock, the camera, the open
+dialogs and prompts, a running render job. Plain Python: no imgui (the panels read and
+call it; the window owns it).
+
+The flows a user walks through live here, so they are tested without a window:
+
+* quit or open another scene with unsaved changes: the unsaved-changes prompt comes
+  first (save, discard, keep editing), then the action;
+* open a scene: a path typed into our own dialog; the scene loader's problems are shown
+  in the dialog, one line each, and the current scene is kept;
+* a still of the current view (PNG, JPEG, SVG) and a render job of the timeline (a frame
+  folder or an .mp4) through ``jobs``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from ..errors import UserInputError
+from .clock import Clock
+from .editor import Editor
+from .jobs import RenderJob, export_still, job_request, still_request
+
+__all__ = ["Session"]
+
+
+@dataclass
+class Session:
+    """What the window shows: the editor, the clock, the camera and the open dialogs.
+
+    ``renderer`` is the window's ``viewer.render.Renderer`` (stills are drawn with it);
+    ``job`` the render job running or last run.
+    """
+
+    editor: Editor
+    clock: Clock
+    camera: Any
+    show_help: bool = False
+    show_plots: bool = False
+    message: str = ""
+    quit_now: bool = False
+    #: While the unsaved-changes prompt is up: what follows it ("quit" or "open").
+    unsaved_for: str = ""
+    save_as_prompt: bool = False
+    save_as_text: str = ""
+    open_prompt: bool = False
+    open_text: str = ""
+    open_errors: list[str] = field(default_factory=list)
+    still_prompt: bool = False
+    still_text: str = ""
+    still_size: str = ""
+    still_errors: list[str] = field(default_factory=list)
+    job_prompt: bool = False
+    job_text: str = ""
+    job_size: str = ""
+    job_frames: str = ""
+    job_format: str = "png"
+    job_quality: str = "preview"
+    job_window_camera: bool = True
+    job_errors: list[str] = field(default_factory=list)
+    job: RenderJob | None = None
+    renderer: Any = None
+
+    @property
+    def quit_prompt(self) -> bool:
+        """True while the unsaved-changes prompt asks before quitting."""
+        return self.unsaved_for == "quit"
+
+    @property
+    def any_dialog(self) -> bool:
+        """True while a modal prompt or dialog takes the keyboard."""
+        return bool(self.unsaved_for or self.save_as_prompt or self.open_prompt
+                    or self.still_prompt or self.job_prompt)
+
+    # --- quitting, saving -------------------------------------------------------------------
+
+    def request_quit(self) -> None:
+        """Quit, asking first if there are unsaved changes. A running render job is
+        cancelled (its finished frames stay; a video's temporary file is removed)."""
+        if self.editor.dirty:
+            self.unsaved_for = "quit"
+        else:
+            self.quit_now = True
+
+    def save(self) -> None:
+        try:
+            path = self.editor.save()
+            self.message = f"saved {path}"
+        except UserInputError as err:
+            if self.editor.path is None:
+                self.open_save_as()
+            else:
+                self.message = "not saved: " + "; ".join(err.problems)
+
+    def open_save_as(self) -> None:
+        self.save_as_prompt = True
+        self.save_as_text = str(self.editor.path or Path.cwd() / "scene.toml")
+
+    def unsaved_choice(self, choice: str) -> None:
+        """The answer to the unsaved-changes prompt: "save" (then go on if it saved),
+        "discard" (go on; nothing is lost until another scene is opened) or "cancel"."""
+        action, self.unsaved_for = self.unsaved_for, ""
+        if choice == "cancel" or not action:
+            return
+        if choice == "save":
+            self.save()
+            if self.editor.dirty:  # not saved (the message says why) or save-as opened
+                return
+        if action == "quit":
+            self.quit_now = True
+        elif action == "open":
+            self.show_open()
+
+    # --- opening another scene --------------------------------------------------------------
+
+    def request_open(self) -> None:
+        """Open another scene: the unsaved-changes prompt first, then the path dialog."""
+        if self.editor.dirty:
+            self.unsaved_for = "open"
+        else:
+            self.show_open()
+
+    def show_open(self) -> None:
+        self.open_prompt = True
+        self.open_errors = []
+        if not self.open_text:
+            folder = self.editor.path.parent if self.editor.path else Path.cwd()
+            self.open_text = str(folder) + "/"
+
+    def open_scene(self, path_text: str | None = None) -> bool:
+        """Load the scene at ``path_text`` (default: what the dialog holds) and show it.
+        On a problem the dialog lists the loader's lines and the current scene stays."""
+        text = (self.open_text if path_text is None else path_text).strip()
+        if not text:
+            self.open_errors = ["give the path of a .toml scene file"]
+            return False
+        try:
+            editor = Editor.open(Path(text).expanduser())
+        except UserInputError as err:
+            self.open_errors = [f"{err.source}:"] + [f"  {p}" for p in err.problems]
+            return False
+        self.replace_editor(editor)
+        self.open_prompt = False
+        self.open_errors = []
+        self.message = f"opened {editor.path}"
+        return True
+
+    def replace_editor(self, editor: Editor) -> None:
+        """Show another scene: its editor, a clock at its timeline start, its camera."""
+        self.editor = editor
+        self.clock = Clock.for_scene(editor.scene)
+        self.camera = editor.scene.camera
+        self.still_text = self.job_text = ""
+
+    # --- exports ------------------------------------------------------------------------------
+
+    def _stem(self) -> Path:
+        p = self.editor.path
+        return p.with_suffix("") if p is not None else Path.cwd() / "scene"
+
+    def show_still(self) -> None:
+        self.still_prompt = True
+        self.still_errors = []
+        if not self.still_text:
+            self.still_text = str(self._stem()) + ".png"
+
+    def export_still(self) -> bool:
+        """Write the still the dialog describes: the current view at the current time."""
+        try:
+            request = still_request(self.still_text, self.still_size, self.editor.scene)
+            self.message = export_still(self.editor.scene, self.camera, self.clock.t_s,
+                                        request, self.renderer)
+        except UserInputError as err:
+            self.still_errors = [f"{err.source}: {p}" for p in err.problems]
+            return False
+        self.still_prompt = False
+        self.still_errors = []
+        return True
+
+    def show_job(self) -> None:
+        self.job_prompt = True
+        self.job_errors = []
+        if not self.job_text:
+            self.job_text = str(self._stem()) + "-frames/"
+
+    def start_job(self) -> bool:
+        """Start the render job the dialog describes (one at a time)."""
+        if self.job is not None and self.job.active:
+            self.job_errors = ["a render is running; cancel it or wait for it to finish"]
+            return False
+        try:
+            request = job_request(self.job_text, self.job_size, self.job_frames,
+                                  self.editor.scene, self.job_format, self.job_quality)
+        except UserInputError as err:
+            self.job_errors = [f"{err.source}: {p}" for p in err.problems]
+            return False
+        self.job = RenderJob(self.editor.scene,
+                             self.camera if self.job_window_camera else None, request)
+        self.job_prompt = False
+        self.job_errors = []
+        return True
