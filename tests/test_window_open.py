@@ -187,7 +187,7 @@ def start_viewer(display: Display, tmp: Path, scene: Path, report: Path) -> subp
                                 stdout=log, stderr=subprocess.STDOUT)
 
 
-def _window_origin(display: Display) -> tuple[int, int]:
+def window_origin(display: Display) -> tuple[int, int]:
     wid = wait_for(lambda: display.xdotool("search", "--name", "Perifocal").split(),
                    what="the window to be mapped")[0]
     geo = display.xdotool("getwindowgeometry", "--shell", wid)
@@ -195,7 +195,7 @@ def _window_origin(display: Display) -> tuple[int, int]:
     return int(values["X"]), int(values["Y"])
 
 
-def _click(display: Display, origin: tuple[int, int], rect: list[float]) -> None:
+def click(display: Display, origin: tuple[int, int], rect: list[float]) -> None:
     x = origin[0] + int((rect[0] + rect[2]) / 2)
     y = origin[1] + int((rect[1] + rect[3]) / 2)
     display.xdotool("mousemove", str(x), str(y))
@@ -203,11 +203,21 @@ def _click(display: Display, origin: tuple[int, int], rect: list[float]) -> None
     display.xdotool("click", "1")
 
 
+def select_all(display: Display) -> None:
+    """Ctrl+A as a hand presses it: xdotool's "key ctrl+a" comes so fast that pyglet
+    delivers the Ctrl release before the A release, and imgui may then see A alone."""
+    display.xdotool("keydown", "ctrl")
+    time.sleep(0.1)
+    display.xdotool("key", "a")
+    time.sleep(0.1)
+    display.xdotool("keyup", "ctrl")
+
+
 def type_into(display: Display, origin: tuple[int, int], rect: list[float], text: str) -> None:
     """Click into an input, select what is there, type ``text`` and press Enter."""
-    _click(display, origin, rect)
+    click(display, origin, rect)
     time.sleep(0.3)
-    display.xdotool("key", "ctrl+a")
+    select_all(display)
     display.xdotool("type", "--delay", "30", text)
     display.xdotool("key", "Return")
 
@@ -220,7 +230,7 @@ def test_typing_a_new_semi_major_axis_changes_the_period_the_picture_and_the_fil
     proc = start_viewer(display, tmp_path, scene, report)
     try:
         ui = wait_for(lambda: settled_report(report), what="the first frames")
-        origin = _window_origin(display)
+        origin = window_origin(display)
         period_before = dict(ui["readout"])["period"]
         assert period_before.startswith("92.5")  # 92.56 min for a = 6778.137 km
         time.sleep(0.5)
@@ -267,7 +277,7 @@ def test_quitting_with_unsaved_changes_asks_first(display: Display, tmp_path: Pa
     proc = start_viewer(display, tmp_path, scene, report)
     try:
         ui = wait_for(lambda: settled_report(report), what="the first frames")
-        origin = _window_origin(display)
+        origin = window_origin(display)
         type_into(display, origin, ui["rects"]["e"], "0.2")
         wait_for(lambda: (r := read_report(report)) and r["dirty"], what="the edit")
         display.xdotool("key", "ctrl+q")
@@ -275,7 +285,7 @@ def test_quitting_with_unsaved_changes_asks_first(display: Display, tmp_path: Pa
                  "prompt:discard" in r["rects"], what="the prompt")
         ui = wait_for(lambda: stable_rect(report, "prompt:discard"), what="the prompt's layout")
         assert proc.poll() is None  # still open, asking
-        _click(display, origin, ui["rects"]["prompt:discard"])
+        click(display, origin, ui["rects"]["prompt:discard"])
         assert proc.wait(timeout=30) == 0
         assert scene.read_text(encoding="utf-8") == EARTH_SCENE  # nothing was saved
     finally:

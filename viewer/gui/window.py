@@ -22,12 +22,16 @@ import numpy as np
 from .camera_input import focus, orbit, pan, preset, zoom
 from .clock import Clock, next_apsis_s
 from .editor import Editor
-from .panels import Panels, Session
+from .panels import Panels
+from .session import Session
 
 #: Frames drawn after an input event, so imgui's hover and focus states settle.
 SETTLE_FRAMES = 3
 #: Longest wait for events when nothing moves, s (the loop wakes up to check quitting).
 IDLE_WAIT_S = 0.5
+#: Wall time per window frame given to a running render job's frames, s: the window
+#: still draws several times a second while the job renders at nearly full speed.
+JOB_BUDGET_S = 0.08
 BACKGROUND = (0.02, 0.024, 0.035)
 
 
@@ -51,7 +55,6 @@ class ViewerWindow:
 
         self._pyglet = pyglet
         self._imgui = imgui
-        self.editor = editor
         config = pyglet.gl.Config(double_buffer=True, major_version=3, minor_version=3,
                                   depth_size=0)
         title = f"Perifocal - {editor.scene.title}"
@@ -88,17 +91,27 @@ class ViewerWindow:
         except Exception as err:  # the window still edits without the scene picture
             self.render_error = f"the scene cannot be drawn: {err}"
         self.session = Session(editor=editor, clock=Clock.for_scene(editor.scene),
-                               camera=editor.scene.camera, message=self.render_error)
+                               camera=editor.scene.camera, message=self.render_error,
+                               renderer=self.renderer)
+        self._job_renderer: Any = None
+        self._job_state = ""
+        self._shown_editor: Any = editor
         self.panels = Panels()
         self.ui_report = Path(ui_report) if ui_report is not None else None
         self._pending = SETTLE_FRAMES
         self._last_revision = -1
         self._last_camera: Any = None
+        self._last_layout: dict[str, Any] = {}
         self._drag_view: Any = None
         self._closed = False
         self.frames_drawn = 0
         self.frame_times_s: list[float] = []
         self._attach()
+
+    @property
+    def editor(self) -> Editor:
+        """The editor of the scene shown (another one after File > Open)."""
+        return self.session.editor
 
     # --- events ---------------------------------------------------------------------------
 
@@ -195,8 +208,14 @@ class ViewerWindow:
                 ed.add_body()
             elif symbol == key.D and ed.body is not None:
                 ed.duplicate()
+            elif symbol == key.O:
+                s.request_open()
+            elif symbol == key.E:
+                s.show_still()
+            elif symbol == key.R and not (s.job is not None and s.job.active):
+                s.show_job()
             return
-        if self._imgui.get_io().want_text_input or s.quit_prompt or s.save_as_prompt:
+        if self._imgui.get_io().want_text_input or s.any_dialog:
             return
         if symbol == key.SPACE:
             clock.playing = not clock.playing
@@ -283,9 +302,12 @@ class ViewerWindow:
 
     def needs_frame(self) -> bool:
         """True when the next frame would differ from the last one drawn."""
-        return (self._pending > 0 or self.session.clock.playing or self._input_queued()
+        s = self.session
+        job = s.job.state if s.job is not None else ""
+        return (self._pending > 0 or s.clock.playing or self._input_queued()
                 or self.editor.revision != self._last_revision
-                or self.session.camera is not self._last_camera)
+                or s.camera is not self._last_camera or job == "running"
+                or job != self._job_state or s.editor is not self._shown_editor)
 
     def draw(self) -> None:
         """Draw one frame: the scene, then the panels over it (not flipped yet)."""
@@ -295,6 +317,10 @@ class ViewerWindow:
         # again, so the loop draws the next frame at once (the edit is seen next frame).
         self._last_revision = self.editor.revision
         self._last_camera = self.session.camera
+        self._job_state = self.session.job.state if self.session.job is not None else ""
+        if self.session.editor is not self._shown_editor:  # File > Open showed another scene
+            self._shown_editor = self.session.editor
+            self.window.set_caption(f"Perifocal - {self.editor.scene.title}")
         self.window.switch_to()
         fw, fh = self.window.get_framebuffer_size()
         self.ctx.screen.use()
@@ -315,6 +341,12 @@ class ViewerWindow:
         imgui.get_io().delta_time = 1.0 / 60.0
         imgui.new_frame()
         self.panels.draw(self.session, self.window.get_size())
+        # A panel or dialog that sizes itself to its content settles over a few frames
+        # (it grows, then is placed by its new size): draw until the layout stays put.
+        layout = self.panels.report["rects"]
+        if layout != self._last_layout:
+            self._pending = max(self._pending, 1)
+        self._last_layout = layout
         imgui.render()
         self.panel_renderer.render(imgui.get_draw_data(), (fw, fh))
         self.frames_drawn += 1
@@ -331,7 +363,9 @@ class ViewerWindow:
         r["selection"] = self.editor.selection
         r["message"] = self.session.message
         r["dirty"] = self.editor.dirty  # after this frame's edits, like the readout
-        r["prompt"] = "unsaved" if self.session.quit_prompt else ""
+        r["prompt"] = "unsaved" if self.session.unsaved_for else ""
+        r["bodies"] = [b.name for b in self.editor.scene.bodies]
+        r["scene"] = str(self.editor.path) if self.editor.path else ""
         tmp = self.ui_report.with_name(self.ui_report.name + ".tmp")
         tmp.write_text(json.dumps(r), encoding="utf-8")
         os.replace(tmp, self.ui_report)
@@ -354,6 +388,36 @@ class ViewerWindow:
         img[..., 3] = 255
         return img
 
+    # --- render jobs ------------------------------------------------------------------------
+
+    def _pump_job(self, budget_s: float = JOB_BUDGET_S) -> None:
+        """Draw the frames a running render job asks for, on this window's context, in a
+        renderer of its own (so the window's cached geometry stays), then free it."""
+        job = self.session.job
+        if job is None or not job.active:
+            if self._job_renderer is not None:
+                self._job_renderer.release()
+                self._job_renderer = None
+            return
+        from ..render import Renderer
+
+        self.window.switch_to()
+        if self._job_renderer is None:
+            self._job_renderer = Renderer(self.ctx)
+        renderer, scene, size = self._job_renderer, job.scene, job.request.size_px
+        job.pump(lambda t_s: renderer.render(scene, t_s, size), budget_s)
+
+    def _end_job(self) -> None:
+        """On closing: cancel a running job and wait for its worker (a video's temporary
+        file is removed; frames written so far are whole)."""
+        job = self.session.job
+        if job is not None and job.active:
+            job.cancel()
+            job.join(60.0)
+        if self._job_renderer is not None:
+            self._job_renderer.release()
+            self._job_renderer = None
+
     # --- the loop ---------------------------------------------------------------------------
 
     def run(self, quit_after: int | None = None, screenshot: str | Path | None = None) -> int:
@@ -367,8 +431,9 @@ class ViewerWindow:
                 busy = self.needs_frame() or quit_after is not None
                 loop.step(0.0 if busy else IDLE_WAIT_S)
                 self.window.dispatch_events()
-                if self.window.has_exit and not self.session.quit_prompt:
+                if self.window.has_exit and not self.session.unsaved_for:
                     self.window.has_exit = False
+                self._pump_job()
                 now = time.perf_counter()
                 self.session.clock.advance(now - last)
                 last = now
@@ -392,6 +457,7 @@ class ViewerWindow:
         if self._closed:
             return
         self._closed = True
+        self._end_job()
         imgui = self._imgui
         from imgui_bundle import implot
 
