@@ -173,7 +173,7 @@ class Session:
             self.message = export_still(self.editor.scene, self.camera, self.clock.t_s,
                                         request, self.renderer)
         except UserInputError as err:
-            self.still_errors = [f"{err.source}: {p}" for p in err.problems]
+            self.still_errors = _lines(err)
             return False
         self.still_prompt = False
         self.still_errors = []
@@ -194,10 +194,17 @@ class Session:
             request = job_request(self.job_text, self.job_size, self.job_frames,
                                   self.editor.scene, self.job_format, self.job_quality)
         except UserInputError as err:
-            self.job_errors = [f"{err.source}: {p}" for p in err.problems]
+            self.job_errors = _lines(err)
             return False
         self.job = RenderJob(self.editor.scene,
                              self.camera if self.job_window_camera else None, request)
         self.job_prompt = False
         self.job_errors = []
         return True
+
+
+def _lines(err: UserInputError) -> list[str]:
+    """One line per problem, naming the file or field (not a command-line flag)."""
+    if err.source.startswith("-"):
+        return list(err.problems)
+    return [f"{err.source}: {p}" for p in err.problems]
