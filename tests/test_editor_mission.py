@@ -12,6 +12,7 @@ integration of the two-body equations (scipy solve_ivp), vis-viva.
 from __future__ import annotations
 
 import math
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -32,6 +33,7 @@ from viewer.gui.mission import (
 )
 from viewer.orbit import Elements, state_from_elements
 from viewer.orbit.flight import time_of_flight
+from viewer.scene.loader import load_scene
 from viewer.scene.model import Body, Center, Scene
 from viewer.units import parse_epoch
 
@@ -161,6 +163,27 @@ def test_adding_a_transfer_is_one_undoable_edit_that_grows_the_body_list() -> No
     assert [b.name for b in ed.scene.bodies] == ["LEO", "GEO"] and not ed.dirty
     ed.redo()
     assert len(ed.scene.bodies) == 4
+
+
+def test_a_saved_transfer_loads_back_where_it_was_added(tmp_path: Path) -> None:
+    path = tmp_path / "leo_geo.toml"
+    path.write_text('[scene]\nepoch = "2030-01-01T00:00:00 TDB"\nunits = { length = "km" }\n\n'
+                    '[center]\npreset = "earth"\n\n'
+                    '[[body]]\nname = "LEO"   # parking\na = "6678.137 km"\ne = 0\n\n'
+                    '[[body]]\nname = "GEO"\na = "42164 km"\ne = 0\nM = "80 deg"\n',
+                    encoding="utf-8")
+    ed = Editor.open(path)
+    plan = plan_transfer(ed.scene, 0, 1, "bi-elliptic", "90000 km", departure_s=600.0)
+    ed.add_bodies(plan.legs, "transfer")
+    ed.save()
+    loaded = load_scene(path)
+    assert "# parking" in path.read_text(encoding="utf-8")
+    assert [b.name for b in loaded.bodies] == [b.name for b in ed.scene.bodies]
+    # The file holds each leg's epoch to the microsecond: a few mm at a few km/s.
+    for k in (2, 3):
+        for t in (600.0, 600.0 + float(plan.transfer.burns[k - 1].time_s), 1e5):
+            assert np.linalg.norm(position(loaded.bodies[k], t) - position(ed.scene.bodies[k],
+                                                                            t)) < 0.01  # m
 
 
 def test_a_transfer_is_refused_with_a_reason_for_each_problem() -> None:

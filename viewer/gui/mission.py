@@ -37,7 +37,7 @@ from ..orbit.flight import (
 from ..orbit.transfer import Transfer, bi_elliptic, hohmann
 from ..scene.model import Body, BodyShow, Scene
 from ..units import QuantityError, parse_quantity
-from .editor import EditRefused
+from .editor import NEW_BODY_COLORS, EditRefused
 from .readout import format_angle, format_length, format_speed, format_time
 
 __all__ = ["CAUTION", "MAX_E", "MAX_PLANE_RAD", "QuickInputs", "TransferPlan",
@@ -137,6 +137,7 @@ def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hoh
     u0 = float(now.argp) + float(now.nu)
     legs = []
     label = name.strip() or f"{dep.name} to {arr.name}"
+    color = NEW_BODY_COLORS[len(scene.bodies) % len(NEW_BODY_COLORS)]
     for k, (leg, burn) in enumerate(zip(tr.legs, tr.burns, strict=False)):
         nu0 = float(leg.nu)
         el = Elements(a=float(leg.a), e=float(leg.e), i=float(now.i), raan=float(now.raan),
@@ -144,7 +145,7 @@ def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hoh
                       mu=mu)
         legs.append(Body(
             name=label if len(tr.legs) == 1 else f"{label} (leg {k + 1})", elements=el,
-            epoch_offset_s=departure_s + float(burn.time_s), color=dep.color,
+            epoch_offset_s=departure_s + float(burn.time_s), color=color,
             show=BodyShow(apsides=True)))
 
     # Phasing: the target's lead over the departure body, about the departure normal.
