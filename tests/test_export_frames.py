@@ -148,29 +148,35 @@ def test_an_unwritable_folder_is_a_clear_error(tmp_path: Path) -> None:
         render_sequence(range(2), frame_of, target, stream=io.StringIO())
 
 
-def test_a_full_disk_leaves_no_partial_frame(tmp_path: Path) -> None:
-    # The child may write files of at most 2 kB (RLIMIT_FSIZE); our frames are larger.
+def run_with_file_size_limit(limit_bytes: int, call: str) -> subprocess.CompletedProcess[str]:
+    """Run ``call`` (an export of noisy 64x64 frames) in a child that may write files of at
+    most ``limit_bytes`` (RLIMIT_FSIZE, a stand-in for a full disk), reporting a
+    UserInputError the way the command does (exit 2)."""
     script = textwrap.dedent(f"""
         import io, resource, signal, sys
         import numpy as np
-        sys.path.insert(0, {str(Path(__file__).parent)!r})
         signal.signal(signal.SIGXFSZ, signal.SIG_IGN)   # get EFBIG instead of a kill
-        resource.setrlimit(resource.RLIMIT_FSIZE, (2048, 2048))
+        resource.setrlimit(resource.RLIMIT_FSIZE, ({limit_bytes}, {limit_bytes}))
         from pathlib import Path
         from viewer.cli import report_input_error
         from viewer.errors import UserInputError
-        from viewer.export.frames import render_sequence
+        from viewer.export.frames import render_sequence, render_video
         rng = np.random.default_rng(1)
         def noisy(k):
             return rng.integers(0, 255, (64, 64, 4), dtype=np.uint8)
         try:
-            render_sequence(range(3), noisy, Path({str(tmp_path / "full")!r}),
-                            stream=io.StringIO())
+            {call}
         except UserInputError as err:
             report_input_error(err)
             sys.exit(2)
     """)
-    proc = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True)
+    return subprocess.run([sys.executable, "-c", script], capture_output=True, text=True)
+
+
+def test_a_full_disk_leaves_no_partial_frame(tmp_path: Path) -> None:
+    # Files of at most 2 kB; our frames are larger.
+    proc = run_with_file_size_limit(2048, f"render_sequence(range(3), noisy, "
+                                    f"Path({str(tmp_path / 'full')!r}), stream=io.StringIO())")
     assert proc.returncode == 2, proc.stderr
     assert "file size limit" in proc.stderr
     assert "Traceback" not in proc.stderr
@@ -201,26 +207,9 @@ def test_progress_prints_rate_and_time_left_then_a_summary() -> None:
 
 def test_a_full_disk_during_a_video_leaves_no_partial_file(tmp_path: Path) -> None:
     # ffmpeg inherits the child's 20 kB file-size limit; the video needs more.
-    script = textwrap.dedent(f"""
-        import io, resource, signal, sys
-        import numpy as np
-        signal.signal(signal.SIGXFSZ, signal.SIG_IGN)
-        resource.setrlimit(resource.RLIMIT_FSIZE, (20_000, 20_000))
-        from pathlib import Path
-        from viewer.cli import report_input_error
-        from viewer.errors import UserInputError
-        from viewer.export.frames import render_video
-        rng = np.random.default_rng(2)
-        def noisy(k):
-            return rng.integers(0, 255, (64, 64, 4), dtype=np.uint8)
-        try:
-            render_video(range(60), noisy, Path({str(tmp_path / "show.mp4")!r}), (64, 64), 24,
-                         stream=io.StringIO())
-        except UserInputError as err:
-            report_input_error(err)
-            sys.exit(2)
-    """)
-    proc = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True)
+    proc = run_with_file_size_limit(20_000, f"render_video(range(60), noisy, "
+                                    f"Path({str(tmp_path / 'show.mp4')!r}), (64, 64), 24, "
+                                    f"stream=io.StringIO())")
     assert proc.returncode == 2, proc.stderr
     assert "writing the video failed" in proc.stderr
     assert "file size limit" in proc.stderr

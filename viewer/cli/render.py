@@ -169,12 +169,11 @@ def immersive_spec(args: argparse.Namespace, scene: Any, size: tuple[int, int] |
     from ..export.immersive import Immersive
 
     h = scene.render.size_px[1]
-    if args.dome is not None:
-        size = size or (h, h)
-        grid = args.supersample or (2 if size[1] < 4096 else 1)
-        return Immersive("dome", size, args.dome, args.tilt, grid)
-    size = size or (2 * h, h)
+    kind = "dome" if args.dome is not None else "panorama"
+    size = size or ((h, h) if kind == "dome" else (2 * h, h))
     grid = args.supersample or (2 if size[1] < 4096 else 1)
+    if kind == "dome":
+        return Immersive("dome", size, args.dome, args.tilt, grid)
     return Immersive("panorama", size, grid=grid)
 
 

@@ -90,6 +90,13 @@ def still_request(path_text: str, size_text: str, scene: Scene) -> StillRequest:
     return StillRequest(path, fmt, parse_size(size_text, tuple(scene.render.size_px)))
 
 
+def with_camera(scene: Scene, camera: Camera) -> Scene:
+    """The scene seen through ``camera`` for the whole show: its camera keyframes are
+    dropped (the window's view wins); fades, captions and the clock stay."""
+    return replace(scene, camera=camera,
+                   timeline=replace(scene.timeline, camera_keys=()))
+
+
 def export_still(scene: Scene, camera: Camera, t_s: float, request: StillRequest,
                  renderer: Any = None) -> str:
     """Write the still of ``scene`` at scene time ``t_s`` seen by ``camera`` (atomically)
@@ -97,7 +104,7 @@ def export_still(scene: Scene, camera: Camera, t_s: float, request: StillRequest
     ``viewer.render.Renderer``); SVG is written by the SVG writer without GL."""
     from ..fileio import atomic_write_bytes, user_write_error
 
-    seen = replace(scene, camera=camera)
+    seen = with_camera(scene, camera)
     w, h = request.size_px
     if request.fmt == "svg":
         from ..export.svg import write_svg
@@ -108,7 +115,9 @@ def export_still(scene: Scene, camera: Camera, t_s: float, request: StillRequest
 
         if renderer is None:
             raise UserInputError("still", "no renderer: the scene cannot be drawn here")
-        rgba = renderer.render(seen, t_s, request.size_px)
+        from ..export.show import ShowFrames
+
+        rgba = ShowFrames(renderer, seen, request.size_px).at(t_s)
         try:
             atomic_write_bytes(request.path, encode_still(rgba, request.fmt))
         except OSError as err:
@@ -170,7 +179,7 @@ class RenderJob:
 
     def __init__(self, scene: Scene, camera: Camera | None, request: JobRequest,
                  clock: Callable[[], float] = time.monotonic) -> None:
-        self.scene = scene if camera is None else replace(scene, camera=camera)
+        self.scene = scene if camera is None else with_camera(scene, camera)
         self.request = request
         self.clock = clock
         self.total = len(request.frames)

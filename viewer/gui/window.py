@@ -399,13 +399,15 @@ class ViewerWindow:
                 self._job_renderer.release()
                 self._job_renderer = None
             return
+        from ..export.show import ShowFrames
         from ..render import Renderer
 
         self.window.switch_to()
         if self._job_renderer is None:
             self._job_renderer = Renderer(self.ctx)
-        renderer, scene, size = self._job_renderer, job.scene, job.request.size_px
-        job.pump(lambda t_s: renderer.render(scene, t_s, size), budget_s)
+        # The show's keyframes, fades, captions and clock, as `perifocal render` draws them.
+        frames = ShowFrames(self._job_renderer, job.scene, job.request.size_px)
+        job.pump(frames.at, budget_s)
 
     def _end_job(self) -> None:
         """On closing: cancel a running job and wait for its worker (a video's temporary
