@@ -33,11 +33,7 @@ COMMANDS: dict[str, str] = {
     "bench": "bench",
 }
 
-CAUTION = (
-    "Caution: two-body, Keplerian model only. Not for operational navigation, "
-    "conjunction assessment or any flight-safety decision; defer to the mission's "
-    "flight-dynamics practice."
-)
+from ..mission.cautions import CAUTION  # noqa: E402  (one home, below both front ends)
 
 REPORT = (
     "This is a bug in Perifocal. Please report it with the command you ran and the "

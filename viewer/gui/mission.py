@@ -23,7 +23,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..cli import CAUTION
+from ..mission import CAUTION
 from ..orbit import Elements, OrbitError, state_from_elements
 from ..orbit.flight import (
     conic_warnings,

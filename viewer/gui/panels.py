@@ -21,8 +21,8 @@ from typing import Any
 import numpy as np
 from imgui_bundle import imgui
 
-from ..cli import CAUTION
 from ..errors import UserInputError
+from ..mission import CAUTION
 from ..orbit import AU_M, DAY_S, swept_area
 from ..units import QuantityError, parse_quantity
 from .camera_input import focus, preset
