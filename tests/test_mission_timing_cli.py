@@ -72,7 +72,7 @@ def test_an_ellipse_never_reaching_a_radius_says_so(scene, capsys) -> None:
 
 
 @pytest.mark.parametrize(("argv", "source", "needle"), [
-    (["--body", "Nope", "--nu", "0", "10"], "--body", "no body is named"),
+    (["--body", "Nope", "--nu", "0", "10"], "--body", "no body named"),
     (["--body", "Ex31", "--radius", "3 kg"], "--radius", "unknown unit"),
     (["--body", "Ex35", "--nu", "0", "170"], "--nu", "beyond the asymptotes"),
     (["--body", "Ex31", "--nu", "0", "fast"], "--nu", "not a number with a unit"),

@@ -141,8 +141,8 @@ def test_bi_elliptic_adds_two_legs_that_join(scene: Path, tmp_path: Path,
 
 @pytest.mark.parametrize("to, expected", [
     ("Tilted", "not coplanar"),
-    ("Eccentric", "is not circular"),
-    ("LEO", "the same body"),
+    ("Eccentric", "is not on a circle"),
+    ("LEO", "bodies are the same"),
     ("Nowhere", "no body named 'Nowhere'"),
 ])
 def test_transfers_that_are_not_between_coplanar_circles_are_refused(

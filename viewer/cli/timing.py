@@ -64,54 +64,46 @@ def _is_number(text: str) -> bool:
     return True
 
 
+#: Mission refusal fields -> the flag that gave the input.
+FLAGS = {"nu": "--nu", "radius": "--radius", "body": "--body"}
+
+
 def answers(scene: Any, name: str, nu: tuple[float, float] | None,
             radius_m: float | None) -> dict[str, Any]:
-    """The quick answers in SI units (None where the conic has no such value)."""
-    from ..orbit import OrbitError
-    from ..orbit import flight as fl
+    """The quick answers in SI units (None where the conic has no such value), from
+    ``viewer.mission.quick``; refusals name the flag."""
+    from ..mission import quick
+    from ..mission.transfer import body_index
 
     try:
-        body = scene.body(name)
-    except KeyError:
-        names = ", ".join(b.name for b in scene.bodies)
-        raise UserInputError("--body", f'no body is named "{name}"; the scene has: {names}') \
-            from None
-    el = body.elements_at(0.0)
-    e = float(el.e)
-    mu = scene.center.gm_m3_s2
-    out: dict[str, Any] = {"body": name, "e": e, "periapsis_m": float(el.periapsis),
-                           "nu_now_rad": float(el.nu)}
-    if nu is not None:
-        try:
-            out["time_of_flight_s"] = float(fl.time_of_flight(el, nu[0], nu[1]))
-        except OrbitError as err:
-            raise UserInputError("--nu", str(err)) from None
-        out["nu_from_rad"], out["nu_to_rad"] = nu
-    if radius_m is not None:
-        if radius_m <= 0:
-            raise UserInputError("--radius", "a radius is a positive distance")
-        nu_r = float(fl.true_anomaly_at_radius(el, radius_m))
-        reached = math.isfinite(nu_r)
-        outbound, inbound = fl.times_to_radius(el, radius_m)
-        out.update({
-            "radius_m": radius_m,
-            "reaches_radius": reached,
-            "nu_at_radius_rad": nu_r if reached else None,
-            "time_from_periapsis_to_radius_s":
-                float(fl.time_from_periapsis_to_radius(el, radius_m)) if reached else None,
-            "next_outbound_s": _num(outbound), "next_inbound_s": _num(inbound),
-            "escape_speed_at_radius_m_s": float(fl.escape_speed(mu, radius_m)),
-            "speed_at_radius_m_s": float(el.speed_at(nu_r)) if reached else None,
-        })
-    out["v_inf_m_s"] = float(el.v_infinity) if e > 1.0 else None
-    out["turning_angle_rad"] = float(el.turning_angle) if e > 1.0 else None
-    out["asymptote_nu_rad"] = float(math.acos(-1.0 / e)) if e > 1.0 else None
+        body = scene.bodies[body_index(scene, name, "body")]
+        el = body.elements_at(0.0)
+        out: dict[str, Any] = {"body": name, "e": float(el.e),
+                               "periapsis_m": float(el.periapsis), "nu_now_rad": float(el.nu)}
+        if nu is not None:
+            ft = quick.flight_time(el, nu[0], nu[1])
+            out.update({"time_of_flight_s": ft.seconds, "full_turns": ft.turns,
+                        "nu_from_rad": nu[0], "nu_to_rad": nu[1]})
+        if radius_m is not None:
+            rc = quick.radius_crossing(el, radius_m, scene.center.gm_m3_s2, scene.length_unit)
+            out.update({
+                "radius_m": rc.radius_m,
+                "reaches_radius": rc.reached,
+                "always_at_radius": rc.kind == "always",
+                "nu_at_radius_rad": rc.nu_rad,
+                "time_from_periapsis_to_radius_s": rc.from_periapsis_s,
+                "next_outbound_s": rc.next_outbound_s, "next_inbound_s": rc.next_inbound_s,
+                "escape_speed_at_radius_m_s": rc.escape_speed_m_s,
+                "speed_at_radius_m_s": rc.speed_m_s,
+                "radius_note": rc.reason or None,
+            })
+    except quick.MissionRefused as err:
+        raise UserInputError(FLAGS.get(err.field, err.field), err.problems) from None
+    hp = quick.hyperbolic_pass(el)
+    out["v_inf_m_s"] = None if hp is None else hp.v_infinity_m_s
+    out["turning_angle_rad"] = None if hp is None else hp.turning_angle_rad
+    out["asymptote_nu_rad"] = None if hp is None else hp.asymptote_nu_rad
     return out
-
-
-def _num(x: Any) -> float | None:
-    x = float(x)
-    return x if math.isfinite(x) else None
 
 
 def _duration(s: float | None) -> str:
@@ -142,11 +134,16 @@ def run(args: argparse.Namespace) -> int:
         return 0
     rows = [("body", f"{out['body']} (e = {out['e']:.6g})")]
     if "time_of_flight_s" in out:
+        turns = out["full_turns"]
         rows.append((f"time of flight {math.degrees(nu[0]):.4g} -> {math.degrees(nu[1]):.4g} "
-                     "deg", _duration(out["time_of_flight_s"])))
+                     "deg", _duration(out["time_of_flight_s"])
+                     + (f"  ({turns} full turn{'s' if turns > 1 else ''})" if turns else "")))
     if radius is not None:
         r_km = f"{radius / 1e3:,.3f} km"
-        if out["reaches_radius"]:
+        if out["always_at_radius"]:
+            rows += [(r_km, out["radius_note"]),
+                     ("speed there", f"{out['speed_at_radius_m_s'] / 1e3:.6f} km/s")]
+        elif out["reaches_radius"]:
             rows += [("true anomaly at " + r_km,
                       f"{math.degrees(out['nu_at_radius_rad']):.6f} deg outbound, "
                       f"{-math.degrees(out['nu_at_radius_rad']):.6f} deg inbound"),
@@ -156,7 +153,7 @@ def run(args: argparse.Namespace) -> int:
                      ("next inbound crossing", _duration(out["next_inbound_s"])),
                      ("speed there", f"{out['speed_at_radius_m_s'] / 1e3:.6f} km/s")]
         else:
-            rows.append((r_km, "never reached on this orbit"))
+            rows.append((r_km, f"never reached: {out['radius_note']}"))
         rows.append(("escape speed there", f"{out['escape_speed_at_radius_m_s'] / 1e3:.6f} km/s"))
     if out["v_inf_m_s"] is not None:
         rows += [("v-infinity", f"{out['v_inf_m_s'] / 1e3:.6f} km/s"),

@@ -6,7 +6,6 @@ from __future__ import annotations
 
 import argparse
 import json
-import math
 import sys
 from pathlib import Path
 from typing import Any
@@ -27,11 +26,6 @@ one plane (normals within 0.5 deg). The transfer starts where the --from body is
 far the --to body must lead at departure for it to be at the meeting point on arrival;
 "next window" is the first departure time from --at with that phase.
 """
-
-#: Largest eccentricity treated as circular, and the largest angle between orbit planes.
-MAX_E = 0.01
-MAX_PLANE_RAD = math.radians(0.5)
-
 
 def add_parser(sub: Any) -> None:
     from . import CAUTION
@@ -63,71 +57,38 @@ def add_parser(sub: Any) -> None:
     p.set_defaults(run=run)
 
 
-def _body(scene: Any, name: str, flag: str) -> Any:
-    try:
-        return scene.body(name)
-    except KeyError:
-        names = ", ".join(repr(b.name) for b in scene.bodies) or "none"
-        raise UserInputError(flag, f"the scene has no body named {name!r}; its bodies: "
-                             f"{names}") from None
-
-
-def _circle_problems(body: Any, flag: str) -> list[str]:
-    e = float(body.elements.e)
-    if e >= MAX_E:
-        return [f"{flag} {body.name!r}: e = {e:.6g} is not circular (a transfer between "
-                f"circles needs e below {MAX_E})"]
-    return []
-
-
-def _normal(el: Any) -> Any:
-    return el.perifocal_basis()[2]
+#: Mission refusal fields -> the flag (or file) that gave the input.
+FLAGS = {"from": "--from", "to": "--to", "via": "--via", "name": "--name"}
 
 
 def run(args: argparse.Namespace) -> int:
-    import numpy as np
-
-    from ..orbit import OrbitError
-    from ..orbit.transfer import bi_elliptic, hohmann
+    from ..mission.quick import MissionRefused
+    from ..mission.transfer import body_index, check_leg_names, plan_transfer
     from ..scene import load_scene
     from ..units import QuantityError, parse_quantity
     from . import CAUTION
     from .ephemeris import time_arg
 
     scene = load_scene(args.scene)
-    dep = _body(scene, args.from_body, "--from")
-    arr = _body(scene, args.to_body, "--to")
-    if dep.name == arr.name:
-        raise UserInputError("--to", "--from and --to name the same body")
-    problems = _circle_problems(dep, "--from") + _circle_problems(arr, "--to")
-    w1, w2 = _normal(dep.elements), _normal(arr.elements)
-    plane = math.acos(float(np.clip(np.dot(w1, w2), -1.0, 1.0)))
-    if plane > MAX_PLANE_RAD:
-        problems.append(f"the orbits are not coplanar: their planes are {math.degrees(plane):.4g}"
-                        f" deg apart (at most {math.degrees(MAX_PLANE_RAD):g} deg; a plane "
-                        f"change is not part of this transfer)")
-    if problems:
-        raise UserInputError(args.scene, problems)
-    mu = scene.center.gm_m3_s2
-    r1, r2 = float(dep.elements.a), float(arr.elements.a)
     at = time_arg(args.at, "--at", scene) if args.at is not None else scene.epoch
-    t_dep = at.seconds_since(scene.epoch)
+    via = None
+    if args.via is not None:
+        try:
+            via = parse_quantity(args.via, "length", scene.length_unit)
+        except QuantityError as err:
+            raise UserInputError("--via", str(err)) from None
     try:
-        if args.via is None:
-            tr = hohmann(r1, r2, mu)
-        else:
-            try:
-                rb = parse_quantity(args.via, "length", scene.length_unit)
-            except QuantityError as err:
-                raise UserInputError("--via", str(err)) from None
-            tr = bi_elliptic(r1, rb, r2, mu)
-    except OrbitError as err:
-        raise UserInputError("--via" if args.via else args.scene, str(err)) from None
-    geometry = _geometry(scene, dep, arr, tr, t_dep)
-    out = _describe(scene, dep, arr, tr, t_dep, geometry)
-    name = args.name or f"{dep.name} to {arr.name}"
+        i = body_index(scene, args.from_body, "from")
+        j = body_index(scene, args.to_body, "to")
+        plan = plan_transfer(scene, i, j, "hohmann" if via is None else "bi-elliptic", via,
+                             at.seconds_since(scene.epoch), args.name or "")
+        if args.output is not None:
+            check_leg_names(scene, plan)
+    except MissionRefused as err:
+        raise UserInputError(FLAGS.get(err.field, args.scene), err.problems) from None
+    out = _describe(scene, plan)
     if args.output is not None:
-        _write(args, scene, tr, geometry, name, out)
+        _write(args, scene, plan, out)
     if args.json:
         out["caution"] = CAUTION
         json.dump(out, sys.stdout, indent=1)
@@ -137,56 +98,17 @@ def run(args: argparse.Namespace) -> int:
     return 0
 
 
-def _geometry(scene: Any, dep: Any, arr: Any, tr: Any, t_dep: float) -> dict[str, Any]:
-    """Where the transfer starts and its legs' states, in the scene frame (SI)."""
-    import numpy as np
-
-    from ..orbit import state_from_elements
-
-    mu = scene.center.gm_m3_s2
-    r_now, _ = state_from_elements(dep.elements_at(t_dep), mu)
-    w = _normal(dep.elements)
-    r_hat = r_now / np.linalg.norm(r_now)
-    t_hat = np.cross(w, r_hat)  # along the motion of the departure body
-    legs = []
-    for k, burn in enumerate(tr.burns[:-1]):
-        side = 1.0 if k % 2 == 0 else -1.0  # legs alternate sides of the centre
-        r = side * float(burn.radius_m) * r_hat
-        v = side * float(burn.speed_after_m_s) * t_hat
-        legs.append((t_dep + float(burn.time_s), r, v))
-    # Phasing: the target's angle ahead of the departure point, about the orbit normal.
-    r_tgt, _ = state_from_elements(arr.elements_at(t_dep), mu)
-    phase_now = math.atan2(float(np.dot(np.cross(r_hat, r_tgt), w)), float(np.dot(r_hat, r_tgt)))
-    n1 = math.sqrt(mu / float(dep.elements.a) ** 3)
-    n2 = math.sqrt(mu / float(arr.elements.a) ** 3)
-    rel = n2 - n1
-    need = float(tr.phase_angle_rad)
-    wait = None
-    if abs(rel) > 0:
-        wait = ((need - phase_now) / rel) % (2.0 * math.pi / abs(rel))
-    return {"legs": legs, "phase_now": phase_now % (2 * math.pi), "phase_need": need,
-            "wait_s": wait, "synodic_s": 2 * math.pi / abs(rel) if rel else None}
-
-
-def _describe(scene: Any, dep: Any, arr: Any, tr: Any, t_dep: float,
-              geometry: dict[str, Any]) -> dict[str, Any]:
+def _describe(scene: Any, plan: Any) -> dict[str, Any]:
     """Everything the command reports, SI units, keys named with their unit."""
-    from ..orbit.flight import conic_warnings
-
-    c = scene.center
-    legs = []
-    warnings: list[str] = []
-    for k, leg in enumerate(tr.legs):
-        mu_leg = leg.with_(mu=c.gm_m3_s2)
-        period = float(mu_leg.period)
-        legs.append({"a_m": float(leg.a), "e": float(leg.e),
-                     "periapsis_m": float(leg.periapsis), "apoapsis_m": float(leg.apoapsis),
-                     "period_s": period, "time_of_flight_s": period / 2})
-        warnings += [f"leg {k + 1}: {w}" for w in conic_warnings(
-            mu_leg, c.radius_m, c.atmosphere_m, c.soi_radius_m)]
+    tr = plan.transfer
+    t_dep = plan.departure_s
+    legs = [{"a_m": float(b.elements.a), "e": float(b.elements.e),
+             "periapsis_m": float(b.elements.periapsis),
+             "apoapsis_m": float(b.elements.apoapsis), "period_s": float(b.elements.period),
+             "time_of_flight_s": float(b.elements.period) / 2} for b in plan.legs]
     return {
-        "scene": scene.title, "kind": tr.kind, "from": dep.name, "to": arr.name,
-        "mu_m3_s2": c.gm_m3_s2, "r1_m": float(tr.r1_m), "r2_m": float(tr.r2_m),
+        "scene": scene.title, "kind": tr.kind, "from": plan.from_name, "to": plan.to_name,
+        "mu_m3_s2": scene.center.gm_m3_s2, "r1_m": float(tr.r1_m), "r2_m": float(tr.r2_m),
         "departure_epoch": scene.epoch.plus_seconds(t_dep).iso(decimals=3),
         "departure_time_s": t_dep,
         "burns": [{"name": b.label, "time_s": t_dep + float(b.time_s),
@@ -196,39 +118,29 @@ def _describe(scene: Any, dep: Any, arr: Any, tr: Any, t_dep: float,
         "dv_total_m_s": float(tr.dv_total_m_s),
         "time_of_flight_s": float(tr.time_of_flight_s),
         "legs": legs,
-        "phase_angle_needed_rad": geometry["phase_need"],
-        "phase_angle_now_rad": geometry["phase_now"],
-        "next_window_s": (None if geometry["wait_s"] is None
-                          else t_dep + geometry["wait_s"]),
-        "synodic_period_s": geometry["synodic_s"],
-        "warnings": warnings,
+        "phase_angle_needed_rad": plan.phase_needed_rad,
+        "phase_angle_now_rad": plan.phase_now_rad,
+        "next_window_s": plan.next_window_s,
+        "synodic_period_s": plan.synodic_s,
+        "warnings": list(plan.warnings),
     }
 
 
-def _write(args: argparse.Namespace, scene: Any, tr: Any, geometry: dict[str, Any], name: str,
-           out: dict[str, Any]) -> None:
-    from ..formats.scene_text import body_toml
-    from ..orbit import elements_from_state
+def _write(args: argparse.Namespace, scene: Any, plan: Any, out: dict[str, Any]) -> None:
     from ..scene import load_scene_text, read_scene_text, write_atomic
+    from ..scene.writer import body_text
 
     target = Path(args.output)
     if target.exists() and not args.force:
         raise UserInputError(str(target), "the file exists; choose a new name or give --force")
-    names = [name] if len(geometry["legs"]) == 1 else [
-        f"{name} (leg {k + 1})" for k in range(len(geometry["legs"]))]
-    taken = [n for n in names if any(b.name == n for b in scene.bodies)]
-    if taken:
-        raise UserInputError("--name", f"the scene already has a body named {taken[0]!r}; give "
-                             f"another with --name")
     text = read_scene_text(args.scene)
     blocks = []
-    for k, ((t, r, v), leg_name) in enumerate(zip(geometry["legs"], names, strict=True)):
-        el = elements_from_state(r, v, scene.center.gm_m3_s2)
-        epoch = scene.epoch.plus_seconds(t).iso(decimals=6)
+    n = len(plan.legs)
+    for k, leg in enumerate(plan.legs):
         before, after = out["burns"][k], out["burns"][k + 1]
         comments = [
-            f"Made by `perifocal transfer` ({tr.kind}, {out['from']} to {out['to']}), leg "
-            f"{k + 1} of {len(names)}:",
+            f"Made by `perifocal transfer` ({out['kind']}, {out['from']} to {out['to']}), leg "
+            f"{k + 1} of {n}:",
             f"burn {before['name']} at scene time {before['time_s']:.3f} s: dv "
             f"{before['dv_m_s'] / 1e3:+.6f} km/s; burn {after['name']} at "
             f"{after['time_s']:.3f} s: dv {after['dv_m_s'] / 1e3:+.6f} km/s",
@@ -236,16 +148,17 @@ def _write(args: argparse.Namespace, scene: Any, tr: Any, geometry: dict[str, An
             f"{out['time_of_flight_s'] / 3600:.6f} h. Only the half ellipse between the "
             f"burns is flown.",
         ]
-        blocks.append(body_toml(leg_name, el, epoch, comments,
-                                show="{ apsides = true }"))
+        blocks.append(body_text(scene, leg, comments))
     new_text = text + ("" if text.endswith("\n") else "\n") + "\n" + "\n".join(blocks)
     load_scene_text(new_text, source=target, base_dir=Path(args.scene).parent)
     write_atomic(target, new_text)
     out["wrote"] = str(target)
-    out["bodies_added"] = names
+    out["bodies_added"] = list(plan.leg_names)
 
 
 def _table(d: dict[str, Any]) -> str:
+    from ..units.format import format_direction
+
     def km(x: float) -> str:
         return f"{x / 1e3:,.3f} km"
 
@@ -267,9 +180,9 @@ def _table(d: dict[str, Any]) -> str:
     for k, leg in enumerate(d["legs"]):
         rows.append((f"leg {k + 1}", f"a {km(leg['a_m'])}, e {leg['e']:.9f}, periapsis "
                      f"{km(leg['periapsis_m'])}, apoapsis {km(leg['apoapsis_m'])}"))
-    rows += [("phase angle needed", f"{math.degrees(d['phase_angle_needed_rad']):.4f} deg "
+    rows += [("phase angle needed", f"{format_direction(d['phase_angle_needed_rad'])} "
               f"(target ahead of the departure point)"),
-             ("phase angle at departure", f"{math.degrees(d['phase_angle_now_rad']):.4f} deg"),
+             ("phase angle at departure", format_direction(d['phase_angle_now_rad'])),
              ("next window", "-" if d["next_window_s"] is None else
               f"scene time {d['next_window_s']:.3f} s (synodic period "
               f"{hours(d['synodic_period_s'])})")]

@@ -25,6 +25,7 @@ from ..orbit import state_from_elements
 from ..scene.model import Body, Population, Scene
 from ..scene.timeline import OverlayText
 from ..units import unit_factor
+from ..units.format import format_sig, label_speed
 from . import marks
 from .camera import View
 from .conic import (
@@ -123,25 +124,10 @@ def _mix(c: RGB, d: RGB, k: float) -> RGB:
     return (c[0] + (d[0] - c[0]) * k, c[1] + (d[1] - c[1]) * k, c[2] + (d[2] - c[2]) * k)
 
 
-def _format_sig(x: float, digits: int = 3) -> str:
-    if x == 0 or not math.isfinite(x):
-        return "0"
-    mag = math.floor(math.log10(abs(x)))
-    dec = max(0, digits - 1 - mag)
-    return f"{x:.{dec}f}" if abs(mag) < 6 else f"{x:.{digits - 1}e}"
-
-
-def format_speed(v_m_s: float) -> str:
-    """A speed for an arrow label: "29.8 km/s", or "850 m/s" below 1 km/s."""
-    if v_m_s >= 1000.0:
-        return f"{_format_sig(v_m_s / 1000.0)} km/s"
-    return f"{_format_sig(v_m_s)} m/s"
-
-
 def format_area(area_m2: float, unit: str) -> str:
     """An area in the scene's length unit squared: "0.215 au²"."""
     f = unit_factor(unit, "length")
-    return f"{_format_sig(area_m2 / (f * f))} {unit}\u00b2"
+    return f"{format_sig(area_m2 / (f * f))} {unit}\u00b2"
 
 
 def _format_length(x_m: float, unit: str) -> str:
@@ -624,6 +610,6 @@ def _velocity_arrow(lines: PolylineBatch, arrows: _Marks, labels: list[LabelRequ
     arrows.add(b_px - u * 0.5 * head, 0.5 * head, ARROWHEAD, colour, alpha,
                angle=float(math.atan2(u[1], u[0])))
     if with_label:
-        labels.append(LabelRequest(format_speed(speed), (float(b_px[0]), float(b_px[1])),
+        labels.append(LabelRequest(label_speed(speed), (float(b_px[0]), float(b_px[1])),
                                    4.0 * hs, SMALL_LABEL_PX * hs,
                                    _rgba(_lighten(col, 0.5), alpha), 20))

@@ -12,9 +12,10 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ..orbit import AU_M, DAY_S, JULIAN_YEAR_S
+from ..orbit import DAY_S
 from ..scene.model import Scene
 from ..scene.report import orbit_warnings
+from ..units.format import format_angle, format_length, format_speed, format_time
 
 
 @dataclass(frozen=True)
@@ -25,42 +26,6 @@ class Readout:
     values: dict[str, float | None]
     rows: tuple[tuple[str, str], ...]
     warnings: tuple[str, ...]
-
-
-def format_length(x_m: float | None, scene_unit: str = "au") -> str:
-    """A length for people: km below 1e9 m (or always, in a km scene), au above."""
-    if x_m is None or not math.isfinite(x_m):
-        return "none"
-    if scene_unit == "m" and abs(x_m) < 1e6:
-        return f"{x_m:,.6g} m"
-    if scene_unit in ("km", "m", "Mm", "Gm") or abs(x_m) < 1e9:
-        return f"{x_m / 1e3:,.7g} km"
-    return f"{x_m / AU_M:.7g} au"
-
-
-def format_time(t_s: float | None, digits: int = 7) -> str:
-    """A duration in the largest unit that keeps it above about 1: s, min, h, d or yr,
-    with ``digits`` significant digits."""
-    if t_s is None or not math.isfinite(t_s):
-        return "none"
-    a = abs(t_s)
-    for limit, factor, unit in ((120.0, 1.0, "s"), (3 * 3600.0, 60.0, "min"),
-                                (3 * DAY_S, 3600.0, "h"), (2 * JULIAN_YEAR_S, DAY_S, "d")):
-        if a < limit:
-            return f"{t_s / factor:.{digits}g} {unit}"
-    return f"{t_s / JULIAN_YEAR_S:.{digits}g} yr"
-
-
-def format_speed(v_m_s: float | None) -> str:
-    if v_m_s is None or not math.isfinite(v_m_s):
-        return "none"
-    return f"{v_m_s / 1e3:.6g} km/s"
-
-
-def format_angle(x_rad: float | None) -> str:
-    if x_rad is None or not math.isfinite(x_rad):
-        return "none"
-    return f"{math.degrees(x_rad):.6g} deg"
 
 
 def _num(x: object) -> float | None:

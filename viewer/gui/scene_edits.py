@@ -15,12 +15,12 @@ from __future__ import annotations
 import math
 import re
 import tomllib
-from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
 from ..orbit import mean_from_true
-from ..scene.model import Body, BodyShow, Scene
+from ..scene import writer
+from ..scene.model import Body, Scene
 from ..scene.save import SaveError, dump_scene, edit_text, save_text
 
 Edit = tuple[str, Any]
@@ -34,23 +34,9 @@ def _is_date(value: Any) -> bool:
     return isinstance(value, str) and _DATE.match(value) is not None
 
 
-def _hex(rgb: tuple[float, float, float]) -> str:
-    return "#" + "".join(f"{max(0, min(255, round(c * 255))):02x}" for c in rgb)
-
-
 def body_table(scene: Scene, body: Body) -> dict[str, Any]:
-    """The [[body]] table that ``dump_scene`` writes for ``body`` (plain values)."""
-    one = replace(scene, bodies=(body,), populations=())
-    return dict(tomllib.loads(dump_scene(one))["body"][0])
-
-
-def _q(x: float, unit: str, factor: float) -> str:
-    """A quantity string with 15 significant digits (no float-division noise)."""
-    return f"{x / factor:.15g} {unit}"
-
-
-def _deg(x_rad: float) -> str:
-    return f"{math.degrees(x_rad):.15g} deg"
+    """The [[body]] table the scene writer makes for ``body`` (plain values)."""
+    return writer.body_table(scene, body)
 
 
 def _mean_anomaly(body: Body) -> float:
@@ -64,8 +50,6 @@ def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, An
     ``epoch_moved``: the scene epoch changed, so a sector start written as a date is
     rewritten as the offset the Scene holds.
     """
-    from ..units import unit_factor
-
     sweep_date = epoch_moved and isinstance(raw.get("sweep"), dict) and _is_date(
         raw["sweep"].get("start"))
     if new == old and not sweep_date:
@@ -73,7 +57,6 @@ def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, An
     out: list[Edit] = []
     d = body_table(scene, new)
     lu = scene.length_unit
-    lf = unit_factor(lu, "length")
     el, el0 = new.elements, old.elements
     if new.name != old.name:
         out.append((f"{path}.name", new.name))
@@ -83,45 +66,41 @@ def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, An
         given = [k for k in _SIZE_KEYS if k in raw]
         values: dict[str, Any]
         if given == ["period"] and e < 1.0:
-            values = {"period": f"{float(el.period):.15g} s", "e": e}
+            values = {"period": writer.duration(float(el.period)), "e": e}
         elif given == ["periapsis", "apoapsis"] and e < 1.0:
-            values = {"periapsis": _q(float(el.periapsis), lu, lf),
-                      "apoapsis": _q(float(el.apoapsis), lu, lf)}
+            values = {"periapsis": writer.length(float(el.periapsis), lu),
+                      "apoapsis": writer.length(float(el.apoapsis), lu)}
         elif given == ["periapsis"] or e >= 1.0:
-            values = {"periapsis": _q(float(el.periapsis), lu, lf), "e": e}
+            values = {"periapsis": writer.length(float(el.periapsis), lu), "e": e}
         else:
-            values = {"a": _q(float(el.a), lu, lf), "e": e}
+            values = {"a": writer.length(float(el.a), lu), "e": e}
         for k in (*_SIZE_KEYS, "e"):
             if k in raw and k not in values:
                 out.append((f"{path}.{k}", None))
         out.extend((f"{path}.{k}", v) for k, v in values.items())
     for k in ("i", "raan", "argp"):
         if getattr(el, k) != getattr(el0, k):
-            out.append((f"{path}.{k}", _deg(float(getattr(el, k)))))
+            out.append((f"{path}.{k}", writer.angle(float(getattr(el, k)))))
     if el != el0:
         if "nu" in raw:
             if el.nu != el0.nu:
-                out.append((f"{path}.nu", _deg(float(el.nu))))
+                out.append((f"{path}.nu", writer.angle(float(el.nu))))
         elif not math.isclose(_mean_anomaly(new), _mean_anomaly(old), rel_tol=0.0,
                               abs_tol=1e-12):
             if "tp" in raw:
                 out.append((f"{path}.tp", None))
-            out.append((f"{path}.M", _deg(_mean_anomaly(new))))
+            out.append((f"{path}.M", writer.angle(_mean_anomaly(new))))
     elif epoch_moved and "tp" in raw and not _is_date(raw["tp"]):
         # tp as an offset counts from the scene epoch, which moved: the same periapsis
         # time, counted from the new epoch.
         tp_s = new.epoch_offset_s - float(el.time_since_periapsis)
-        out.append((f"{path}.tp", f"{tp_s!r} s"))
+        out.append((f"{path}.tp", writer.duration(tp_s)))
     if new.color != old.color:
-        out.append((f"{path}.color", _hex(new.color)))
+        out.append((f"{path}.color", writer.color(new.color)))
     if new.line_width_px != old.line_width_px:
         out.append((f"{path}.line_width", new.line_width_px))
     if new.show != old.show or (new.sweep is None) != (old.sweep is None):
-        default = BodyShow()
-        flags = {k: getattr(new.show, k) for k in BodyShow.__dataclass_fields__
-                 if k != "sweep" and getattr(new.show, k) != getattr(default, k)}
-        if new.show.sweep != (new.sweep is not None):
-            flags["sweep"] = new.show.sweep
+        flags = writer.show_table(new.show, new.sweep is not None)
         out.append((f"{path}.show", flags or None))
     if new.sweep != old.sweep or sweep_date:
         out.append((f"{path}.sweep", d.get("sweep")))
@@ -143,21 +122,20 @@ def _center_edits(scene: Scene, saved: Scene, raw: dict[str, Any]) -> list[Edit]
         if "preset" in raw:
             out.append(("center.preset", None))
             if c.radius_m == c0.radius_m:
-                out.append(("center.radius", _q(c.radius_m, "km", 1e3)))
-        out.append(("center.gm", f"{c.gm_m3_s2:.15g} m3/s2"))
+                out.append(("center.radius", writer.length(c.radius_m, "km")))
+        out.append(("center.gm", writer.gm(c.gm_m3_s2)))
     if c.radius_m != c0.radius_m:
-        out.append(("center.radius", _q(c.radius_m, "km", 1e3)))
+        out.append(("center.radius", writer.length(c.radius_m, "km")))
     if c.color != c0.color:
-        out.append(("center.color", _hex(c.color)))
+        out.append(("center.color", writer.color(c.color)))
     if (c.show_body, c.show_label) != (c0.show_body, c0.show_label):
         out.append(("center.show", {"body": c.show_body, "label": c.show_label}))
     return out
 
 
 def epoch_text(epoch: Any) -> str:
-    """An epoch as the file writes it: microseconds, none when they are zero."""
-    text = epoch.iso(decimals=6)
-    return text.replace(".000000 ", " ")
+    """An epoch as the file writes it (``viewer.scene.writer.epoch``)."""
+    return writer.epoch(epoch)
 
 
 def _epoch_edits(scene: Scene, saved: Scene, data: dict[str, Any]) -> list[Edit]:
@@ -168,7 +146,7 @@ def _epoch_edits(scene: Scene, saved: Scene, data: dict[str, Any]) -> list[Edit]
     out: list[Edit] = [("scene.epoch", epoch_text(scene.epoch))]
     timeline = data.get("timeline")
     if isinstance(timeline, dict) and _is_date(timeline.get("start")):
-        out.append(("timeline.start", f"{scene.timeline.start_s!r} s"))
+        out.append(("timeline.start", writer.duration(scene.timeline.start_s)))
     for k, (pop, old) in enumerate(zip(scene.populations, saved.populations, strict=False)):
         if pop.epoch_offset_s != old.epoch_offset_s:
             out.append((f"population[{k}].epoch", epoch_text(scene.epoch.plus_seconds(

@@ -17,6 +17,7 @@ from __future__ import annotations
 import math
 import re
 import tomllib
+from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -62,6 +63,13 @@ SIZE_FORMS = "a | period | periapsis+apoapsis | periapsis+e"
 #: Colours of bodies that give none, in order (our own palette, distinct on black).
 PALETTE = ("#7fd0ff", "#ffb347", "#9be37a", "#ff7f9f", "#c7a4ff", "#f5e663", "#5fe0c8",
            "#ff9966")
+
+
+def free_color(bodies: Sequence[Body]) -> tuple[float, float, float]:
+    """The first palette colour no body has yet (the palette again once all are taken)."""
+    taken = {b.color for b in bodies}
+    colors = [parse_color(c) for c in PALETTE]
+    return next((c for c in colors if c not in taken), colors[len(bodies) % len(colors)])
 
 
 # --- reading the file ---------------------------------------------------------------

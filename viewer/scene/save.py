@@ -32,8 +32,9 @@ from typing import Any
 
 from ..errors import UserInputError
 from ..fileio import describe_os_error
+from . import writer
 from .loader import MAX_FILE_BYTES, load_scene_text, read_scene_text
-from .model import BodyShow, Camera, RenderSettings, Scene
+from .model import Camera, RenderSettings, Scene
 
 _SEGMENT = re.compile(r'([A-Za-z0-9_-]+)(?:\[(?:(\d+)|(\+)|"((?:[^"\\]|\\.)*)")\])?')
 
@@ -310,14 +311,6 @@ def save_text(path: str | Path, text: str) -> Scene:
 # --- writing a Scene as new text -------------------------------------------------------
 
 
-def _hex(rgb: tuple[float, float, float]) -> str:
-    return "#" + "".join(f"{max(0, min(255, round(c * 255))):02x}" for c in rgb)
-
-
-def _q(x: float, unit: str, factor: float) -> str:
-    return f"{x / factor!r} {unit}"
-
-
 def dump_scene(scene: Scene) -> str:
     """A scene file's text for ``scene`` (lengths in its length unit, angles in deg).
 
@@ -327,18 +320,14 @@ def dump_scene(scene: Scene) -> str:
     """
     import tomlkit
 
-    from ..units import unit_factor
-
     lu = scene.length_unit
-    lf = unit_factor(lu, "length")
-    deg = math.pi / 180.0
     doc = tomlkit.document()
     doc.add(tomlkit.comment("Written by Perifocal. Units: lengths in " + lu
                             + ", angles in deg; see docs/scene-format.md."))
     s = tomlkit.table()
     s["format"] = 1
     s["title"] = scene.title
-    s["epoch"] = scene.epoch.iso(decimals=6)
+    s["epoch"] = writer.epoch(scene.epoch)
     s["frame"] = scene.frame
     s["units"] = {"length": lu, "time": scene.time_unit, "angle": "deg"}
     doc["scene"] = s
@@ -347,55 +336,26 @@ def dump_scene(scene: Scene) -> str:
     ct["name"] = c.name
     if c.preset:
         ct["preset"] = c.preset
-        ct["radius"] = _q(c.radius_m, "km", 1e3)
+        ct["radius"] = writer.length(c.radius_m, "km")
     else:
-        ct["gm"] = f"{c.gm_m3_s2!r} m3/s2"
-        ct["radius"] = _q(c.radius_m, "km", 1e3)
+        ct["gm"] = writer.gm(c.gm_m3_s2)
+        ct["radius"] = writer.length(c.radius_m, "km")
     for key, v in (("atmosphere", c.atmosphere_m), ("soi_radius", c.soi_radius_m)):
         if v is not None:
-            ct[key] = _q(v, "km", 1e3)
-    ct["color"] = _hex(c.color)
+            ct[key] = writer.length(v, "km")
+    ct["color"] = writer.color(c.color)
     if not (c.show_body and c.show_label):
         ct["show"] = {"body": c.show_body, "label": c.show_label}
     doc["center"] = ct
     bodies = tomlkit.aot()
-    default_show = BodyShow()
     for b in scene.bodies:
-        el = b.elements
         t = tomlkit.table()
-        t["name"] = b.name
-        e = float(el.e)
-        if e == 1.0:
-            t["periapsis"] = _q(float(el.periapsis), lu, lf)
-        else:
-            t["a"] = _q(float(el.a), lu, lf)
-        t["e"] = e
-        for key in ("i", "raan", "argp", "nu"):
-            t[key] = f"{float(getattr(el, key)) / deg!r} deg"
-        if b.epoch_offset_s:
-            t["epoch"] = scene.epoch.plus_seconds(b.epoch_offset_s).iso(decimals=6)
-        if b.limit_radius_m is not None:
-            t["limit_radius"] = _q(b.limit_radius_m, lu, lf)
-        if b.radius_m is not None:
-            t["radius"] = _q(b.radius_m, "km", 1e3)
-        t["color"] = _hex(b.color)
-        if b.line_width_px != 2.0:
-            t["line_width"] = b.line_width_px
-        show = {k: getattr(b.show, k) for k in default_show.__dataclass_fields__
-                if k != "sweep" and getattr(b.show, k) != getattr(default_show, k)}
-        if b.show.sweep != (b.sweep is not None):
-            show["sweep"] = b.show.sweep
-        if show:
-            t["show"] = _inline(show)
-        if b.sweep is not None:
-            sw = b.sweep
-            t["sweep"] = _inline({"start": f"{sw.start_s!r} s", "interval": f"{sw.interval_s!r} s",
-                                  "count": sw.count, "color": _hex(sw.color),
-                                  "opacity": sw.opacity, "show_area": sw.show_area})
+        for k, v in writer.body_table(scene, b).items():
+            t[k] = _inline(v) if isinstance(v, Mapping) else v
         bodies.append(t)
     if scene.bodies:
         doc["body"] = bodies
-    _dump_views(doc, scene, lu, lf)
+    _dump_views(doc, scene, lu)
     pops = [p for p in scene.populations if p.source is not None]
     if len(pops) < len(scene.populations):
         doc.add(tomlkit.comment("Generated populations are not written back; add their "
@@ -408,10 +368,10 @@ def dump_scene(scene: Scene) -> str:
             src = pop.source
             assert src is not None
             pt["table"] = str(src)
-            pt["color"] = _hex(pop.color)
+            pt["color"] = writer.color(pop.color)
             pt["point_size"] = pop.point_size_px
             if pop.epoch_offset_s:
-                pt["epoch"] = scene.epoch.plus_seconds(pop.epoch_offset_s).iso(decimals=6)
+                pt["epoch"] = writer.epoch(scene.epoch.plus_seconds(pop.epoch_offset_s))
             aot.append(pt)
         doc["population"] = aot
     return tomlkit.dumps(doc)
@@ -425,7 +385,7 @@ def _inline(values: Mapping[str, Any]) -> Any:
     return t
 
 
-def _dump_views(doc: Any, scene: Scene, lu: str, lf: float) -> None:
+def _dump_views(doc: Any, scene: Scene, lu: str) -> None:
     import tomlkit
 
     cam = scene.camera
@@ -434,36 +394,36 @@ def _dump_views(doc: Any, scene: Scene, lu: str, lf: float) -> None:
     ct["projection"] = cam.projection
     ct["look"] = cam.look
     if cam.look == "angles":
-        ct["elevation"] = f"{math.degrees(cam.elevation_rad)!r} deg"
-        ct["azimuth"] = f"{math.degrees(cam.azimuth_rad)!r} deg"
+        ct["elevation"] = writer.angle(cam.elevation_rad)
+        ct["azimuth"] = writer.angle(cam.azimuth_rad)
     ct["target"] = (cam.target if isinstance(cam.target, str)
-                    else [_q(x, lu, lf) for x in cam.target])
-    ct["width"] = _q(cam.width_m, lu, lf)
-    ct["distance"] = _q(cam.distance_m, lu, lf)
+                    else [writer.length(x, lu) for x in cam.target])
+    ct["width"] = writer.length(cam.width_m, lu)
+    ct["distance"] = writer.length(cam.distance_m, lu)
     if cam.fov_rad != d.fov_rad:
-        ct["fov"] = f"{math.degrees(cam.fov_rad)!r} deg"
+        ct["fov"] = writer.angle(cam.fov_rad)
     doc["camera"] = ct
     rs = scene.render
     rt = tomlkit.table()
     rt["size"] = list(rs.size_px)
-    rt["background"] = _hex(rs.background)
+    rt["background"] = writer.color(rs.background)
     for k in ("stars", "grid", "labels"):
         if getattr(rs, k) != getattr(RenderSettings(), k):
             rt[k] = getattr(rs, k)
     doc["render"] = rt
     tl = scene.timeline
     tt = tomlkit.table()
-    tt["start"] = f"{tl.start_s!r} s"
-    tt["rate"] = f"{tl.rate!r} s/s"
+    tt["start"] = writer.duration(tl.start_s)
+    tt["rate"] = writer.quantity(tl.rate, "rate", "s/s")
     tt["fps"] = tl.fps
-    tt["duration"] = f"{tl.duration_s!r} s"
+    tt["duration"] = writer.duration(tl.duration_s)
     if tl.clock != "none":
         tt["clock"] = tl.clock
-    _dump_show(tt, tl, lu, lf)
+    _dump_show(tt, tl, lu)
     doc["timeline"] = tt
 
 
-def _dump_show(tt: Any, tl: Any, lu: str, lf: float) -> None:
+def _dump_show(tt: Any, tl: Any, lu: str) -> None:
     """The show's keyframes, fades and captions as [[timeline.*]] tables."""
     import tomlkit
 
@@ -471,7 +431,7 @@ def _dump_show(tt: Any, tl: Any, lu: str, lf: float) -> None:
         aot = tomlkit.aot()
         for key in tl.camera_keys:
             t = tomlkit.table()
-            t["at"] = f"{key.at_s!r} s"
+            t["at"] = writer.duration(key.at_s)
             t["ease"] = key.ease
             for name in ("projection", "look"):
                 if getattr(key, name) is not None:
@@ -479,13 +439,13 @@ def _dump_show(tt: Any, tl: Any, lu: str, lf: float) -> None:
             for name, field in (("elevation", "elevation_rad"), ("azimuth", "azimuth_rad"),
                                 ("fov", "fov_rad")):
                 if getattr(key, field) is not None:
-                    t[name] = f"{math.degrees(getattr(key, field))!r} deg"
+                    t[name] = writer.angle(getattr(key, field))
             if key.target is not None:
                 t["target"] = (key.target if isinstance(key.target, str)
-                               else [_q(x, lu, lf) for x in key.target])
+                               else [writer.length(x, lu) for x in key.target])
             for name, field in (("width", "width_m"), ("distance", "distance_m")):
                 if getattr(key, field) is not None:
-                    t[name] = _q(getattr(key, field), lu, lf)
+                    t[name] = writer.length(getattr(key, field), lu)
             aot.append(t)
         tt["camera"] = aot
     if tl.fades:
@@ -494,7 +454,7 @@ def _dump_show(tt: Any, tl: Any, lu: str, lf: float) -> None:
             t = tomlkit.table()
             t["body"] = f.body
             t["mark"] = f.mark
-            t["at"] = [f"{x!r} s" for x in f.at_s]
+            t["at"] = [writer.duration(x) for x in f.at_s]
             t["opacity"] = list(f.opacity)
             t["ease"] = f.ease
             aot.append(t)
@@ -504,13 +464,13 @@ def _dump_show(tt: Any, tl: Any, lu: str, lf: float) -> None:
         for c in tl.captions:
             t = tomlkit.table()
             t["text"] = c.text
-            t["start"] = f"{c.start_s!r} s"
+            t["start"] = writer.duration(c.start_s)
             if math.isfinite(c.end_s):
-                t["end"] = f"{c.end_s!r} s"
-            t["fade"] = f"{c.fade_s!r} s"
+                t["end"] = writer.duration(c.end_s)
+            t["fade"] = writer.duration(c.fade_s)
             t["position"] = c.position
             t["size"] = c.size_px
-            t["color"] = _hex(c.color)
+            t["color"] = writer.color(c.color)
             aot.append(t)
         tt["caption"] = aot
 

@@ -1,0 +1,204 @@
+"""The one scene writer: typed scene values to TOML text.
+
+Every path that writes scene TOML goes through here: the editor's saves (key edits in
+``viewer.gui.scene_edits``), whole new scenes (``viewer.scene.save.dump_scene``), and
+bodies appended by ``perifocal import`` and ``perifocal transfer``
+(``viewer.formats.scene_text``). So a value is written one way everywhere:
+
+* a quantity is a string with its unit, ``"1.52 au"``, with the fewest significant
+  digits (up to 17) that the loader turns back into the very same float64 (the loader
+  multiplies the number by the unit's factor, so plain ``repr`` of a divided value would
+  carry division noise such as ``1.5200000000000002``);
+* angles in degrees, times in seconds, gravitational parameters in m3/s2 (km3/s2 for
+  ``center.gm`` written beside a km radius is not needed: the unit is in the string);
+* colours as ``#rrggbb``; epochs as ISO 8601 with microseconds (none when they are
+  zero) and the time scale;
+* a body's size in its conic's form: ``a`` for an ellipse, ``periapsis`` with ``e`` for
+  a parabola or a hyperbola; where it is, as ``nu`` (true anomaly), which the format
+  takes for every conic (scene-format.md, "Orbit elements").
+
+Imports tomlkit lazily (only ``table_text`` needs it).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from collections.abc import Iterable, Mapping
+from dataclasses import fields
+from typing import Any
+
+from ..units import Epoch, unit_factor
+from .model import Body, BodyShow, Scene
+
+RGB = tuple[float, float, float]
+
+
+def toml_string(text: str) -> str:
+    """A TOML basic string (JSON escaping is valid TOML)."""
+    return json.dumps(text, ensure_ascii=False)
+
+
+def comment_block(lines: Iterable[str], prefix: str = "") -> str:
+    """TOML comment lines ('# ...') for each line of text, one per line."""
+    out = []
+    for line in lines:
+        for part in (line.splitlines() or [""]):
+            out.append(f"# {prefix}{part}".rstrip())
+    return "\n".join(out) + ("\n" if out else "")
+
+
+def number(x_si: float, factor: float = 1.0) -> str:
+    """The fewest digits of ``x_si / factor`` that give back ``x_si`` when the loader
+    multiplies them by ``factor``; where no decimal does that exactly (a few angles in
+    degrees), the one that comes closest (within one unit of the last place)."""
+    x = float(x_si)
+    if not math.isfinite(x):
+        raise ValueError("a scene value must be finite")
+    v = x / factor
+    best, best_err = v, math.inf
+    for digits in range(1, 18):
+        w = float(f"{v:.{digits}g}")
+        err = abs(w * factor - x)
+        if err == 0.0:
+            return _plain(w)
+        if digits >= 15 and err < best_err:
+            best, best_err = w, err
+    return _plain(best)
+
+
+def _plain(w: float) -> str:
+    """Python's shortest text of ``w``, without a trailing ".0" and with a short
+    exponent ("86400", "1.52", "2.5e-7", "1e21")."""
+    text = repr(w)
+    if "e" in text:
+        mant, exp = text.split("e")
+        mant = mant[:-2] if mant.endswith(".0") else mant
+        return f"{mant}e{int(exp)}"
+    return text[:-2] if text.endswith(".0") else text
+
+
+def quantity(x_si: float, dimension: str, unit: str) -> str:
+    """A quantity string: ``quantity(2.274e11, "length", "au") == "1.52 au"``."""
+    return f"{number(x_si, unit_factor(unit, dimension))} {unit}"
+
+
+def length(x_m: float, unit: str) -> str:
+    return quantity(x_m, "length", unit)
+
+
+def angle(x_rad: float) -> str:
+    return quantity(x_rad, "angle", "deg")
+
+
+def duration(x_s: float) -> str:
+    return quantity(x_s, "time", "s")
+
+
+def gm(x_m3_s2: float) -> str:
+    return quantity(x_m3_s2, "gm", "m3/s2")
+
+
+def color(rgb: RGB) -> str:
+    return "#" + "".join(f"{max(0, min(255, round(c * 255))):02x}" for c in rgb)
+
+
+def epoch(e: Epoch) -> str:
+    """An epoch as the file writes it: microseconds, none when they are zero."""
+    return e.iso(decimals=6).replace(".000000 ", " ")
+
+
+# --- tables -----------------------------------------------------------------------------
+
+
+def show_table(show: BodyShow, has_sweep: bool) -> dict[str, bool]:
+    """The ``show`` keys that differ from the defaults (``sweep`` defaults to whether a
+    sweep table is given)."""
+    default = BodyShow()
+    out = {f.name: getattr(show, f.name) for f in fields(BodyShow)
+           if f.name != "sweep" and getattr(show, f.name) != getattr(default, f.name)}
+    if show.sweep != has_sweep:
+        out["sweep"] = show.sweep
+    return out
+
+
+def body_table(scene: Scene, body: Body) -> dict[str, Any]:
+    """The ``[[body]]`` table of ``body`` as plain values (lengths in the scene's unit)."""
+    lu = scene.length_unit
+    el = body.elements
+    e = float(el.e)
+    t: dict[str, Any] = {"name": body.name}
+    if e < 1.0:
+        t["a"] = length(float(el.a), lu)
+        t["e"] = e
+    else:
+        t["periapsis"] = length(float(el.periapsis), lu)
+        t["e"] = e
+    for key in ("i", "raan", "argp", "nu"):
+        t[key] = angle(float(getattr(el, key)))
+    if body.epoch_offset_s:
+        t["epoch"] = epoch(scene.epoch.plus_seconds(body.epoch_offset_s))
+    if body.limit_radius_m is not None and e >= 1.0:
+        t["limit_radius"] = length(body.limit_radius_m, lu)
+    if body.radius_m is not None:
+        t["radius"] = length(body.radius_m, "km")
+    t["color"] = color(body.color)
+    if body.line_width_px != 2.0:
+        t["line_width"] = body.line_width_px
+    show = show_table(body.show, body.sweep is not None)
+    if show:
+        t["show"] = show
+    if body.sweep is not None:
+        t["sweep"] = sweep_table(scene, body)
+    return t
+
+
+def sweep_table(scene: Scene, body: Body) -> dict[str, Any]:
+    """The ``sweep`` table of a body; ``interval`` only where it is not the default
+    (one period / count on an ellipse)."""
+    sw = body.sweep
+    assert sw is not None
+    out: dict[str, Any] = {"start": duration(sw.start_s)}
+    if not derived_interval(body):
+        out["interval"] = duration(sw.interval_s)
+    out.update({"count": sw.count, "color": color(sw.color), "opacity": sw.opacity})
+    if sw.show_area:
+        out["show_area"] = True
+    return out
+
+
+def derived_interval(body: Body) -> bool:
+    """Whether the body's sector interval is the default the loader gives, one period /
+    count (so writing none gives back the same interval)."""
+    sw = body.sweep
+    if sw is None or float(body.elements.e) >= 1.0:
+        return False
+    return sw.interval_s == float(body.elements.period) / sw.count
+
+
+def table_text(name: str, table: Mapping[str, Any], comments: Iterable[str] = ()) -> str:
+    """A ``[[name]]`` table as TOML text (nested tables inline), after comment lines."""
+    import tomlkit
+
+    t = tomlkit.table()
+    for k, v in table.items():
+        t[k] = _inline(v) if isinstance(v, Mapping) else v
+    aot = tomlkit.aot()
+    aot.append(t)
+    doc = tomlkit.document()
+    doc[name] = aot
+    return comment_block(comments) + tomlkit.dumps(doc)
+
+
+def _inline(values: Mapping[str, Any]) -> Any:
+    import tomlkit
+
+    t = tomlkit.inline_table()
+    for k, v in values.items():
+        t[k] = _inline(v) if isinstance(v, Mapping) else v
+    return t
+
+
+def body_text(scene: Scene, body: Body, comments: Iterable[str] = ()) -> str:
+    """``body`` as a ``[[body]]`` table's text, ready to append to a scene file."""
+    return table_text("body", body_table(scene, body), comments)
