@@ -24,6 +24,7 @@ from imgui_bundle import imgui
 from ..errors import UserInputError
 from ..mission import CAUTION
 from ..orbit import AU_M, DAY_S, swept_area
+from ..scene.marks import MARKS
 from ..units import QuantityError, parse_quantity
 from .camera_input import focus, preset
 from .clock import next_apsis_s
@@ -72,10 +73,7 @@ LOCKS = (("auto", "natural partner"), ("a", "a and period"), ("e", "e"),
 LOCKS_PER_LINE = 3
 #: The tabs of the right-hand panel.
 ORBIT_TABS = ("Elements", "Quick answers", "Transfer")
-SHOW_LABELS = (("orbit", "orbit"), ("marker", "marker"), ("label", "label"),
-               ("foci", "both foci"), ("axes", "axes"), ("apsides", "apsides"),
-               ("nodes", "line of nodes"), ("velocity", "velocity arrow"),
-               ("sweep", "equal-time sectors"))
+SHOW_LABELS = tuple((m.name, m.label) for m in MARKS)
 SHORTCUTS = (
     ("Space", "play / pause"), ("Left / Right", "step one frame back / on"),
     ("[  /  ]", "halve / double the rate"), ("Home", "back to the timeline start"),

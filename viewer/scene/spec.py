@@ -12,6 +12,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from ..orbit.constants import CATALOGUE
+from .marks import MARKS
+from .marks import NAMES as MARK_NAMES
 
 #: How a value of each kind is written in TOML (used in messages and in the docs test).
 KINDS: dict[str, str] = {
@@ -107,17 +109,8 @@ CENTER = Key("center", "table", "the central body at the occupied focus", requir
     )),
 ))
 
-SHOW = Key("show", "table", "what to draw for the body (merged with the defaults)", keys=(
-    Key("orbit", "bool", "the orbit curve", "true"),
-    Key("marker", "bool", "the body's marker at the current time", "true"),
-    Key("label", "bool", "the body's name beside its marker", "true"),
-    Key("foci", "bool", "both foci (occupied and empty)", "false"),
-    Key("axes", "bool", "major and minor axes", "false"),
-    Key("apsides", "bool", "periapsis and apoapsis marks", "false"),
-    Key("nodes", "bool", "the line of nodes", "false"),
-    Key("velocity", "bool", "the velocity arrow", "false"),
-    Key("sweep", "bool", "the swept sectors", "true when a sweep table is given"),
-))
+SHOW = Key("show", "table", "what to draw for the body (merged with the defaults)", keys=tuple(
+    Key(m.name, "bool", m.what, m.default) for m in MARKS))
 
 SWEEP = Key("sweep", "table", "equal-time sectors from the occupied focus", keys=(
     Key("start", "time_or_epoch", "scene time of the first sector's first edge", "0 d"),
@@ -184,8 +177,7 @@ RENDER = Key("render", "table", "image settings", keys=(
 #: Ways a keyframed value moves from one key to the next.
 EASES = ("in-out", "linear", "in", "out")
 #: The marks of a body whose opacity a fade can change.
-FADE_MARKS = ("all", "orbit", "marker", "label", "foci", "axes", "apsides", "nodes",
-              "velocity", "sweep")
+FADE_MARKS = ("all", *MARK_NAMES)
 CAPTION_POSITIONS = ("bottom", "top", "center", "bottom-left", "bottom-right", "top-left",
                      "top-right")
 

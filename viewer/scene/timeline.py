@@ -18,6 +18,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from ..orbit import state_from_elements
+from .marks import NAMES
 from .model import Camera, CameraKey, Caption, Fade, MarkOpacity, Scene
 
 TWO_PI = 2.0 * math.pi
@@ -156,7 +157,7 @@ def clock_text(scene: Scene, t_s: float) -> str | None:
     return None
 
 
-MARKS = ("orbit", "marker", "label", "foci", "axes", "apsides", "nodes", "velocity", "sweep")
+MARKS = NAMES
 
 
 def show_time_of(scene: Scene, t_s: float) -> float:
