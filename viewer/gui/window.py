@@ -19,8 +19,9 @@ from typing import Any
 
 import numpy as np
 
-from .camera_input import focus, orbit, pan, preset, zoom
-from .clock import Clock, next_apsis_s
+from .actions import action_for
+from .camera_input import focus, orbit, pan, zoom
+from .clock import Clock
 from .editor import Editor
 from .panels import Panels
 from .session import Session
@@ -191,62 +192,16 @@ class ViewerWindow:
             win.push_handlers(**{handler.__name__: handler})
 
     def _shortcut(self, symbol: int, mods: int) -> None:
+        """Run the action bound to this key (``viewer.gui.actions``). Keys with Ctrl work
+        everywhere; plain keys only while no field or dialog takes the keyboard."""
         key = self._pyglet.window.key
-        s, ed, clock = self.session, self.editor, self.session.clock
+        s = self.session
         ctrl = bool(mods & key.MOD_CTRL)
-        shift = bool(mods & key.MOD_SHIFT)
-        if ctrl:
-            if symbol == key.Z and not shift:
-                ed.undo()
-            elif symbol == key.Y or (symbol == key.Z and shift):
-                ed.redo()
-            elif symbol == key.S:
-                s.open_save_as() if shift else s.save()
-            elif symbol == key.Q:
-                s.request_quit()
-            elif symbol == key.N:
-                ed.add_body()
-            elif symbol == key.D and ed.body is not None:
-                ed.duplicate()
-            elif symbol == key.O:
-                s.request_open()
-            elif symbol == key.E:
-                s.show_still()
-            elif symbol == key.R and not (s.job is not None and s.job.active):
-                s.show_job()
+        if not ctrl and (self._imgui.get_io().want_text_input or s.any_dialog):
             return
-        if self._imgui.get_io().want_text_input or s.any_dialog:
-            return
-        if symbol == key.SPACE:
-            clock.playing = not clock.playing
-        elif symbol in (key.LEFT, key.RIGHT):
-            clock.step(1 if symbol == key.RIGHT else -1)
-        elif symbol == key.BRACKETLEFT:
-            clock.rate /= 2.0
-        elif symbol == key.BRACKETRIGHT:
-            clock.rate *= 2.0
-        elif symbol == key.HOME:
-            clock.t_s = ed.scene.timeline.start_s
-        elif symbol in (key.P, key.O) and ed.body is not None:
-            t = next_apsis_s(ed.body, clock.t_s, "periapsis" if symbol == key.P else "apoapsis")
-            if t is not None:
-                clock.t_s = t
-        elif symbol in (key.UP, key.DOWN) and ed.scene.bodies:
-            k = ed.selection if ed.selection is not None else 0
-            ed.select(max(0, min(len(ed.scene.bodies) - 1, k + (1 if symbol == key.DOWN
-                                                                 else -1))))
-        elif symbol == key.T:
-            s.camera = preset(s.camera, "top")
-        elif symbol == key.E:
-            s.camera = preset(s.camera, "edge")
-        elif symbol == key.F and ed.body is not None:
-            s.camera = focus(s.camera, ed.body.name)
-        elif symbol == key.C:
-            s.camera = focus(s.camera, "center")
-        elif symbol == key.G:
-            s.show_plots = not s.show_plots
-        elif symbol in (key.F1, key.H):
-            s.show_help = not s.show_help
+        act = action_for(key.symbol_string(symbol), ctrl, bool(mods & key.MOD_SHIFT))
+        if act is not None and act.enabled(s):
+            act.run(s)
 
     # --- drawing --------------------------------------------------------------------------
 

@@ -1,0 +1,204 @@
+"""The one table of the window's actions: from it come the key handling, the menus and
+the help overlay, so a shortcut is written once. Plain Python: no imgui, no pyglet.
+
+An ``Action`` has a label (the menu entry), its key chords (``"Ctrl+S"``, ``"Space"``,
+``"Left"``), the menu it sits in (or none: key only), what it does to the session, and
+when it is allowed. ``keys_text`` is how the help and the menus show its keys; a row of
+``EXTRA_HELP`` lists what is not an action (mouse gestures, typing in fields).
+
+Key names are pyglet's symbol names (``pyglet.window.key.symbol_string``): letters,
+``SPACE``, ``LEFT``, ``BRACKETLEFT``, ``F1``; the window passes them with the state of
+Ctrl and Shift to ``action_for``.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import Any
+
+from .camera_input import focus, preset
+from .clock import next_apsis_s
+
+Run = Callable[[Any], None]
+When = Callable[[Any], bool]
+
+#: How a key symbol is written for people.
+_KEY_TEXT = {"SPACE": "Space", "LEFT": "Left", "RIGHT": "Right", "UP": "Up", "DOWN": "Down",
+             "HOME": "Home", "BRACKETLEFT": "[", "BRACKETRIGHT": "]", "ESCAPE": "Esc",
+             "RETURN": "Enter"}
+
+
+@dataclass(frozen=True)
+class Chord:
+    """A key with the state of Ctrl and Shift: ``Chord("S", ctrl=True)``."""
+
+    key: str
+    ctrl: bool = False
+    shift: bool = False
+
+    @property
+    def text(self) -> str:
+        name = _KEY_TEXT.get(self.key, self.key)
+        return ("Ctrl+" if self.ctrl else "") + ("Shift+" if self.shift else "") + name
+
+
+@dataclass(frozen=True)
+class Action:
+    """One thing the user can do by key or menu (see the module docstring)."""
+
+    name: str
+    label: str
+    chords: tuple[Chord, ...]
+    run: Run
+    menu: str = ""
+    enabled: When = lambda s: True
+    checked: When | None = None
+
+    @property
+    def keys_text(self) -> str:
+        return " / ".join(c.text for c in self.chords)
+
+
+def _always(s: Any) -> bool:
+    return True
+
+
+def _has_body(s: Any) -> bool:
+    return s.editor.body is not None
+
+
+def _no_job(s: Any) -> bool:
+    return not (s.job is not None and s.job.active)
+
+
+def _toggle_play(s: Any) -> None:
+    s.clock.playing = not s.clock.playing
+
+
+def _half_rate(s: Any) -> None:
+    s.clock.rate /= 2.0
+
+
+def _double_rate(s: Any) -> None:
+    s.clock.rate *= 2.0
+
+
+def _to_start(s: Any) -> None:
+    s.clock.t_s = s.editor.scene.timeline.start_s
+
+
+def _to_apsis(which: str) -> Run:
+    def run(s: Any) -> None:
+        t = next_apsis_s(s.editor.body, s.clock.t_s, which)
+        if t is not None:
+            s.clock.t_s = t
+    return run
+
+
+def _select_step(step: int) -> Run:
+    def run(s: Any) -> None:
+        ed = s.editor
+        if not ed.scene.bodies:
+            return
+        k = ed.selection if ed.selection is not None else 0
+        ed.select(max(0, min(len(ed.scene.bodies) - 1, k + step)))
+    return run
+
+
+def _look(which: str) -> Run:
+    def run(s: Any) -> None:
+        s.camera = preset(s.camera, which)
+    return run
+
+
+def _follow(s: Any) -> None:
+    s.camera = focus(s.camera, s.editor.body.name)
+
+
+def _centre(s: Any) -> None:
+    s.camera = focus(s.camera, "center")
+
+
+def _toggle(attr: str) -> Run:
+    def run(s: Any) -> None:
+        setattr(s, attr, not getattr(s, attr))
+    return run
+
+
+def _flag(attr: str) -> When:
+    return lambda s: bool(getattr(s, attr))
+
+
+C = Chord
+ACTIONS: tuple[Action, ...] = (
+    # File
+    Action("open", "Open...", (C("O", ctrl=True),), lambda s: s.request_open(), "File"),
+    Action("save", "Save", (C("S", ctrl=True),), lambda s: s.save(), "File"),
+    Action("save_as", "Save as...", (C("S", ctrl=True, shift=True),),
+           lambda s: s.open_save_as(), "File"),
+    Action("still", "Export a still of the view...", (C("E", ctrl=True),),
+           lambda s: s.show_still(), "File"),
+    Action("render", "Render the timeline...", (C("R", ctrl=True),), lambda s: s.show_job(),
+           "File", _no_job),
+    Action("quit", "Quit", (C("Q", ctrl=True),), lambda s: s.request_quit(), "File"),
+    # Edit
+    Action("undo", "Undo", (C("Z", ctrl=True),), lambda s: s.editor.undo(), "Edit",
+           lambda s: s.editor.can_undo),
+    Action("redo", "Redo", (C("Y", ctrl=True), C("Z", ctrl=True, shift=True)),
+           lambda s: s.editor.redo(), "Edit", lambda s: s.editor.can_redo),
+    Action("add_body", "Add a body", (C("N", ctrl=True),), lambda s: s.editor.add_body(),
+           "Edit"),
+    Action("duplicate", "Duplicate the selected body", (C("D", ctrl=True),),
+           lambda s: s.editor.duplicate(), "Edit", _has_body),
+    Action("select_up", "Select the previous body", (C("UP"),), _select_step(-1)),
+    Action("select_down", "Select the next body", (C("DOWN"),), _select_step(1)),
+    # View
+    Action("top", "From the top", (C("T"),), _look("top"), "View"),
+    Action("edge", "Along the edge", (C("E"),), _look("edge"), "View"),
+    Action("follow", "Follow the selected body", (C("F"),), _follow, "View", _has_body),
+    Action("centre", "Centre on the central body", (C("C"),), _centre, "View"),
+    Action("plots", "Plots: distance and speed, third law", (C("G"),), _toggle("show_plots"),
+           "View", _always, _flag("show_plots")),
+    # Time
+    Action("play", "Play / pause", (C("SPACE"),), _toggle_play, "Time"),
+    Action("step_back", "Step one frame back", (C("LEFT"),), lambda s: s.clock.step(-1),
+           "Time"),
+    Action("step_on", "Step one frame on", (C("RIGHT"),), lambda s: s.clock.step(1), "Time"),
+    Action("slower", "Halve the rate", (C("BRACKETLEFT"),), _half_rate, "Time"),
+    Action("faster", "Double the rate", (C("BRACKETRIGHT"),), _double_rate, "Time"),
+    Action("start", "Back to the timeline start", (C("HOME"),), _to_start, "Time"),
+    Action("periapsis", "Next periapsis of the selected body", (C("P"),),
+           _to_apsis("periapsis"), "Time", _has_body),
+    Action("apoapsis", "Next apoapsis of the selected body", (C("O"),),
+           _to_apsis("apoapsis"), "Time", _has_body),
+    # Help
+    Action("help", "Shortcuts", (C("F1"), C("H")), _toggle("show_help"), "Help", _always,
+           _flag("show_help")),
+)
+
+#: The menus in the order of the menu bar ("Mission" is drawn by the panels: its entries
+#: open tabs, not actions).
+MENUS = ("File", "Edit", "View", "Time", "Help")
+
+#: Help rows for what is not an action.
+EXTRA_HELP = (
+    ("drag", "turn the view"), ("right-drag, Shift+drag", "pan"),
+    ("wheel", "zoom toward the cursor"), ("Enter", "apply a typed value"),
+    ("Esc", "leave a field unchanged"),
+)
+
+
+def action_for(key: str, ctrl: bool, shift: bool) -> Action | None:
+    """The action bound to a key symbol name with Ctrl and Shift as given, if any."""
+    chord = Chord(key, ctrl, shift)
+    return next((a for a in ACTIONS if chord in a.chords), None)
+
+
+def menu_actions(menu: str) -> tuple[Action, ...]:
+    return tuple(a for a in ACTIONS if a.menu == menu)
+
+
+def shortcut_rows() -> tuple[tuple[str, str], ...]:
+    """(keys, what) for the help overlay: every action, then the gestures."""
+    return tuple((a.keys_text, a.label.rstrip(".").lower()) for a in ACTIONS) + EXTRA_HELP

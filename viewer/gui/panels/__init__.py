@@ -1,0 +1,96 @@
+"""The imgui panels of the viewer, one module per panel. They read the Session and call
+the editor; nothing else.
+
+Layout (our own): a menu bar; on the left "Bodies" (the list and the central body) above
+"Marks" (drawing toggles, style, equal-time sectors); on the right "Orbit" (the element
+editor and its lock) above "Numbers" (the live readout); along the bottom "Time". A help
+overlay lists the shortcuts; modal prompts ask before quitting with unsaved changes and
+for a file name on save-as. Every number shown carries its unit.
+
+Modules: ``widgets`` (layout, colours, the shared widgets, among them the typed field
+that parses, commits and shows its refusal), ``menu``, ``bodies`` (Bodies and Marks),
+``orbit`` (the element editor's tabs), ``mission_tabs`` (quick answers, transfers),
+``numbers`` (the readout), ``time_panel``, ``plots_window``, ``dialogs``. Keyboard
+shortcuts, menu entries and the help overlay come from one table, ``viewer.gui.actions``.
+
+``Panels.report`` collects, per frame, the screen rectangles of the named inputs and the
+texts of the readout, so tests (and the docs' screenshot script) can drive the window
+through the X server and read what it shows.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any
+
+from ..actions import shortcut_rows
+from ..editor import Editor
+from ..mission import QuickInputs
+from ..session import Session
+from . import bodies, dialogs, menu, numbers, orbit, plots_window, time_panel
+from .widgets import GAP, LEFT_W, MENU_H, RIGHT_W, TIME_H, Widgets, scene_area
+
+__all__ = ["Panels", "Session", "scene_area", "shortcut_list"]
+
+
+@dataclass
+class Panels(Widgets):
+    """The panels' own state: text being typed and refusals, per field."""
+
+    buffers: dict[str, str] = field(default_factory=dict)
+    errors: dict[str, str] = field(default_factory=dict)
+    #: A tab of the right-hand panel to bring forward on the next frame.
+    orbit_tab: str = ""
+    quick: QuickInputs = field(default_factory=QuickInputs)
+    transfer_from: int | None = None
+    transfer_to: int | None = None
+    transfer_kind: str = "hohmann"
+    transfer_via: str = ""
+    report: dict[str, Any] = field(default_factory=dict)
+    _editor: Any = None
+
+    def _reset_for(self, editor: Editor) -> None:
+        """Another scene was opened: drop what was typed for the old one."""
+        fresh = Panels()
+        for name in ("buffers", "errors", "quick"):
+            setattr(self, name, getattr(fresh, name))
+        self.transfer_from = self.transfer_to = None
+        self.transfer_via = ""
+        self._editor = editor
+
+
+    def draw(self, s: Session, size: tuple[int, int]) -> None:
+        """All panels for one frame (call between imgui.new_frame and imgui.render)."""
+        if s.editor is not self._editor:
+            self._reset_for(s.editor)
+        w, h = float(size[0]), float(size[1])
+        self.report = {"rects": {}, "readout": [], "values": {}, "dirty": s.editor.dirty,
+                       "prompt": "unsaved" if s.unsaved_for else "",
+                       "bodies": [b.name for b in s.editor.scene.bodies]}
+        menu.draw(self, s)
+        top = MENU_H + GAP
+        split = top + min(250.0, 0.33 * h)
+        bodies.draw_bodies(self, s, (GAP, top), (LEFT_W, split - top))
+        bodies.draw_marks(self, s, (GAP, split + GAP), (LEFT_W, h - split - TIME_H - 3 * GAP))
+        split = top + min(480.0, 0.56 * h)
+        orbit.draw(self, s, (w - RIGHT_W - GAP, top), (RIGHT_W, split - top))
+        numbers.draw(self, s, (w - RIGHT_W - GAP, split + GAP),
+                      (RIGHT_W, h - split - TIME_H - 3 * GAP))
+        time_panel.draw(self, s, (GAP, h - TIME_H - GAP), (w - 2 * GAP, TIME_H))
+        if s.show_plots:
+            plots_window.draw(self, s, w, h)
+        if s.job is not None:
+            dialogs.job_progress(self, s, w, h)
+        if s.show_help:
+            dialogs.help_overlay(self, s, w, h)
+        dialogs.unsaved_prompt(self, s)
+        dialogs.save_as(self, s)
+        dialogs.open_dialog(self, s)
+        dialogs.still_dialog(self, s)
+        dialogs.job_dialog(self, s)
+
+
+
+def shortcut_list() -> tuple[tuple[str, str], ...]:
+    """The shortcuts the help overlay lists (keys, what they do), from the action table."""
+    return shortcut_rows()

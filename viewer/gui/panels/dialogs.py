@@ -1,0 +1,186 @@
+"""The help overlay, the prompts and dialogs (unsaved changes, save as, open, still
+export, render job) and the render job's progress."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+from imgui_bundle import imgui
+
+from ...errors import UserInputError
+from ..actions import shortcut_rows
+from ..jobs import VIDEO_QUALITIES
+from ..session import Session
+from .widgets import (
+    AMBER,
+    DIM,
+    GAP,
+    _rect,
+    centre_next_window,
+    scene_area,
+)
+
+if TYPE_CHECKING:
+    from . import Panels
+
+
+def help_overlay(p: Panels, s: Session, w: float, h: float) -> None:
+    imgui.set_next_window_pos(imgui.ImVec2(0.5 * w, 0.5 * h), imgui.Cond_.always,
+                              imgui.ImVec2(0.5, 0.5))
+    imgui.set_next_window_bg_alpha(0.94)
+    opened, keep = imgui.begin("Shortcuts", True, imgui.WindowFlags_.always_auto_resize
+                               | imgui.WindowFlags_.no_collapse)
+    if opened and imgui.begin_table("keys", 2):
+        for key, what in shortcut_rows():
+            imgui.table_next_row()
+            imgui.table_next_column()
+            imgui.text_colored(AMBER, key)
+            imgui.table_next_column()
+            imgui.text(what)
+        imgui.end_table()
+    imgui.text_colored(DIM, "Two-body Keplerian model: not for operational navigation.")
+    imgui.end()
+    if keep is False:
+        s.show_help = False
+
+
+def unsaved_prompt(p: Panels, s: Session) -> None:
+    if s.unsaved_for and not imgui.is_popup_open("Unsaved changes"):
+        imgui.open_popup("Unsaved changes")
+    centre_next_window()
+    opened, _ = imgui.begin_popup_modal("Unsaved changes", None,
+                                        imgui.WindowFlags_.always_auto_resize)
+    if not opened:
+        return
+    quitting = s.unsaved_for == "quit"
+    imgui.text("This scene has changes that are not saved.")
+    if not quitting:
+        imgui.text_colored(DIM, "Nothing is lost until another scene is opened.")
+    then = "quit" if quitting else "open another"
+    choice = ""
+    if p.button(f"Save and {then}"):
+        choice = "save"
+    p.report["rects"]["prompt:save"] = _rect()
+    imgui.same_line()
+    if p.button("Quit without saving" if quitting else "Open another without saving"):
+        choice = "discard"
+    p.report["rects"]["prompt:discard"] = _rect()
+    imgui.same_line()
+    if p.button("Keep editing") or imgui.is_key_pressed(imgui.Key.escape):
+        choice = "cancel"
+    p.report["rects"]["prompt:cancel"] = _rect()
+    if choice:
+        s.unsaved_choice(choice)
+        imgui.close_current_popup()
+    imgui.end_popup()
+
+
+def save_as(p: Panels, s: Session) -> None:
+    if not p.modal("Save as", s.save_as_prompt):
+        return
+    imgui.text("File name (.toml):")
+    entered, s.save_as_text = p.path_input("saveas", s.save_as_text)
+    ok, cancel = p.ok_cancel("Save")
+    if ok or entered:
+        try:
+            path = s.editor.save(Path(s.save_as_text).expanduser())
+            s.message = f"saved {path}"
+            s.save_as_prompt = False
+            imgui.close_current_popup()
+        except UserInputError as err:
+            s.message = "not saved: " + "; ".join(err.problems)
+    if cancel:
+        s.save_as_prompt = False
+        imgui.close_current_popup()
+    imgui.end_popup()
+
+
+def open_dialog(p: Panels, s: Session) -> None:
+    if not p.modal("Open a scene", s.open_prompt):
+        return
+    imgui.text("Scene file (.toml):")
+    entered, s.open_text = p.path_input("open", s.open_text)
+    p.report["open_errors"] = list(s.open_errors)
+    if s.open_errors:
+        imgui.text_colored(AMBER, "Not opened; the current scene is kept:")
+        p.error_lines(s.open_errors)
+    p.end_dialog(s, "open_prompt", "Open", entered, s.open_scene)
+
+
+def still_dialog(p: Panels, s: Session) -> None:
+    if not p.modal("Export a still", s.still_prompt):
+        return
+    when = s.editor.scene.epoch.plus_seconds(s.clock.t_s).iso()
+    imgui.text(f"The view in the window at {when}, drawn by the renderer.")
+    imgui.text("File (.png, .jpg or .svg):")
+    entered, s.still_text = p.path_input("still", s.still_text)
+    p.size_input("stillsize", s, "still_size")
+    imgui.same_line()
+    imgui.text_colored(DIM, "empty: the scene's [render] size")
+    p.error_lines(s.still_errors)
+    p.end_dialog(s, "still_prompt", "Export", entered, s.export_still)
+
+
+def job_dialog(p: Panels, s: Session) -> None:
+    if not p.modal("Render the timeline", s.job_prompt):
+        return
+    tl = s.editor.scene.timeline
+    imgui.text(f"{tl.frame_count} frames at {tl.fps:g} frames/s ({tl.duration_s:g} s of show).")
+    imgui.text("Output: a folder ending in / (numbered frames) or a video file .mp4:")
+    entered, s.job_text = p.path_input("job", s.job_text)
+    video = s.job_text.strip().lower().endswith(".mp4")
+    if video:
+        imgui.text("quality:")
+        for q in VIDEO_QUALITIES:
+            imgui.same_line()
+            if imgui.radio_button(f"{q}##quality", s.job_quality == q):
+                s.job_quality = q
+    else:
+        imgui.text("frames as:")
+        for fmt in ("png", "jpg"):
+            imgui.same_line()
+            if imgui.radio_button(f"{fmt}##fmt", s.job_format == fmt):
+                s.job_format = fmt
+    p.size_input("jobsize", s, "job_size")
+    imgui.same_line()
+    imgui.text("frames A:B")
+    imgui.same_line()
+    imgui.set_next_item_width(140)
+    _, s.job_frames = imgui.input_text_with_hint("##jobframes", f"0:{tl.frame_count}",
+                                                 s.job_frames)
+    p.report["rects"]["jobframes"] = _rect()
+    _, s.job_window_camera = imgui.checkbox(
+        "seen as in the window (off: the scene's own camera)", s.job_window_camera)
+    p.error_lines(s.job_errors)
+    p.end_dialog(s, "job_prompt", "Start", entered, s.start_job)
+
+
+def job_progress(p: Panels, s: Session, w: float, h: float) -> None:
+    job = s.job
+    assert job is not None
+    x0, top, fw, fh = scene_area((int(w), int(h)))
+    width = min(620.0, fw - 2 * GAP)
+    imgui.set_next_window_pos(imgui.ImVec2(x0 + 0.5 * (fw - width), top + fh - 112 - GAP),
+                              imgui.Cond_.first_use_ever)
+    imgui.set_next_window_size(imgui.ImVec2(width, 112), imgui.Cond_.first_use_ever)
+    if imgui.begin("Render job", None, imgui.WindowFlags_.no_collapse)[0]:
+        imgui.text_colored(DIM, f"{job.request.out}  ({job.request.size_px[0]}x"
+                           f"{job.request.size_px[1]} px)")
+        text = job.progress_text()
+        p.report["job"] = {"state": job.state, "done": job.done, "total": job.total,
+                              "text": text}
+        imgui.push_text_wrap_pos(0.0)
+        if job.active:
+            imgui.progress_bar(job.fraction, imgui.ImVec2(-90, 0),
+                               f"{100 * job.fraction:.0f} %")
+            imgui.same_line()
+            if p.button("Cancel##job"):
+                job.cancel()
+            imgui.text(text)
+        else:
+            imgui.text_colored(AMBER if job.state != "done" else DIM, text)
+            if p.button("Close##job"):
+                s.job = None
+        imgui.pop_text_wrap_pos()
+    imgui.end()

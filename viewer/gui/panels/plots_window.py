@@ -1,0 +1,80 @@
+"""The "Plots" window: distance and speed over one period, and the third law."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+import numpy as np
+from imgui_bundle import imgui
+
+from ...orbit import AU_M, DAY_S
+from ..plots import orbit_profile, third_law
+from ..session import Session
+from .widgets import (
+    DIM,
+    GAP,
+    scene_area,
+)
+
+if TYPE_CHECKING:
+    from . import Panels
+
+
+def draw(p: Panels, s: Session, w: float, h: float) -> None:
+    from imgui_bundle import implot
+
+    x0, top, fw, fh = scene_area((int(w), int(h)))
+    imgui.set_next_window_pos(imgui.ImVec2(x0 + fw - 520 - GAP, top + GAP),
+                              imgui.Cond_.first_use_ever)
+    imgui.set_next_window_size(imgui.ImVec2(520, min(640.0, fh - 2 * GAP)),
+                               imgui.Cond_.first_use_ever)
+    opened, keep = imgui.begin("Plots", True, imgui.WindowFlags_.no_collapse)
+    if opened:
+        ed = s.editor
+        b = ed.body
+        prof = orbit_profile(b, s.clock.t_s) if b is not None else None
+        half = 0.5 * (imgui.get_content_region_avail().y - 8)
+        if prof is None:
+            imgui.text_colored(DIM, "Distance and speed: select a closed orbit.")
+        elif implot.begin_plot(f"{b.name}: one period##profile",  # type: ignore[union-attr]
+                               imgui.ImVec2(-1, half)):
+            L = ed.scene.length_unit
+            unit, f = (("au", AU_M) if L == "au" and prof.distance_m.max() >= 1e9
+                       else ("km", 1e3))
+            days = (prof.t_s - prof.now_s) / DAY_S
+            implot.setup_axes("days from now", f"distance ({unit})")
+            implot.setup_axis(implot.ImAxis_.y2, "speed (km/s)",
+                              implot.AxisFlags_.aux_default)
+            implot.setup_axes_limits(float(days[0]), float(days[-1]),
+                                     0.0, 1.1 * float(prof.distance_m.max() / f),
+                                     implot.Cond_.always)
+            implot.setup_axis_limits(implot.ImAxis_.y2, 0.0,
+                                     1.1 * float(prof.speed_m_s.max() / 1e3),
+                                     implot.Cond_.always)
+            implot.plot_line("distance", days, prof.distance_m / f)
+            implot.set_axes(implot.ImAxis_.x1, implot.ImAxis_.y2)
+            implot.plot_line("speed", days, prof.speed_m_s / 1e3)
+            implot.set_axes(implot.ImAxis_.x1, implot.ImAxis_.y1)
+            implot.plot_inf_lines("now", np.array([0.0]))
+            implot.end_plot()
+        law = third_law(ed.scene)
+        if len(law.a_m) and implot.begin_plot("Third law: T^2 grows as a^3##law",
+                                              imgui.ImVec2(-1, -1)):
+            implot.setup_axes("semi-major axis a (au)", "period T (d)")
+            implot.setup_axis_scale(implot.ImAxis_.x1, implot.Scale_.log10)
+            implot.setup_axis_scale(implot.ImAxis_.y1, implot.Scale_.log10)
+            implot.setup_axes_limits(float(law.line_a_m[0] / AU_M),
+                                     float(law.line_a_m[-1] / AU_M),
+                                     float(law.line_period_s[0] / DAY_S),
+                                     float(law.line_period_s[-1] / DAY_S),
+                                     implot.Cond_.always)
+            implot.plot_line("T = 2 pi sqrt(a^3/GM): slope 3/2", law.line_a_m / AU_M,
+                             law.line_period_s / DAY_S)
+            implot.plot_scatter("bodies", law.a_m / AU_M, law.period_s / DAY_S)
+            for name, a, T in zip(law.names, law.a_m, law.period_s, strict=True):
+                implot.plot_text(name, float(a / AU_M), float(T / DAY_S),
+                                 imgui.ImVec2(0, -10))
+            implot.end_plot()
+    imgui.end()
+    if keep is False:
+        s.show_plots = False

@@ -1,0 +1,92 @@
+"""The "Time" panel: play, step, rate, the scene date and epoch."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from imgui_bundle import imgui
+
+from ...orbit import DAY_S
+from ...units import parse_quantity
+from ..clock import next_apsis_s
+from ..session import Session
+from .widgets import (
+    DIM,
+    RED,
+)
+
+if TYPE_CHECKING:
+    from . import Panels
+
+
+def draw(p: Panels, s: Session, pos: tuple[float, float], size: tuple[float, float]) -> None:
+    ed, clock = s.editor, s.clock
+    if p.window("Time", pos, size):
+        if p.button("Pause" if clock.playing else "Play", imgui.ImVec2(70, 0)):
+            clock.playing = not clock.playing
+        imgui.same_line()
+        if p.button("<|"):
+            clock.step(-1)
+        imgui.same_line()
+        if p.button("|>"):
+            clock.step(1)
+        imgui.same_line()
+        b = ed.body
+        for which, label in (("periapsis", "next periapsis"), ("apoapsis", "next apoapsis")):
+            imgui.begin_disabled(b is None)
+            if p.button(label) and b is not None:
+                t = next_apsis_s(b, clock.t_s, which)
+                if t is not None:
+                    clock.t_s = t
+            imgui.end_disabled()
+            imgui.same_line()
+        imgui.text("   rate")
+        imgui.same_line()
+        def set_rate(text: str) -> None:
+            clock.rate = parse_quantity(text, "rate", "d/s")
+
+        p.typed_field("rate", _rate_text(clock.rate), set_rate, 130, refusal=False)
+        imgui.same_line()
+        when = ed.scene.epoch.plus_seconds(clock.t_s).iso()
+        imgui.text(f"   {when}   ({clock.t_s / DAY_S:+.3f} d since the scene epoch)")
+        if "rate" in p.errors:
+            p.refusal("rate: " + p.errors["rate"])
+        lo, hi = clock.span(ed.scene)
+        hi = max(hi, lo + DAY_S)
+        imgui.set_next_item_width(-1)
+        changed, days = imgui.slider_float("##scrub", clock.t_s / DAY_S, lo / DAY_S,
+                                           hi / DAY_S, "%.2f d")
+        if changed:
+            clock.t_s = days * DAY_S
+        _epoch(p, s)
+    imgui.end()
+
+
+def _epoch(p: Panels, s: Session) -> None:
+    ed = s.editor
+    imgui.align_text_to_frame_padding()
+    imgui.text("scene epoch (t = 0)")
+    imgui.same_line()
+    p.report["epoch"] = ed.scene.epoch.iso()
+
+    def set_epoch(text: str) -> None:
+        if ed.set_epoch(text):
+            s.message = f"scene epoch set to {ed.scene.epoch.iso()} (Ctrl+Z undoes)"
+
+    p.typed_field("epoch", ed.scene.epoch.iso(), set_epoch, 300, refusal=False)
+    imgui.same_line()
+    if "epoch" in p.errors:
+        imgui.text_colored(RED, "refused: " + p.errors["epoch"])
+        p.report["epoch_error"] = p.errors["epoch"]
+    else:
+        imgui.text_colored(DIM, "ISO date and time with UTC, TT or TDB (TDB when none); "
+                           "Enter sets it. Bodies keep their own epochs.")
+
+
+def _rate_text(rate: float) -> str:
+    """A rate in the largest time unit per second that keeps it readable."""
+    for unit, f in (("yr", 365.25 * DAY_S), ("d", DAY_S), ("h", 3600.0), ("min", 60.0)):
+        if abs(rate) >= f:
+            return f"{rate / f:.6g} {unit}/s"
+    return f"{rate:.6g} s/s"
+
