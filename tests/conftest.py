@@ -22,3 +22,15 @@ def numpy_errors_raise() -> Iterator[None]:
         yield
     finally:
         np.seterr(**previous)
+
+
+@pytest.fixture
+def display(tmp_path):  # type: ignore[no-untyped-def]
+    """A private Xvfb server for one window test (``support.xwindow.Display``)."""
+    from support.xwindow import Display
+
+    d = Display(tmp_path)
+    try:
+        yield d
+    finally:
+        d.close()

@@ -27,6 +27,12 @@ RAD = 1.0
 DEG = math.pi / 180.0
 ARCSEC = math.pi / 648_000.0
 MILLION_KM = 1e9
+MM = 1e-3  # a millimetre
+
+# --- constants of the trade (SI), each with its source ---------------------------------
+AU = 149_597_870_700.0  # IAU 2012 Resolution B2: the astronomical unit, exact by definition
+MU_EARTH = 3.986004418e14  # m^3/s^2, IERS Conventions (2010) / WGS 84: the "earth" preset
+R_EARTH = 6378.137 * KM  # WGS 84 equatorial radius: the "earth" preset's radius
 
 
 @dataclass(frozen=True)
@@ -58,6 +64,8 @@ def printed(*texts: str) -> tuple[Printed, ...]:
 # --- Vallado, Fundamentals of Astrodynamics and Applications, 4th ed., ch. 2 ----------
 #: Earth's GM used throughout Vallado's examples, km^3/s^2 (from memory).
 VALLADO_MU_EARTH_KM3_S2 = 398_600.4418
+VALLADO_MU = VALLADO_MU_EARTH_KM3_S2 * KM**3
+VALLADO_R = 6378.137 * KM  # Vallado's Earth radius (from memory), the WGS 84 value
 
 #: Example 2-1, Kepler's equation (ellipse): M = 235.4 deg, e = 0.4 (from memory).
 VALLADO_2_1 = {"M_deg": 235.4, "e": 0.4, "E_deg": Printed.of("220.512074767522")}
@@ -103,6 +111,8 @@ VALLADO_2_6 = {
 #: Earth's GM and radius as Curtis uses them, km^3/s^2 and km (from memory).
 CURTIS_MU_EARTH_KM3_S2 = 398_600.0
 CURTIS_R_EARTH_KM = 6378.0
+CURTIS_MU = CURTIS_MU_EARTH_KM3_S2 * KM**3
+CURTIS_R = CURTIS_R_EARTH_KM * KM
 
 #: Example 3.1: perigee 9600 km, apogee 21 000 km; time from perigee to nu = 120 deg
 #: (from memory).

@@ -16,15 +16,13 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from reference_values import CONTRACT_BODY, DAY, KM_S, MILLION_KM, NSSDCA, assert_printed
+from reference_values import AU, CONTRACT_BODY, DAY, DEG, KM_S, MILLION_KM, NSSDCA, assert_printed
 
 from viewer.cli import main
 from viewer.orbit import CATALOGUE, Elements, state_from_elements, true_from_mean
 
 ROOT = Path(__file__).resolve().parents[1]
 SCENES = ROOT / "scenes"
-AU = 149_597_870_700.0  # IAU 2012 Resolution B2 (exact)
-DEG = math.pi / 180.0
 
 #: Every key of the cli.md body object, always present.
 BODY_KEYS = {"name", "a_m", "e", "p_m", "i_rad", "raan_rad", "argp_rad", "period_s",

@@ -8,11 +8,9 @@ import subprocess
 import sys
 
 import pytest
+from reference_values import DEG, KM
 
 from viewer.cli import main
-
-KM = 1e3
-DEG = math.pi / 180.0
 
 
 def run_json(capsys: pytest.CaptureFixture[str], *argv: str) -> dict:

@@ -14,6 +14,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from reference_values import DAY, MM
 
 from viewer.gui.editor import Editor, EditRefused
 from viewer.orbit import state_from_elements
@@ -21,8 +22,6 @@ from viewer.scene.loader import load_scene
 from viewer.units import parse_epoch
 
 ROOT = Path(__file__).resolve().parents[1]
-DAY = 86_400.0
-MM = 1e-3  # a millimetre, m
 
 
 def positions_at(scene, t_from_epoch_s: float) -> np.ndarray:  # type: ignore[no-untyped-def]

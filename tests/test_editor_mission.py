@@ -16,6 +16,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from reference_values import CURTIS_MU, CURTIS_R, DEG, HOUR, KM, KM_S, VALLADO_MU, VALLADO_R
 from scipy.integrate import quad, solve_ivp
 
 from viewer.gui.editor import Editor, EditRefused
@@ -37,16 +38,8 @@ from viewer.scene.loader import load_scene
 from viewer.scene.model import Body, Center, Scene
 from viewer.units import parse_epoch
 
-KM = 1e3
-KM_S = 1e3
-HOUR = 3600.0
-DEG = math.pi / 180.0
 # Vallado's Earth (from memory): mu = 398 600.4418 km^3/s^2, R = 6378.137 km.
-VALLADO_MU = 398_600.4418 * KM**3
-VALLADO_R = 6378.137 * KM
 # Curtis's Earth (from memory): mu = 398 600 km^3/s^2, R = 6378 km.
-CURTIS_MU = 398_600.0 * KM**3
-CURTIS_R = 6378.0 * KM
 UNITS = ("km/s", "km", " s", "min", " h", " d", "yr", "deg", "UTC", "TDB")
 
 

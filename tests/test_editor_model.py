@@ -14,6 +14,7 @@ import numpy as np
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+from reference_values import CURTIS_MU, CURTIS_R, HOUR, KM, KM_S, MU_EARTH, R_EARTH
 
 from viewer.errors import UserInputError
 from viewer.gui.editor import Editor, EditRefused
@@ -23,15 +24,8 @@ from viewer.scene.loader import load_scene
 from viewer.scene.model import Body, Center, Scene
 from viewer.units import parse_epoch
 
-KM = 1e3
-KM_S = 1e3
-HOUR = 3600.0
 # Curtis, Orbital Mechanics for Engineering Students: mu and R of the Earth as the book
 # uses them (from memory).
-CURTIS_MU = 398_600.0 * KM**3
-CURTIS_R = 6378.0 * KM
-MU_EARTH = 3.986004418e14  # IERS Conventions (2010), m^3/s^2
-R_EARTH = 6378.137 * KM  # WGS 84 equatorial radius
 
 
 def make_scene(*orbits: tuple[str, Elements], mu: float = CURTIS_MU,

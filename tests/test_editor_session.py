@@ -19,6 +19,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 from PIL import Image
+from reference_values import KM
 
 from viewer.errors import UserInputError
 from viewer.export.encode import image_is_complete
@@ -28,7 +29,6 @@ from viewer.gui.jobs import RenderJob, job_request, still_request
 from viewer.gui.session import Session
 
 ROOT = Path(__file__).resolve().parents[1]
-KM = 1e3
 
 
 def session_on(path: Path) -> Session:

@@ -7,14 +7,13 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from reference_values import AU, KM
 
 from viewer.errors import UserInputError
 from viewer.formats import parse_oem, write_oem
 from viewer.units import parse_epoch
 
 DATA = Path(__file__).parent / "data" / "ccsds"
-KM = 1e3
-AU = 149_597_870_700.0  # IAU 2012 Resolution B2
 
 
 def sample(n: int = 3, scale: float = 7000 * KM) -> tuple[list[str], np.ndarray, np.ndarray]:

@@ -3,11 +3,11 @@ are refused naming the keyword and line, and what we write reads back."""
 
 from __future__ import annotations
 
-import math
 from pathlib import Path
 
 import numpy as np
 import pytest
+from reference_values import DEG, KM, MM
 
 from viewer.errors import UserInputError
 from viewer.formats import parse_opm, write_opm
@@ -15,9 +15,6 @@ from viewer.orbit import elements_from_state, mean_from_true
 from viewer.units import parse_epoch
 
 DATA = Path(__file__).parent / "data" / "ccsds"
-KM = 1e3
-DEG = math.pi / 180.0
-MM = 1e-3
 
 
 def opm(name: str):

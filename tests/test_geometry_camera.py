@@ -6,13 +6,12 @@ import math
 
 import numpy as np
 import pytest
+from reference_values import DEG
 
 from viewer.geometry.camera import look_basis, view_for
 from viewer.orbit import AU_M, DAY_S, state_from_elements
 from viewer.render.samples import elements, plain_scene
 from viewer.scene import Body, Camera
-
-DEG = math.pi / 180.0
 
 
 def _scene(camera: Camera, size=(1920, 1080)):

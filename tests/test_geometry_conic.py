@@ -11,6 +11,7 @@ import math
 
 import numpy as np
 import pytest
+from reference_values import DEG
 
 from viewer.geometry.camera import view_for
 from viewer.geometry.conic import (
@@ -24,8 +25,6 @@ from viewer.geometry.conic import (
 from viewer.orbit import AU_M, Elements, state_from_elements
 from viewer.render.samples import GM_SUN, elements, plain_scene
 from viewer.scene import Body, Camera
-
-DEG = math.pi / 180.0
 
 ORBITS = {
     "ellipse": elements(1.0, 0.6, 20, 30, 40),

@@ -14,6 +14,7 @@ import math
 from pathlib import Path
 
 import pytest
+from reference_values import DEG, KM
 from scipy.integrate import quad
 
 from viewer.cli import main
@@ -33,8 +34,6 @@ from viewer.units.format import format_direction, format_speed, format_time
 
 ROOT = Path(__file__).resolve().parents[1]
 MISSION = ROOT / "scenes" / "earth-mission.toml"
-KM = 1e3
-DEG = math.pi / 180.0
 
 
 def quad_time(el: Elements, nu0: float, nu1: float) -> float:

@@ -7,6 +7,7 @@ import math
 
 import numpy as np
 import pytest
+from reference_values import DEG, HOUR, KM, KM_S, MU_EARTH
 
 from viewer.orbit import Elements, OrbitError, elements_from_state, propagate
 from viewer.orbit.flight import (
@@ -22,12 +23,7 @@ from viewer.orbit.flight import (
     turning_angle,
 )
 
-KM = 1e3
-KM_S = 1e3
-DEG = math.pi / 180.0
-HOUR = 3600.0
 MU_CURTIS = 398_600e9  # Curtis uses mu = 398 600 km^3/s^2 for the Earth
-MU_EARTH = 3.986004418e14  # IERS Conventions (2010)
 
 
 def curtis_3_1_orbit() -> Elements:

@@ -8,6 +8,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from reference_values import KM, MM
 from scipy.integrate import solve_ivp
 
 from viewer.cli import CAUTION, main
@@ -17,8 +18,6 @@ from viewer.scene import load_scene
 from viewer.units import parse_epoch
 
 DATA = Path(__file__).parent / "data" / "ccsds"
-KM = 1e3
-MM = 1e-3
 
 EME2000_EARTH_SCENE = """# My mission scene: these comments must survive an import --into.
 [scene]

@@ -6,15 +6,10 @@ import math
 
 import numpy as np
 import pytest
+from reference_values import HOUR, KM, KM_S, MU_EARTH, R_EARTH
 
 from viewer.orbit import OrbitError, propagate, state_from_elements
 from viewer.orbit.transfer import bi_elliptic, hohmann
-
-KM = 1e3
-KM_S = 1e3
-HOUR = 3600.0
-MU_EARTH = 3.986004418e14  # IERS Conventions (2010), m^3/s^2
-R_EARTH = 6378.137 * KM  # WGS 84 equatorial radius
 
 
 def test_hohmann_leo_to_geo_matches_vallado_example_6_1() -> None:

@@ -9,13 +9,11 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from reference_values import HOUR, KM
 
 from viewer.cli import CAUTION, main
 from viewer.orbit import propagate, state_from_elements
 from viewer.scene import load_scene
-
-KM = 1e3
-HOUR = 3600.0
 
 # Vallado, Fundamentals of Astrodynamics and Applications (4th ed.), Example 6-1 radii
 # (from memory): 191.344 11 km and 35 781.348 57 km altitude above 6378.137 km.

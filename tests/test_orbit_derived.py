@@ -8,7 +8,7 @@ import math
 
 import numpy as np
 import pytest
-from reference_values import CONTRACT_BODY, DEG, KM, RAD, assert_printed
+from reference_values import CONTRACT_BODY, DEG, KM, MU_EARTH, RAD, assert_printed
 
 from viewer.orbit import (
     AU_M,
@@ -20,7 +20,6 @@ from viewer.orbit import (
     state_from_elements,
 )
 
-MU_EARTH = 3.986004418e14  # m^3/s^2, IERS Conventions (2010) / WGS 84
 NU = np.linspace(-1.5, 1.5, 9)  # inside the asymptotes of every hyperbola used here
 
 

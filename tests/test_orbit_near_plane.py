@@ -9,10 +9,9 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+from reference_values import MU_EARTH
 
 from viewer.orbit import elements_from_state, state_from_elements
-
-MU_EARTH = 3.986004418e14  # m^3/s^2, IERS Conventions (2010)
 
 
 @pytest.mark.parametrize("vy_sign", [1.0, -1.0])

@@ -7,12 +7,11 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-from reference_values import DAY, HOUR, KM, M_S, METRE
+from reference_values import DAY, HOUR, KM, M_S, METRE, MU_EARTH
 from scipy.integrate import solve_ivp
 
 from viewer.orbit import Elements, OrbitError, elements_from_state, propagate, state_from_elements
 
-MU_EARTH = 3.986004418e14  # m^3/s^2, IERS Conventions (2010) / WGS 84
 #: Agreement with the integrator, relative to the size of r and v. DOP853 at rtol 1e-12
 #: keeps its own error near 1e-11 over these spans; 1e-9 leaves room for it and none for
 #: a wrong conic, a sign slip or a lost period.

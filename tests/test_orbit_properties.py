@@ -10,7 +10,7 @@ import numpy as np
 import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
-from reference_values import DEG, KM
+from reference_values import DEG, KM, MU_EARTH
 
 from viewer.orbit import (
     Elements,
@@ -21,7 +21,6 @@ from viewer.orbit import (
     swept_area,
 )
 
-MU_EARTH = 3.986004418e14  # m^3/s^2, IERS Conventions (2010) / WGS 84
 #: Round trip state -> elements -> state, relative to |r| and |v|.
 ROUND_TRIP_REL = 1e-9
 FEW = settings(max_examples=60, deadline=None)

@@ -9,13 +9,13 @@ import re
 from pathlib import Path
 
 import pytest
+from reference_values import AU
 
 from viewer.cli import main
 from viewer.scene import load_scene
 
 SCENES = Path(__file__).resolve().parents[1] / "scenes"
 BUNDLED = sorted(SCENES.glob("*.toml"))
-AU = 149_597_870_700.0  # IAU 2012 Resolution B2 (exact)
 
 
 @pytest.mark.parametrize("path", BUNDLED, ids=[p.stem for p in BUNDLED])

@@ -11,17 +11,13 @@ import math
 
 import mpmath
 import pytest
+from reference_values import AU, DAY, DEG, R_EARTH
 
 from viewer.errors import UserInputError
 from viewer.scene import load_scene_text
 
-AU = 149_597_870_700.0  # IAU 2012 Resolution B2 (exact)
-DAY = 86_400.0
-KM = 1e3
-DEG = math.pi / 180.0
 GM_SUN = 1.32712440018e20  # JPL DE value, m^3/s^2 (from memory)
 GM_EARTH = 3.986004418e14  # IERS Conventions (2010) / WGS 84
-R_EARTH = 6_378_137.0  # WGS 84 equatorial radius, m
 
 HEAD = '[center]\ngm = "1.32712440018e20 m3/s2"\n'
 

@@ -8,14 +8,13 @@ from pathlib import Path
 import mpmath
 import numpy as np
 import pytest
+from reference_values import AU, DEG
 
 from viewer.errors import UserInputError
 from viewer.scene import load_scene, load_scene_text
 from viewer.scene.bench import bench_scene, many_bodies_text
 from viewer.scene.population import generate_belt, main, uniform_stream
 
-AU = 149_597_870_700.0  # IAU 2012 Resolution B2 (exact)
-DEG = math.pi / 180.0
 SUN = '[center]\npreset = "sun"\n'
 
 

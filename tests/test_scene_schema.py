@@ -10,8 +10,7 @@ from pathlib import Path
 import jsonschema
 import pytest
 from hypothesis import HealthCheck, given, settings
-from test_check_errors import CASES
-from test_scene_fuzz import _mutated
+from support.broken_scenes import CASES, mutated_scene
 
 from viewer.errors import UserInputError
 from viewer.scene import load_scene, load_scene_text
@@ -97,7 +96,7 @@ def test_the_schema_accepts_a_case_folded_preset_like_the_loader(validator):
 
 @settings(max_examples=300, deadline=None,
           suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture])
-@given(text=_mutated())
+@given(text=mutated_scene())
 def test_a_file_that_loads_is_never_rejected_by_the_schema(text, validator):
     try:
         load_scene_text(text)

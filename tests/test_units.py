@@ -5,11 +5,10 @@ from __future__ import annotations
 import math
 
 import pytest
+from reference_values import AU, DAY
 
 from viewer.units import EpochError, QuantityError, parse_epoch, parse_quantity
 
-AU = 149_597_870_700.0  # IAU 2012 Resolution B2: exact by definition
-DAY = 86_400.0  # IAU: the Julian day, exact
 MICROSECOND = 1e-6
 
 

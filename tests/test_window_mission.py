@@ -11,12 +11,12 @@ from __future__ import annotations
 import math
 import shutil
 import time
-from collections.abc import Iterator
 from pathlib import Path
 
 import numpy as np
 import pytest
-from test_window_open import (
+from reference_values import KM, MU_EARTH
+from support.xwindow import (
     ROOT,
     Display,
     click,
@@ -35,9 +35,6 @@ pytestmark = [
     pytest.mark.skipif(shutil.which("Xvfb") is None, reason="Xvfb is not installed"),
 ]
 
-KM = 1e3
-MU_EARTH = 3.986004418e14  # IERS Conventions (2010), the "earth" preset's GM, m^3/s^2
-R_EARTH = 6378.137 * KM  # the "earth" preset's radius (WGS 84)
 
 TWO_CIRCLES = """\
 [scene]
@@ -62,15 +59,6 @@ M = "150 deg"
 [camera]
 width = "110000 km"
 """
-
-
-@pytest.fixture
-def display(tmp_path: Path) -> Iterator[Display]:
-    d = Display(tmp_path)
-    try:
-        yield d
-    finally:
-        d.close()
 
 
 @pytest.fixture
