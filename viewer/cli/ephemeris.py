@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import argparse
 import datetime as dt
-import re
 import sys
 from typing import Any
 
@@ -32,7 +31,6 @@ epoch for an offset).
 
 #: Most data lines one file may have (a guard against a step typed in the wrong unit).
 MAX_LINES = 1_000_000
-_EPOCH_START = re.compile(r"^\s*\d{4}-\d{2}-\d{2}")
 
 
 def add_parser(sub: Any) -> None:
@@ -59,24 +57,23 @@ def add_parser(sub: Any) -> None:
 
 def time_arg(text: str, flag: str, scene: Any) -> Any:
     """An Epoch from a flag: an ISO epoch (TDB without a suffix) or an offset from the
-    scene epoch (bare numbers in the scene's time unit)."""
-    from ..units import EpochError, QuantityError, parse_epoch, parse_quantity
+    scene epoch (bare numbers in the scene's time unit), by
+    ``viewer.units.forms.parse_scene_time``."""
+    from ..units.forms import (
+        EpochError,
+        QuantityError,
+        is_epoch_text,
+        parse_epoch,
+        parse_scene_time,
+        scene_time_hint,
+    )
 
     try:
-        if _EPOCH_START.match(text):
+        if is_epoch_text(text):  # kept in its own scale, which the messages are written in
             return parse_epoch(text)
-        return scene.epoch.plus_seconds(parse_quantity(_number_or_text(text), "time",
-                                                       scene.time_unit))
+        return scene.epoch.plus_seconds(parse_scene_time(text, scene.epoch, scene.time_unit))
     except (EpochError, QuantityError) as err:
-        raise UserInputError(flag, f"{err}; give an epoch such as \"2030-01-01T00:00:00 UTC\" "
-                             f"or an offset from the scene epoch such as \"90 d\"") from None
-
-
-def _number_or_text(text: str) -> float | str:
-    try:
-        return float(text)
-    except ValueError:
-        return text
+        raise UserInputError(flag, f"{err}; {scene_time_hint()}") from None
 
 
 def _label(epoch: Any, scale: str, flag: str) -> dt.datetime:
@@ -168,7 +165,7 @@ def run(args: argparse.Namespace) -> int:
     start = time_arg(args.start, "--start", scene)
     stop = time_arg(args.stop, "--stop", scene)
     try:
-        step_s = parse_quantity(_number_or_text(args.step), "time", scene.time_unit)
+        step_s = parse_quantity(args.step, "time", scene.time_unit)
     except QuantityError as err:
         raise UserInputError("--step", f"{err}; give a duration such as \"60 s\"") from None
     if not step_s >= 1e-3:

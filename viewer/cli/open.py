@@ -24,13 +24,12 @@ included) as a PNG and exits 0.
 
 
 def _size(text: str) -> tuple[int, int]:
+    from ..units.forms import SizeError, parse_size
+
     try:
-        w, h = (int(x) for x in text.lower().split("x"))
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"{text!r} is not WIDTHxHEIGHT (e.g. 1600x900)") from None
-    if not (320 <= w <= 8192 and 240 <= h <= 8192):
-        raise argparse.ArgumentTypeError(f"{text!r}: allowed 320x240 to 8192x8192")
-    return w, h
+        return parse_size(text, low=(320, 240), high=(8192, 8192))
+    except SizeError as err:
+        raise argparse.ArgumentTypeError(str(err)) from None
 
 
 def _count(text: str) -> int:

@@ -13,7 +13,6 @@ file. GL is imported inside ``run`` only.
 from __future__ import annotations
 
 import argparse
-import re
 from pathlib import Path
 from typing import Any
 
@@ -44,8 +43,6 @@ some viewers; follow your venue's guidance before you show a render.
 
 STILL_SUFFIXES = {".png": "png", ".jpg": "jpg", ".jpeg": "jpg", ".svg": "svg"}
 VIDEO_SUFFIXES = (".mp4",)
-_EPOCH_LIKE = re.compile(r"^\s*[+-]?\d{4}-\d{2}-\d{2}")
-MAX_SIDE_PX = 16384
 
 
 def add_parser(sub: Any) -> None:
@@ -89,37 +86,29 @@ def add_parser(sub: Any) -> None:
 
 
 def parse_size(text: str | None) -> tuple[int, int] | None:
-    """(W, H) from "WxH"; UserInputError (naming --size) for anything else."""
+    """(W, H) from "WxH" (``viewer.units.forms``); UserInputError naming --size."""
     if text is None:
         return None
-    m = re.fullmatch(r"\s*(\d+)\s*[xX\u00d7]\s*(\d+)\s*", text)
-    if not m:
-        raise UserInputError("--size", f"{text!r} is not a size; write WxH, e.g. 1920x1080")
-    w, h = int(m.group(1)), int(m.group(2))
-    if not (1 <= w <= MAX_SIDE_PX and 1 <= h <= MAX_SIDE_PX):
-        raise UserInputError("--size", f"{text!r}: each side must be 1 to {MAX_SIDE_PX} px")
-    return w, h
+    from ..units.forms import SizeError
+    from ..units.forms import parse_size as parse
+
+    try:
+        return parse(text)
+    except SizeError as err:
+        raise UserInputError("--size", str(err)) from None
 
 
 def parse_time(text: str | None, scene: Any) -> float:
-    """Scene time (s) from --at: an offset from the scene epoch, or an epoch.
-
-    Without --at, the timeline start.
-    """
+    """Scene time (s) from --at: an offset from the scene epoch, or an epoch
+    (``viewer.units.forms.parse_scene_time``). Without --at, the timeline start."""
     if text is None:
         return float(scene.timeline.start_s)
-    from ..units import EpochError, QuantityError, parse_epoch, parse_quantity
+    from ..units.forms import EpochError, QuantityError, parse_scene_time, scene_time_hint
 
-    if _EPOCH_LIKE.match(text):
-        try:
-            return parse_epoch(text).seconds_since(scene.epoch)
-        except EpochError as err:
-            raise UserInputError("--at", str(err)) from None
     try:
-        return parse_quantity(text, "time", scene.time_unit or "d")
-    except QuantityError as err:
-        raise UserInputError("--at", f"{err}; or give an epoch such as "
-                             "\"2030-01-01T00:00:00 TDB\"") from None
+        return parse_scene_time(text, scene.epoch, scene.time_unit or "d")
+    except (EpochError, QuantityError) as err:
+        raise UserInputError("--at", f"{err}; {scene_time_hint()}") from None
 
 
 def output_format(path: str, transparent: bool) -> str:

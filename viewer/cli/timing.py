@@ -51,17 +51,9 @@ def _angle(text: str, flag: str) -> float:
     from ..units import QuantityError, parse_quantity
 
     try:
-        return parse_quantity(float(text) if _is_number(text) else text, "angle", "deg")
+        return parse_quantity(text, "angle", "deg")
     except QuantityError as err:
         raise UserInputError(flag, str(err)) from None
-
-
-def _is_number(text: str) -> bool:
-    try:
-        float(text)
-    except ValueError:
-        return False
-    return True
 
 
 #: Mission refusal fields -> the flag that gave the input.
@@ -123,8 +115,7 @@ def run(args: argparse.Namespace) -> int:
     radius = None
     if args.radius is not None:
         try:
-            radius = parse_quantity(float(args.radius) if _is_number(args.radius)
-                                    else args.radius, "length", scene.length_unit)
+            radius = parse_quantity(args.radius, "length", scene.length_unit)
         except QuantityError as err:
             raise UserInputError("--radius", str(err)) from None
     out = answers(scene, args.body, nu, radius)

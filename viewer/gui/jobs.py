@@ -30,13 +30,14 @@ import numpy as np
 
 from ..errors import UserInputError
 from ..scene.model import Camera, Scene
+from ..units import forms
 
 __all__ = ["JobCancelled", "JobRequest", "RenderJob", "StillRequest", "export_still",
            "job_request", "still_request"]
 
 STILL_FORMATS = {".png": "png", ".jpg": "jpg", ".jpeg": "jpg", ".svg": "svg"}
 VIDEO_QUALITIES = ("draft", "preview", "final")
-MAX_SIDE_PX = 16384
+MAX_SIDE_PX = forms.MAX_SIDE_PX
 
 #: Draws one frame: scene time (s) -> RGBA uint8 (H, W, 4), top row first.
 FrameFn = Callable[[float], np.ndarray]
@@ -47,18 +48,14 @@ class JobCancelled(Exception):
 
 
 def parse_size(text: str, default: tuple[int, int]) -> tuple[int, int]:
-    """(W, H) from "WxH" ("" for ``default``); UserInputError otherwise."""
-    t = text.strip().lower().replace("\u00d7", "x")
-    if not t:
+    """(W, H) from "WxH" ("" for ``default``), by ``viewer.units.forms.parse_size``;
+    UserInputError naming the size field otherwise."""
+    if not text.strip():
         return default
     try:
-        w, h = (int(x) for x in t.split("x"))
-    except ValueError:
-        raise UserInputError("size", f"{text!r} is not a size; write WxH, e.g. 1920x1080") \
-            from None
-    if not (1 <= w <= MAX_SIDE_PX and 1 <= h <= MAX_SIDE_PX):
-        raise UserInputError("size", f"{text!r}: each side must be 1 to {MAX_SIDE_PX} px")
-    return w, h
+        return forms.parse_size(text)
+    except forms.SizeError as err:
+        raise UserInputError("size", str(err)) from None
 
 
 def _existing_folder(folder: Path) -> None:

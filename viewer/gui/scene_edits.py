@@ -13,7 +13,6 @@ validates the result with the loader and writes it atomically (through
 from __future__ import annotations
 
 import math
-import re
 import tomllib
 from pathlib import Path
 from typing import Any
@@ -22,18 +21,11 @@ from ..orbit import mean_from_true
 from ..scene import writer
 from ..scene.model import Body, Scene
 from ..scene.save import SaveError, dump_scene, edit_text, save_text
+from ..units.forms import is_epoch_text
 
 Edit = tuple[str, Any]
 _SIZE_KEYS = ("a", "period", "periapsis", "apoapsis")
 _ANOMALY_KEYS = ("M", "nu", "tp")
-#: A time written as a date rather than an offset from the scene epoch.
-_DATE = re.compile(r"^\s*[+-]?\d{4}-\d{2}-\d{2}")
-
-
-def _is_date(value: Any) -> bool:
-    return isinstance(value, str) and _DATE.match(value) is not None
-
-
 def body_table(scene: Scene, body: Body) -> dict[str, Any]:
     """The [[body]] table the scene writer makes for ``body`` (plain values)."""
     return writer.body_table(scene, body)
@@ -50,7 +42,7 @@ def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, An
     ``epoch_moved``: the scene epoch changed, so a sector start written as a date is
     rewritten as the offset the Scene holds.
     """
-    sweep_date = epoch_moved and isinstance(raw.get("sweep"), dict) and _is_date(
+    sweep_date = epoch_moved and isinstance(raw.get("sweep"), dict) and is_epoch_text(
         raw["sweep"].get("start"))
     if new == old and not sweep_date:
         return []
@@ -90,7 +82,7 @@ def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, An
             if "tp" in raw:
                 out.append((f"{path}.tp", None))
             out.append((f"{path}.M", writer.angle(_mean_anomaly(new))))
-    elif epoch_moved and "tp" in raw and not _is_date(raw["tp"]):
+    elif epoch_moved and "tp" in raw and not is_epoch_text(raw["tp"]):
         # tp as an offset counts from the scene epoch, which moved: the same periapsis
         # time, counted from the new epoch.
         tp_s = new.epoch_offset_s - float(el.time_since_periapsis)
@@ -145,7 +137,7 @@ def _epoch_edits(scene: Scene, saved: Scene, data: dict[str, Any]) -> list[Edit]
         return []
     out: list[Edit] = [("scene.epoch", epoch_text(scene.epoch))]
     timeline = data.get("timeline")
-    if isinstance(timeline, dict) and _is_date(timeline.get("start")):
+    if isinstance(timeline, dict) and is_epoch_text(timeline.get("start")):
         out.append(("timeline.start", writer.duration(scene.timeline.start_s)))
     for k, (pop, old) in enumerate(zip(scene.populations, saved.populations, strict=False)):
         if pop.epoch_offset_s != old.epoch_offset_s:

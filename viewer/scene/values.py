@@ -16,13 +16,13 @@ from collections.abc import Iterable
 from typing import Any
 
 from ..units import Epoch, EpochError, QuantityError, parse_epoch, parse_quantity
+from ..units.forms import is_epoch_text
 from .lines import LineIndex
 from .spec import ALIASES, KINDS, Key
 
 RGB = tuple[float, float, float]
 
 _HEX = re.compile(r"^#(?:[0-9a-fA-F]{3}|[0-9a-fA-F]{6})$")
-_EPOCH_START = re.compile(r"^\s*\d{4}-\d{2}-\d{2}")
 _FRAME = re.compile(r"^[A-Za-z][A-Za-z0-9_]{0,31}$")
 
 #: Magnitude limits that keep every later computation finite (documented in the docs).
@@ -268,7 +268,7 @@ class Reader:
             return None
         v = t[key]
         where = f"{path}.{key}"
-        if isinstance(v, str) and _EPOCH_START.match(v):
+        if is_epoch_text(v):
             ep = self.epoch_value(v, where)
             if ep is None or self.epoch is None:
                 return None
