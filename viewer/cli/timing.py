@@ -126,7 +126,8 @@ def run(args: argparse.Namespace) -> int:
     rows = [("body", f"{out['body']} (e = {out['e']:.6g})")]
     if "time_of_flight_s" in out:
         turns = out["full_turns"]
-        rows.append((f"time of flight {math.degrees(nu[0]):.4g} -> {math.degrees(nu[1]):.4g} "
+        nu0, nu1 = out["nu_from_rad"], out["nu_to_rad"]
+        rows.append((f"time of flight {math.degrees(nu0):.4g} -> {math.degrees(nu1):.4g} "
                      "deg", _duration(out["time_of_flight_s"])
                      + (f"  ({turns} full turn{'s' if turns > 1 else ''})" if turns else "")))
     if radius is not None:

@@ -84,7 +84,7 @@ def still_request(path_text: str, size_text: str, scene: Scene) -> StillRequest:
     if fmt is None:
         raise UserInputError(str(path), "a still is written as .png, .jpg or .svg")
     _existing_folder(path.parent if str(path.parent) else Path("."))
-    return StillRequest(path, fmt, parse_size(size_text, tuple(scene.render.size_px)))
+    return StillRequest(path, fmt, parse_size(size_text, scene.render.size_px))
 
 
 def with_camera(scene: Scene, camera: Camera) -> Scene:
@@ -159,7 +159,7 @@ def job_request(out_text: str, size_text: str, frames_text: str, scene: Scene,
         raise UserInputError("format", f"frames are png or jpg, not {fmt!r}")
     if quality not in VIDEO_QUALITIES:
         raise UserInputError("quality", f"video quality is one of {', '.join(VIDEO_QUALITIES)}")
-    size = parse_size(size_text, tuple(scene.render.size_px))
+    size = parse_size(size_text, scene.render.size_px)
     if kind == "video":
         check_video_size(*size)
     frames = parse_frame_range(frames_text.strip() or None, scene.timeline.frame_count)

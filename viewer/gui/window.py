@@ -56,8 +56,8 @@ class ViewerWindow:
 
         self._pyglet = pyglet
         self._imgui = imgui
-        config = pyglet.gl.Config(double_buffer=True, major_version=3, minor_version=3,
-                                  depth_size=0)
+        config = pyglet.gl.Config(double_buffer=True, major_version=3,  # type: ignore[abstract]
+                                  minor_version=3, depth_size=0)
         title = f"Perifocal - {editor.scene.title}"
         try:
             self.window = pyglet.window.Window(size[0], size[1], caption=title,

@@ -119,6 +119,7 @@ def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hoh
         problems.append("both circles have the same radius: there is nothing to transfer")
     if problems:
         raise MissionRefused("transfer", problems)
+    rb = 0.0
     if kind == "bi-elliptic":
         if via_m is None or not (math.isfinite(via_m) and via_m > 0):
             raise MissionRefused("via", "a bi-elliptic transfer needs its intermediate "
@@ -126,10 +127,11 @@ def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hoh
         if via_m < max(r1, r2):
             raise MissionRefused("via", f"the intermediate radius must be at least the larger "
                                  f"circle's, {max(r1, r2) / 1e3:,.3f} km")
+        rb = via_m
     mu = scene.center.gm_m3_s2
     try:
         with np.errstate(over="raise", invalid="raise"):
-            tr = hohmann(r1, r2, mu) if kind == "hohmann" else bi_elliptic(r1, via_m, r2, mu)
+            tr = hohmann(r1, r2, mu) if kind == "hohmann" else bi_elliptic(r1, rb, r2, mu)
     except (OrbitError, FloatingPointError) as err:
         raise MissionRefused("via" if kind == "bi-elliptic" else "transfer", str(err)) from None
 

@@ -37,7 +37,8 @@ def headless_context() -> Any:
     except ImportError as err:  # the wheel is a hard dependency, but say it plainly
         raise GLUnavailable(f"moderngl is not importable: {err}") from err
     try:
-        return moderngl.create_standalone_context(backend="egl", require=GL_VERSION)
+        return moderngl.create_standalone_context(backend="egl",  # type: ignore[arg-type]
+                                                 require=GL_VERSION)
     except Exception as err:  # glcontext raises bare Exceptions for a missing libEGL
         raise GLUnavailable(str(err).splitlines()[0] if str(err) else type(err).__name__) \
             from err

@@ -48,9 +48,9 @@ def draw_bodies(p: Panels, s: Session, pos: tuple[float, float], size: tuple[flo
         if imgui.arrow_button("##down", imgui.Dir.down) and has:
             ed.move((ed.selection or 0) + 1)
         imgui.end_disabled()
-        k = ed.selection
-        if k is not None:
-            p.typed_field(f"{k}:rename", ed.scene.bodies[k].name, ed.rename, -70,
+        sel = ed.selection
+        if sel is not None:
+            p.typed_field(f"{sel}:rename", ed.scene.bodies[sel].name, ed.rename, -70,
                           label="name", rect="rename")
         if imgui.collapsing_header("Central body"):
             _center(p, s)
@@ -63,8 +63,10 @@ def _center(p: Panels, s: Session) -> None:
     rows = (("name", c.name), ("gm", f"{c.gm_m3_s2:.10g} m3/s2"),
             ("radius", f"{c.radius_m / 1e3:.10g} km"))
     for key, value in rows:
-        p.typed_field(f"center:{key}", value,
-                      lambda text, key=key: ed.set_center(**{key: text}), -70, label=key)
+        def commit(text: str, key: str = key) -> None:
+            ed.set_center(**{key: text})
+
+        p.typed_field(f"center:{key}", value, commit, -70, label=key)
 
 
 def draw_marks(p: Panels, s: Session, pos: tuple[float, float], size: tuple[float, float]) -> None:
