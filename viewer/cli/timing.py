@@ -24,6 +24,10 @@ EXAMPLES = """examples:
 Angles are true anomalies in degrees unless a unit is given ("2.1 rad"); radii are from
 the centre of the central body (a bare number is in the scene's length unit). Times are
 counted from the scene epoch, where the body is as the scene places it.
+
+On an ellipse the body goes round: --nu 0 360 is one period, 0 720 two, 90 89.999 nearly
+one. On an open orbit it passes each anomaly once, so --nu 60 -60 is refused (the message
+gives the time from -60 to 60). A circle asked for its own radius is always there.
 """
 
 
