@@ -412,11 +412,12 @@ class Editor:
         sw = body.sweep or _default_sweep(body)
         unit = self.scene.time_unit
         try:
-            changes: dict[str, float | int] = {}
+            changes: dict[str, float | int | bool] = {}
             if interval is not None:
                 changes["interval_s"] = parse_quantity(interval, "time", unit)
                 if not changes["interval_s"] > 0:
                     raise EditRefused("sweep.interval", "the interval must be positive")
+                changes["interval_given"] = True
             if start is not None:
                 changes["start_s"] = parse_quantity(start, "time", unit)
         except QuantityError as err:
@@ -429,7 +430,7 @@ class Editor:
             if not 0.0 <= opacity <= 1.0:
                 raise EditRefused("sweep.opacity", "the opacity must be between 0 and 1")
             changes["opacity"] = float(opacity)
-        new = replace(sw, **changes)  # type: ignore[arg-type]
+        new = _follow_orbit(replace(sw, **changes), body.elements)  # type: ignore[arg-type]
         if new != body.sweep:
             self._replace_body(k, replace(body, sweep=new), f"sectors of {body.name}")
 
@@ -517,10 +518,20 @@ class Editor:
 
 
 def _default_sweep(body: Body) -> Sweep:
+    """Six sectors that tile an ellipse (one period / 6, following the orbit), or 30 d
+    each on an open orbit."""
     el = body.elements
-    interval = float(el.period) / 8.0 if float(el.e) < 1.0 else 30.0 * DAY_S
+    closed = float(el.e) < 1.0
+    interval = float(el.period) / 6.0 if closed else 30.0 * DAY_S
     return Sweep(start_s=0.0, interval_s=interval, count=6, color=(1.0, 0.702, 0.278),
-                 opacity=0.45)
+                 opacity=0.45, interval_given=not closed)
+
+
+def _follow_orbit(sweep: Sweep | None, el: Elements) -> Sweep | None:
+    """A derived interval (one period / count) brought to the orbit's new period."""
+    if sweep is None or sweep.interval_given or float(el.e) >= 1.0:
+        return sweep
+    return replace(sweep, interval_s=float(el.period) / sweep.count)
 
 
 def _with_elements(body: Body, el: Elements, center: Center) -> Body:
@@ -530,7 +541,7 @@ def _with_elements(body: Body, el: Elements, center: Center) -> Body:
         limit = None
     elif limit is None or limit <= float(el.periapsis):
         limit = LIMIT_PERIAPSES * float(el.periapsis)
-    return replace(body, elements=el, limit_radius_m=limit,
+    return replace(body, elements=el, limit_radius_m=limit, sweep=_follow_orbit(body.sweep, el),
                    warnings=tuple(orbit_warnings(el, center)))
 
 

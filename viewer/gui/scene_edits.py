@@ -13,7 +13,9 @@ validates the result with the loader and writes it atomically (through
 from __future__ import annotations
 
 import math
+import re
 import tomllib
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
@@ -69,7 +71,10 @@ def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, An
         for k in (*_SIZE_KEYS, "e"):
             if k in raw and k not in values:
                 out.append((f"{path}.{k}", None))
-        out.extend((f"{path}.{k}", v) for k, v in values.items())
+        # A value that did not change keeps its line as the user wrote it (e = 0, not 0.0).
+        out.extend((f"{path}.{k}", v) for k, v in values.items()
+                   if not (k == "e" and isinstance(raw.get("e"), (int, float))
+                           and float(raw["e"]) == float(v)))
     for k in ("i", "raan", "argp"):
         if getattr(el, k) != getattr(el0, k):
             out.append((f"{path}.{k}", writer.angle(float(getattr(el, k)))))
@@ -156,6 +161,13 @@ def scene_file_edits(scene: Scene, saved: Scene, origins: tuple[int | None, ...]
     edits += _center_edits(scene, saved, data.get("center", {}))
     moved = scene.epoch != saved.epoch
     kept = [o for o in origins if o is not None]
+    if kept == list(range(len(saved.bodies))) and None not in origins:
+        for j, src in enumerate(kept):
+            edits.extend(_body_edits(f"body[{j}]", scene, scene.bodies[j], saved.bodies[src],
+                                     raw_bodies[src], moved))
+        return edits
+    # Bodies were added, removed or moved, and the file's tables could not be moved as
+    # text (``restructure_bodies``): rewrite the tables from the first one out of place.
     gone = sorted(set(range(len(saved.bodies))) - set(kept), reverse=True)
     if gone and not kept:
         # Remove the array itself: an emptied array of tables is written as "body = []"
@@ -181,6 +193,85 @@ def scene_file_edits(scene: Scene, saved: Scene, origins: tuple[int | None, ...]
     return edits
 
 
+_BODY_HEADER = re.compile(r"^\s*\[\[\s*body\s*\]\]\s*(#.*)?$")
+_ANY_HEADER = re.compile(r"^\s*\[")
+
+
+def body_blocks(text: str) -> list[tuple[int, int]] | None:
+    """The line spans [start, end) of each ``[[body]]`` table of ``text``: from the comment
+    lines directly above its header to the start of the next block. None when the body
+    tables are not one run (another table stands between two of them) or the headers
+    cannot be told apart from text inside multi-line strings."""
+    lines = text.splitlines(keepends=True)
+    headers: list[int] = []
+    others: list[int] = []
+    in_string = False
+    for n, line in enumerate(lines):
+        if not in_string and _BODY_HEADER.match(line):
+            headers.append(n)
+        elif not in_string and _ANY_HEADER.match(line):
+            others.append(n)
+        if (line.count('"""') + line.count("'''")) % 2:
+            in_string = not in_string
+    if in_string or not headers:
+        return None
+
+    def block_start(h: int) -> int:
+        while h > 0 and lines[h - 1].lstrip().startswith("#"):
+            h -= 1
+        return h
+
+    starts = [block_start(h) for h in headers]
+    after = [o for o in others if o > headers[-1]]
+    end = block_start(after[0]) if after else len(lines)
+    if any(headers[0] < o < headers[-1] for o in others):
+        return None
+    return list(zip(starts, [*starts[1:], end], strict=True))
+
+
+def _new_body_table(scene: Scene, saved: Scene, raw: list[dict[str, Any]],
+                    body: Body) -> dict[str, Any]:
+    """A new body's table in the file's own style: a copy of the saved table it was
+    duplicated from (its keys as the user wrote them) with the new name and colour, else
+    the scene writer's table."""
+    for k, old in enumerate(saved.bodies):
+        if replace(old, name=body.name, color=body.color, warnings=body.warnings) == body:
+            table = dict(raw[k])
+            table["name"] = body.name
+            if body.color != old.color:
+                table["color"] = writer.color(body.color)
+            return table
+    return writer.body_table(scene, body)
+
+
+def restructure_bodies(scene: Scene, saved: Scene, origins: tuple[int | None, ...],
+                       file_text: str) -> str | None:
+    """``file_text`` with its ``[[body]]`` tables in the order of ``scene``: kept tables
+    moved as text with their comments, removed ones taken out with only their own lines,
+    new ones written where they now stand. Every other line stays as it was. None when
+    the file's body tables are not one run (``body_blocks``)."""
+    raw: list[dict[str, Any]] = tomllib.loads(file_text).get("body", [])
+    blocks = body_blocks(file_text) if raw else None
+    if blocks is None or len(blocks) != len(raw):
+        return None
+    lines = file_text.splitlines(keepends=True)
+    texts = ["".join(lines[a:b]) for a, b in blocks]
+    out: list[str] = []
+    for k, o in enumerate(origins):
+        if o is not None:
+            block = texts[o]
+        else:
+            block = writer.table_text("body", _new_body_table(scene, saved, raw,
+                                                              scene.bodies[k]))
+        if out and not out[-1].endswith("\n\n"):
+            out[-1] = out[-1] + ("" if out[-1].endswith("\n") else "\n") + "\n"
+        out.append(block)
+    tail = "".join(lines[blocks[-1][1]:])
+    if out and tail and not out[-1].endswith("\n\n"):
+        out[-1] += "\n"
+    return "".join(lines[:blocks[0][0]]) + "".join(out) + tail
+
+
 def save_editor_scene(scene: Scene, saved: Scene, origins: tuple[int | None, ...],
                       path: str | Path, file_text: str | None) -> str:
     """Write ``scene`` to ``path`` and return the text written.
@@ -200,6 +291,16 @@ def save_editor_scene(scene: Scene, saved: Scene, origins: tuple[int | None, ...
             raise SaveError(str(p), "the file changed on disk since it was loaded; nothing "
                             "was written (save as another file, or reload)")
         text = file_text
+        moved = restructure_bodies(scene, saved, origins, file_text) \
+            if (None in origins or list(origins) != list(range(len(saved.bodies)))) else None
+        if moved is not None:
+            # The tables are in place now: body k of the text is body k of the scene.
+            text = moved
+            bridged = replace(saved, bodies=tuple(
+                saved.bodies[o] if o is not None else scene.bodies[k]
+                for k, o in enumerate(origins)))
+            origins = tuple(range(len(origins)))
+            saved, file_text = bridged, text
         for key, value in scene_file_edits(scene, saved, origins, file_text):
             text = edit_text(text, {key: value})
     save_text(p, text)

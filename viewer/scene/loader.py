@@ -598,7 +598,7 @@ class _Loader:
         return Sweep(start_s=v["start"] or 0.0, interval_s=interval, count=count,
                      color=v["color"] or b.color,
                      opacity=0.45 if v["opacity"] is None else v["opacity"],
-                     show_area=bool(v["show_area"]))
+                     show_area=bool(v["show_area"]), interval_given=v["interval"] is not None)
 
     # [[population]] ------------------------------------------------------------------
 

@@ -63,6 +63,10 @@ class Sweep:
     color: RGB
     opacity: float
     show_area: bool = False
+    #: Whether the interval was written out; when not, it is one period / count and
+    #: follows every change of the orbit or of the count (an ellipse's sectors then tile
+    #: the whole orbit).
+    interval_given: bool = True
 
     def bounds_s(self) -> list[tuple[float, float]]:
         """Scene-time bounds (t0, t1) of each sector, k = 0..count-1."""

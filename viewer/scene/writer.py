@@ -17,7 +17,8 @@ bodies appended by ``perifocal import`` and ``perifocal transfer``
   a parabola or a hyperbola; where it is, as ``nu`` (true anomaly), which the format
   takes for every conic (scene-format.md, "Orbit elements").
 
-Imports tomlkit lazily (only ``table_text`` needs it).
+Writes text itself (no document model), so the tables it makes look like the ones
+people write.
 """
 
 from __future__ import annotations
@@ -154,12 +155,12 @@ def body_table(scene: Scene, body: Body) -> dict[str, Any]:
 
 
 def sweep_table(scene: Scene, body: Body) -> dict[str, Any]:
-    """The ``sweep`` table of a body; ``interval`` only where it is not the default
-    (one period / count on an ellipse)."""
+    """The ``sweep`` table of a body; ``interval`` only where it was given (otherwise the
+    loader derives one period / count, so it goes on following the orbit)."""
     sw = body.sweep
     assert sw is not None
     out: dict[str, Any] = {"start": duration(sw.start_s)}
-    if not derived_interval(body):
+    if sw.interval_given:
         out["interval"] = duration(sw.interval_s)
     out.update({"count": sw.count, "color": color(sw.color), "opacity": sw.opacity})
     if sw.show_area:
@@ -167,36 +168,34 @@ def sweep_table(scene: Scene, body: Body) -> dict[str, Any]:
     return out
 
 
-def derived_interval(body: Body) -> bool:
-    """Whether the body's sector interval is the default the loader gives, one period /
-    count (so writing none gives back the same interval)."""
-    sw = body.sweep
-    if sw is None or float(body.elements.e) >= 1.0:
-        return False
-    return sw.interval_s == float(body.elements.period) / sw.count
+def value_text(value: Any) -> str:
+    """A plain value as TOML text; inline tables written ``{ key = value, ... }`` as the
+    format's docs and the bundled scenes write them."""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, str):
+        return toml_string(value)
+    if isinstance(value, int):
+        return str(value)
+    if isinstance(value, float):
+        if not math.isfinite(value):
+            raise ValueError("a scene value must be finite")
+        return repr(value)
+    if isinstance(value, Mapping):
+        return "{ " + ", ".join(f"{_key(k)} = {value_text(v)}" for k, v in value.items()) + " }"
+    if isinstance(value, (list, tuple)):
+        return "[" + ", ".join(value_text(v) for v in value) + "]"
+    raise TypeError(f"no TOML text for {type(value).__name__}")
+
+
+def _key(name: str) -> str:
+    return name if name.replace("_", "").replace("-", "").isalnum() else toml_string(name)
 
 
 def table_text(name: str, table: Mapping[str, Any], comments: Iterable[str] = ()) -> str:
     """A ``[[name]]`` table as TOML text (nested tables inline), after comment lines."""
-    import tomlkit
-
-    t = tomlkit.table()
-    for k, v in table.items():
-        t[k] = _inline(v) if isinstance(v, Mapping) else v
-    aot = tomlkit.aot()
-    aot.append(t)
-    doc = tomlkit.document()
-    doc[name] = aot
-    return comment_block(comments) + tomlkit.dumps(doc)
-
-
-def _inline(values: Mapping[str, Any]) -> Any:
-    import tomlkit
-
-    t = tomlkit.inline_table()
-    for k, v in values.items():
-        t[k] = _inline(v) if isinstance(v, Mapping) else v
-    return t
+    lines = [f"[[{name}]]"] + [f"{_key(k)} = {value_text(v)}" for k, v in table.items()]
+    return comment_block(comments) + "\n".join(lines) + "\n"
 
 
 def body_text(scene: Scene, body: Body, comments: Iterable[str] = ()) -> str:

@@ -109,6 +109,11 @@ def _sectors(p: Panels, s: Session) -> None:
         _try_sweep(p, ed, count=count)
     p.typed_field("sweep:interval", format_time(sw.interval_s),
                   lambda text: ed.set_sweep(interval=text), 160, label="interval")
+    p.report["sweep_interval_given"] = sw.interval_given
+    if sw.interval_given:
+        imgui.text_colored(DIM, "interval as written: it stays when the orbit changes")
+    else:
+        imgui.text_colored(DIM, "interval = period / count: it follows the orbit")
     imgui.set_next_item_width(150)
     changed, op = imgui.slider_float("opacity", sw.opacity, 0.0, 1.0, "%.2f")
     if changed:
