@@ -207,13 +207,12 @@ def _describe(scene: Any, dep: Any, arr: Any, tr: Any, t_dep: float,
 
 def _write(args: argparse.Namespace, scene: Any, tr: Any, geometry: dict[str, Any], name: str,
            out: dict[str, Any]) -> None:
+    from ..fileio import claim_output, write_output
     from ..formats.scene_text import body_toml
     from ..orbit import elements_from_state
-    from ..scene import load_scene_text, read_scene_text, write_atomic
+    from ..scene import load_scene_text, read_scene_text
 
-    target = Path(args.output)
-    if target.exists() and not args.force:
-        raise UserInputError(str(target), "the file exists; choose a new name or give --force")
+    target = claim_output(args.output, force=args.force, inputs=[args.scene])
     names = [name] if len(geometry["legs"]) == 1 else [
         f"{name} (leg {k + 1})" for k in range(len(geometry["legs"]))]
     taken = [n for n in names if any(b.name == n for b in scene.bodies)]
@@ -240,7 +239,7 @@ def _write(args: argparse.Namespace, scene: Any, tr: Any, geometry: dict[str, An
                                 show="{ apsides = true }"))
     new_text = text + ("" if text.endswith("\n") else "\n") + "\n" + "\n".join(blocks)
     load_scene_text(new_text, source=target, base_dir=Path(args.scene).parent)
-    write_atomic(target, new_text)
+    write_output(target, new_text.encode("utf-8"))
     out["wrote"] = str(target)
     out["bodies_added"] = names
 
