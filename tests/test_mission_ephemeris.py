@@ -45,7 +45,8 @@ def scene(tmp_path: Path) -> Path:
 
 def ephemeris(scene: Path, capsys: pytest.CaptureFixture[str], *flags: str):
     out = scene.parent / "sat.oem"
-    assert main(["ephemeris", str(scene), "--body", "Sat", *flags, "-o", str(out)]) == 0
+    assert main(["ephemeris", str(scene), "--body", "Sat", *flags, "-o", str(out),
+                 "--force"]) == 0
     assert CAUTION in capsys.readouterr().out
     text = out.read_text()
     return text, parse_oem(text, str(out)).segments[0]

@@ -4,6 +4,14 @@ Write to a temporary file in the same folder, flush and fsync it, then rename it
 target (``os.replace`` is atomic on POSIX within one filesystem), then fsync the folder so
 the rename itself survives a crash. On any failure the temporary file is removed and the
 target is untouched. Imports only the standard library.
+
+Every file we write gets the mode a plain ``open()`` would give it (0666 less the umask);
+a file we replace keeps the mode it had.
+
+The output rule, for every command that writes a file (``claim_output``): an existing
+file is refused unless the user says ``--force``; an input of the command is never its
+output; what is there is not a regular file (a folder, a FIFO) is refused; and a file that
+is replaced keeps its previous version as ``NAME.bak``.
 """
 
 from __future__ import annotations
@@ -12,8 +20,10 @@ import contextlib
 import errno
 import functools
 import os
+import shutil
+import stat
 import tempfile
-from collections.abc import Iterator
+from collections.abc import Iterable, Iterator
 from pathlib import Path
 
 from .errors import UserInputError
@@ -66,8 +76,13 @@ def atomic_path(target: str | os.PathLike[str], suffix: str | None = None) -> It
                                     + ".tmp", dir=folder)
     os.close(fd)
     tmp = Path(tmp_name)
-    # mkstemp makes the file private (0600); give it the mode a plain open() would.
-    os.chmod(tmp, 0o666 & ~_umask())
+    # mkstemp makes the file private (0600): give it the mode a plain open() would, or
+    # the mode of the file it replaces.
+    try:
+        mode = stat.S_IMODE(os.stat(target).st_mode) if target.is_file() else None
+    except OSError:
+        mode = None
+    os.chmod(tmp, 0o666 & ~_umask() if mode is None else mode)
     try:
         yield tmp
         with open(tmp, "rb+") as f:
@@ -90,3 +105,86 @@ def atomic_write_bytes(target: str | os.PathLike[str], data: bytes) -> None:
 def user_write_error(target: str | os.PathLike[str], err: OSError) -> UserInputError:
     """A UserInputError (exit 2) for a write that failed for a reason the user can fix."""
     return UserInputError(str(target), f"cannot write the file: {describe_os_error(err)}")
+
+
+def _same_file(a: Path, b: Path) -> bool:
+    try:
+        return a.resolve() == b.resolve() or (a.exists() and b.exists() and a.samefile(b))
+    except OSError:
+        return False
+
+
+def claim_output(target: str | os.PathLike[str], *, force: bool,
+                 inputs: Iterable[str | os.PathLike[str]] = (), flag: str = "-o") -> Path:
+    """Check ``target`` against the output rule (module docstring) before any work is done.
+
+    When ``target`` exists and ``force`` is given, its present version is kept as NAME.bak
+    now (a hard link, or a copy where links are not possible): the file itself is replaced
+    later, atomically, by the writer, so a failed write still leaves it as it was.
+    Raises UserInputError naming ``flag``.
+    """
+    path = Path(target)
+    for source in inputs:
+        if _same_file(path, Path(source)):
+            raise UserInputError(flag, f"{str(path)!r} is also the input ({source}); the input "
+                                 "is never overwritten: choose another output name")
+    if not path.exists() and not path.is_symlink():
+        return path
+    if not path.is_file():
+        raise UserInputError(flag, f"{str(path)!r} exists and is not a regular file; choose "
+                             "another name")
+    if not force:
+        raise UserInputError(flag, f"{str(path)!r} exists; choose a new name, or give --force "
+                             f"to replace it (the old file is kept as {path.name}.bak)")
+    _keep_backup(path)
+    return path
+
+
+def _keep_backup(path: Path) -> None:
+    """NAME.bak: the present version of ``path``, through a temporary name and one rename."""
+    bak = path.with_name(path.name + ".bak")
+    fd, tmp_name = tempfile.mkstemp(prefix=f".{bak.name}.", suffix=".tmp",
+                                    dir=path.parent if str(path.parent) else ".")
+    os.close(fd)
+    tmp = Path(tmp_name)
+    try:
+        tmp.unlink()
+        try:
+            os.link(path, tmp)
+        except OSError:
+            shutil.copy2(path, tmp)
+        os.replace(tmp, bak)
+    except OSError as err:
+        with contextlib.suppress(OSError):
+            tmp.unlink()
+        raise user_write_error(bak, err) from None
+
+
+def write_output(target: str | os.PathLike[str], data: bytes) -> None:
+    """Write a command's output file atomically; a failure the user can fix is exit 2."""
+    try:
+        atomic_write_bytes(target, data)
+    except OSError as err:
+        raise user_write_error(target, err) from None
+
+
+class NotRegularFileError(OSError):
+    """The path is a folder, FIFO, device or socket: nothing we read or replace."""
+
+
+def read_regular_bytes(path: str | os.PathLike[str], max_bytes: int | None = None) -> bytes:
+    """The bytes of a regular file (at most ``max_bytes + 1`` of them, to see an excess).
+
+    Opened without blocking and checked on the open descriptor, so a FIFO (which would
+    wait for a writer for ever) or a device is refused with NotRegularFileError at once.
+    """
+    fd = os.open(path, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0))
+    try:
+        if not stat.S_ISREG(os.fstat(fd).st_mode):
+            raise NotRegularFileError(errno.EINVAL, "not a regular file (a folder, FIFO, "
+                                      "device or socket)")
+        os.set_blocking(fd, True)
+        with os.fdopen(fd, "rb", closefd=False) as f:
+            return f.read(-1 if max_bytes is None else max_bytes + 1)
+    finally:
+        os.close(fd)

@@ -15,9 +15,11 @@ import importlib
 import sys
 import traceback
 from collections.abc import Sequence
+from typing import Any
 
 from .. import __version__
 from ..errors import UserInputError
+from .options import NEGATIVE_NUMBER
 
 #: Subcommand name -> module in this package. A command is listed only once it works.
 COMMANDS: dict[str, str] = {
@@ -43,6 +45,11 @@ REPORT = (
 
 class _Parser(argparse.ArgumentParser):
     """argparse with a flag error that follows the contract: exit 2, one clear line."""
+
+    def __init__(self, *args: Any, **kwargs: Any) -> None:
+        super().__init__(*args, **kwargs)
+        # "-1e3" and "-1.3356e7" are values, not flags (argparse knows only "-1" and "-.5").
+        self._negative_number_matcher = NEGATIVE_NUMBER
 
     def error(self, message: str) -> None:  # type: ignore[override]
         sys.stderr.write(f"{self.prog}: {message}\n  (see '{self.prog} --help')\n")

@@ -67,9 +67,18 @@ def run(args: argparse.Namespace) -> int:
 
 def render_demo_files(scene_path: Path, out: Path) -> int:
     """The demo's stills (top view, SVG diagram, dome master) and a short video."""
+    from ..errors import UserInputError
+    from ..fileio import describe_os_error
     from . import main
 
-    out.mkdir(parents=True, exist_ok=True)
+    if out.exists() and not out.is_dir():
+        raise UserInputError("--out", f"{str(out)!r} exists and is not a folder; give another "
+                             "folder with --out DIR")
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+    except OSError as err:
+        raise UserInputError("--out", f"cannot make the folder {str(out)!r}: "
+                             f"{describe_os_error(err)} (or give another with --out DIR)") from None
     steps = [
         (["--at", "0 d", "-o", str(out / "demo.png")], "a still of the system"),
         (["--at", "0 d", "-o", str(out / "demo.svg")], "the same still as a vector diagram"),
@@ -80,7 +89,8 @@ def render_demo_files(scene_path: Path, out: Path) -> int:
     ]
     for flags, what in steps:
         sys.stderr.write(f"perifocal demo: {what}\n")
-        code = main(["render", str(scene_path), *flags])
+        # The demo's own files in its own folder are remade on every run (old ones -> .bak).
+        code = main(["render", str(scene_path), "--force", *flags])
         if code != 0:
             return code
     print(f"perifocal demo: wrote demo.png, demo.svg, demo-dome.png and demo.mp4 in {out}/")

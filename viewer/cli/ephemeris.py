@@ -50,6 +50,8 @@ def add_parser(sub: Any) -> None:
     p.add_argument("--stop", required=True, metavar="T", help="last epoch or offset")
     p.add_argument("--step", required=True, metavar="DT", help='time step, e.g. "60 s"')
     p.add_argument("-o", "--output", required=True, metavar="FILE.oem", help="the OEM to write")
+    p.add_argument("--force", action="store_true",
+                   help="replace an existing file (the old one is kept as NAME.bak)")
     p.add_argument("--object-id", metavar="ID",
                    help="OBJECT_ID (e.g. an international designator; default: the name)")
     p.set_defaults(run=run)
@@ -76,16 +78,21 @@ def time_arg(text: str, flag: str, scene: Any) -> Any:
         raise UserInputError(flag, f"{err}; {scene_time_hint()}") from None
 
 
-def _label(epoch: Any, scale: str, flag: str) -> dt.datetime:
-    """The epoch's calendar label in ``scale``, to the millisecond, as a naive datetime."""
+def _label(epoch: Any, scale: str, flag: str) -> tuple[dt.datetime, str | None]:
+    """The epoch's calendar label in ``scale``, to the millisecond, as a naive datetime,
+    and its CCSDS text when it falls in a leap second (second 60, which CCSDS allows in
+    UTC and a datetime cannot hold; the datetime is then second 59 of that minute)."""
     from ..formats.kvn import format_epoch
 
     text = format_epoch(epoch, scale, 3)
+    leap = text[17:19] == "60"
     try:
-        return dt.datetime.strptime(text, "%Y-%m-%dT%H:%M:%S.%f")
+        label = dt.datetime.strptime(text[:17] + "59" + text[19:] if leap else text,
+                                     "%Y-%m-%dT%H:%M:%S.%f")
     except ValueError:
-        raise UserInputError(flag, f"{text} {scale} falls in a leap second or outside years "
-                             f"1-9999; choose another time") from None
+        raise UserInputError(flag, f"{text} {scale} is outside years 1-9999; choose another "
+                             f"time") from None
+    return label, (text if leap else None)
 
 
 def epoch_labels(start: Any, stop: Any, step_s: float, scale: str) -> tuple[list[str], Any]:
@@ -94,11 +101,17 @@ def epoch_labels(start: Any, stop: Any, step_s: float, scale: str) -> tuple[list
     calendar in seconds. Steps are counted on the calendar (no leap seconds in labels)."""
     import numpy as np
 
-    t0 = _label(start, scale, "--start")
-    t1 = _label(stop, scale, "--stop")
-    if t1 < t0:
-        raise UserInputError("--stop", f"stop ({t1.isoformat()} {scale}) is before start "
-                             f"({t0.isoformat()} {scale})")
+    t0, leap0 = _label(start, scale, "--start")
+    t1, leap1 = _label(stop, scale, "--stop")
+    if stop < start:
+        raise UserInputError("--stop", f"stop ({stop.iso(scale, 3)}) is before start "
+                             f"({start.iso(scale, 3)})")
+    if leap0 is not None:
+        if leap1 == leap0:
+            return [leap0], np.zeros(1)
+        # Steps count from the second after the leap second: 23:59:60.5, then 00:01:00.5...
+        t0 += dt.timedelta(seconds=1)
+        t1 = max(t1, t0)
     span_ms = round((t1 - t0).total_seconds() * 1000.0)
     step_ms = step_s * 1000.0
     count = int(np.floor(span_ms / step_ms + 1e-9)) + 1
@@ -106,11 +119,23 @@ def epoch_labels(start: Any, stop: Any, step_s: float, scale: str) -> tuple[list
         raise UserInputError("--step", f"{count:,} lines from start to stop; at most "
                              f"{MAX_LINES:,} per file (use a longer step)")
     offsets = [round(k * step_ms) for k in range(count)]
+    stop_on_grid = offsets[-1] == span_ms
     if offsets[-1] < span_ms:
         offsets.append(span_ms)
     texts = [(t0 + dt.timedelta(milliseconds=ms)).strftime("%Y-%m-%dT%H:%M:%S.%f")[:-3]
              for ms in offsets]
-    return texts, np.array(offsets, dtype=np.float64) / 1000.0
+    calendar_s = [ms / 1000.0 for ms in offsets]
+    if leap0 is not None:
+        texts[0] = leap0  # second 60 lies one second before the calendar's t0
+    if leap1 is not None:
+        # The stop is second 60, a second after t1 (second 59): it is the last line, and
+        # t1 stays only if a step lands on it.
+        if not stop_on_grid:
+            texts.pop()
+            calendar_s.pop()
+        texts.append(leap1)
+        calendar_s.append(span_ms / 1000.0 + 1.0)
+    return texts, np.array(calendar_s, dtype=np.float64)
 
 
 def label_times(texts: list[str], calendar_s: Any, scale: str, epoch0: Any) -> Any:
@@ -147,7 +172,7 @@ def label_times(texts: list[str], calendar_s: Any, scale: str, epoch0: Any) -> A
 
 def run(args: argparse.Namespace) -> int:
 
-    from ..fileio import atomic_write_bytes, user_write_error
+    from ..fileio import claim_output, write_output
     from ..formats import write_oem
     from ..formats.kvn import creation_date_now
     from ..orbit import propagate, state_from_elements
@@ -156,6 +181,7 @@ def run(args: argparse.Namespace) -> int:
     from . import CAUTION
 
     scene = load_scene(args.scene)
+    claim_output(args.output, force=args.force, inputs=[args.scene])
     try:
         body = scene.body(args.body)
     except KeyError:
@@ -189,10 +215,7 @@ def run(args: argparse.Namespace) -> int:
         center_name=scene.center.name.upper(), ref_frame=scene.frame, time_system=scale,
         epoch_texts=labels, r_m=r.reshape(-1, 3), v_m_s=v.reshape(-1, 3),
         creation_date=creation_date_now(), comments=comments)
-    try:
-        atomic_write_bytes(args.output, text.encode("utf-8"))
-    except OSError as err:
-        raise user_write_error(args.output, err) from None
+    write_output(args.output, text.encode("utf-8"))
     sys.stdout.write(f"wrote {args.output}: {len(labels)} states of {body.name!r} from "
                      f"{labels[0]} to {labels[-1]} {scale}, step {step_s:g} s, frame "
                      f"{scene.frame}\n\n{CAUTION}\n")

@@ -46,6 +46,7 @@ def add_parser(sub: Any) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    from ..fileio import claim_output, write_output
     from ..formats import parse_opm
     from ..scene import write_atomic
     from . import CAUTION
@@ -60,12 +61,12 @@ def run(args: argparse.Namespace) -> int:
         target = Path(args.into)
         text, notes, summary = _into(message, src, target, name)
     else:
-        target = Path(args.output)
-        if target.exists() and not args.force:
-            raise UserInputError(str(target), "the file exists; choose a new name, or give "
-                                 "--force to replace it (or --into to add the body to it)")
+        target = claim_output(args.output, force=args.force, inputs=[src])
         text, notes, summary = _new_scene(message, src, target, name)
-    write_atomic(target, text)  # a replaced scene is kept as NAME.toml.bak
+    if args.into is not None:
+        write_atomic(target, text)  # the scene it adds to is kept as NAME.toml.bak
+    else:
+        write_output(target, text.encode("utf-8"))
     verb = "added to" if args.into is not None else "wrote"
     lines = [f"{verb} {target}: body {name!r}", *summary]
     lines += [f"note: {n}" for n in notes]
@@ -74,9 +75,13 @@ def run(args: argparse.Namespace) -> int:
 
 
 def _read(path: str) -> str:
-    p = Path(path)
+    from ..fileio import NotRegularFileError, read_regular_bytes
+
     try:
-        raw = p.read_bytes()
+        raw = read_regular_bytes(path)
+    except NotRegularFileError:
+        raise UserInputError(path, "this is not a regular file (a folder, FIFO, device or "
+                             "socket); give the path of an OPM file") from None
     except FileNotFoundError:
         raise UserInputError(path, "no such file; give the path of an OPM in KVN text") from None
     except IsADirectoryError:

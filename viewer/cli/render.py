@@ -80,6 +80,9 @@ def add_parser(sub: Any) -> None:
     p.add_argument("--supersample", type=int, choices=(1, 2, 3, 4), metavar="N",
                    help="dome/panorama: N x N samples per output pixel (default 2; 1 from "
                    "4096 px up)")
+    p.add_argument("--force", action="store_true",
+                   help="still or video: replace an existing file (the old one is kept as "
+                   "NAME.bak)")
     p.add_argument("--resume", action="store_true",
                    help="sequence: skip frames whose files are already complete")
     p.set_defaults(run=run)
@@ -135,9 +138,13 @@ def write_still(rgba: Any, path: str, fmt: str, transparent: bool, bits: int = 8
 
 
 def output_kind(path: str) -> str:
-    """"sequence" (a folder), "video" (.mp4) or "still" (by suffix); UserInputError otherwise."""
-    if path.endswith(("/", "\\")) or Path(path).is_dir():
+    """"sequence" (a name ending in /), "video" (.mp4) or "still" (by suffix);
+    UserInputError otherwise, also for an existing folder named without its trailing /."""
+    if path.endswith(("/", "\\")):
         return "sequence"
+    if Path(path).is_dir():
+        raise UserInputError("-o", f"{path!r} is a folder; a frame sequence is written to a "
+                             f"name ending in / ({path}/), a still to a .png, .jpg or .svg file")
     suffix = Path(path).suffix.lower()
     if suffix in VIDEO_SUFFIXES:
         return "video"
@@ -183,9 +190,15 @@ def run(args: argparse.Namespace) -> int:
                              "follow the timeline (use --frames A:B)")
     if args.resume and kind != "sequence":
         raise UserInputError("--resume", "--resume applies to a frame sequence (-o frames/)")
+    if args.bits == 16 and fmt != "png":
+        raise UserInputError("--bits", f"16 bits per channel is a PNG option; {fmt.upper()} "
+                             "has 8 (write a .png, or --format png)")
+    from ..fileio import claim_output
     from ..scene import load_scene
 
     scene = load_scene(args.scene)
+    if kind != "sequence":
+        claim_output(args.output, force=args.force, inputs=[args.scene])
     spec = immersive_spec(args, scene, size)
     if spec is not None and fmt == "svg":
         raise UserInputError("-o", "an SVG diagram is a flat view; dome masters and "

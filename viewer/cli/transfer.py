@@ -127,12 +127,11 @@ def _describe(scene: Any, plan: Any) -> dict[str, Any]:
 
 
 def _write(args: argparse.Namespace, scene: Any, plan: Any, out: dict[str, Any]) -> None:
-    from ..scene import load_scene_text, read_scene_text, write_atomic
+    from ..fileio import claim_output, write_output
+    from ..scene import load_scene_text, read_scene_text
     from ..scene.writer import body_text
 
-    target = Path(args.output)
-    if target.exists() and not args.force:
-        raise UserInputError(str(target), "the file exists; choose a new name or give --force")
+    target = claim_output(args.output, force=args.force, inputs=[args.scene])
     text = read_scene_text(args.scene)
     blocks = []
     n = len(plan.legs)
@@ -151,7 +150,7 @@ def _write(args: argparse.Namespace, scene: Any, plan: Any, out: dict[str, Any])
         blocks.append(body_text(scene, leg, comments))
     new_text = text + ("" if text.endswith("\n") else "\n") + "\n" + "\n".join(blocks)
     load_scene_text(new_text, source=target, base_dir=Path(args.scene).parent)
-    write_atomic(target, new_text)
+    write_output(target, new_text.encode("utf-8"))
     out["wrote"] = str(target)
     out["bodies_added"] = list(plan.leg_names)
 

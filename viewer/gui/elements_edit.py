@@ -26,14 +26,9 @@ from dataclasses import dataclass
 from ..errors import UserInputError
 from ..orbit import Elements, asymptote_true_anomaly, mean_from_true, true_from_mean
 from ..units import QuantityError, parse_quantity
+from ..units.limits import MAX_E, MAX_LENGTH_M, MIN_SIZE_M  # the one home of the limits
 
 TWO_PI = 2.0 * math.pi
-#: Lengths beyond this are refused (the scene loader's limit, scene.values.MAX_LENGTH_M).
-MAX_LENGTH_M = 1e21
-#: Radii below this are refused (the scene loader's MIN_SIZE_M).
-MIN_SIZE_M = 1e-3
-#: Eccentricities above this are refused (the scene loader's MAX_E).
-MAX_E = 1000.0
 
 #: What a lock can hold. "period" is a name for "a" (mu is fixed).
 HOLDS = ("auto", "a", "period", "e", "periapsis", "apoapsis")

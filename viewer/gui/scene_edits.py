@@ -138,8 +138,8 @@ def epoch_text(epoch: Any) -> str:
 def _epoch_edits(scene: Scene, saved: Scene, data: dict[str, Any]) -> list[Edit]:
     """The scene epoch, and what depends on it: population epochs, a timeline start
     written as a date (bodies' epochs are body keys)."""
-    if scene.epoch == saved.epoch:
-        return []
+    if scene.epoch == saved.epoch and scene.epoch.scale == saved.epoch.scale:
+        return []  # the same instant, shown in the same scale (Epoch compares instants)
     out: list[Edit] = [("scene.epoch", epoch_text(scene.epoch))]
     timeline = data.get("timeline")
     if isinstance(timeline, dict) and is_epoch_text(timeline.get("start")):

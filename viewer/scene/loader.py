@@ -25,6 +25,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import UserInputError
+from ..fileio import NotRegularFileError, read_regular_bytes
 from ..orbit import CATALOGUE, Elements, true_from_mean
 from ..units import Epoch, parse_epoch
 from . import spec
@@ -45,7 +46,17 @@ from .model import (
 )
 from .population import TableError, generate_belt, read_csv, read_npy, to_elements
 from .report import orbit_warnings
-from .values import MAX_LENGTH_M, MAX_TIME_S, MIN_GM, MIN_SIZE_M, Reader, one_line, parse_color
+from .values import (
+    MAX_E,
+    MAX_LENGTH_M,
+    MAX_TIME_S,
+    MIN_GM,
+    MIN_SIZE_M,
+    Reader,
+    file_in_folder,
+    one_line,
+    parse_color,
+)
 
 #: Scene files larger than this are refused before reading (large populations belong in
 #: a table file, see ``population.table``).
@@ -53,7 +64,6 @@ MAX_FILE_BYTES = 64 * 1024 * 1024
 #: At most this many [[body]] tables in one file.
 MAX_BODIES = 100_000
 #: Eccentricities above this are refused (numbers stay well conditioned below it).
-MAX_E = 1000.0
 #: Open conics are drawn out to this many periapsis radii when limit_radius is not given.
 DEFAULT_LIMIT_PERIAPSES = 5.0
 
@@ -93,8 +103,10 @@ def read_scene_text(path: str | Path) -> str:
                              f"be at most {MAX_FILE_BYTES // 2**20} MiB (put large populations "
                              "in a table file: population.table)")
     try:
-        with open(p, "rb") as fh:
-            raw = fh.read(MAX_FILE_BYTES + 1)
+        raw = read_regular_bytes(p, MAX_FILE_BYTES)
+    except NotRegularFileError:
+        raise UserInputError(src, "this is not a regular file (a FIFO, device or socket); "
+                             "give the path of a .toml scene file") from None
     except OSError as err:
         raise UserInputError(src, f"cannot read the file: {err.strerror}") from None
     if len(raw) > MAX_FILE_BYTES:
@@ -134,12 +146,15 @@ def load_scene_text(text: str, source: str | Path = "<scene>",
     src = str(source)
     try:
         data = tomllib.loads(text)
+        r = Reader(text)
+        title = Path(source).stem if isinstance(source, Path) else "Untitled scene"
+        loaded = _Loader(r, data, Path(base_dir) if base_dir is not None else Path("."), title)
+        scene = loaded.scene(Path(source) if isinstance(source, Path) else None)
     except tomllib.TOMLDecodeError as err:
         raise UserInputError(src, syntax_message(err, text)) from None
-    r = Reader(text)
-    title = Path(source).stem if isinstance(source, Path) else "Untitled scene"
-    loaded = _Loader(r, data, Path(base_dir) if base_dir is not None else Path("."), title)
-    scene = loaded.scene(Path(source) if isinstance(source, Path) else None)
+    except RecursionError:  # [[[[...]]]] or {a={a={...}}} thousands deep
+        raise UserInputError(src, "arrays or inline tables are nested too deeply; a scene "
+                             "nests them a few levels at most") from None
     if r.problems or scene is None:
         raise UserInputError(src, r.problems or ["the scene could not be read"])
     return scene
@@ -658,7 +673,10 @@ class _Loader:
         source = None
         try:
             if table is not None:
-                source = (self.base_dir / table)
+                source, refused = file_in_folder(self.base_dir, table)
+                if source is None:
+                    r.problem(f"{path}.table", str(refused))
+                    return None
                 label = f'{path} ("{name}") {table}'
                 if source.suffix.lower() == ".npy":
                     cols = read_npy(source, label, columns or ("a", "e", "i", "raan", "argp",

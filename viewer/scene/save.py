@@ -367,7 +367,7 @@ def dump_scene(scene: Scene) -> str:
             pt["name"] = pop.name
             src = pop.source
             assert src is not None
-            pt["table"] = str(src)
+            pt["table"] = writer.file_path(scene, src)
             pt["color"] = writer.color(pop.color)
             pt["point_size"] = pop.point_size_px
             if pop.epoch_offset_s:

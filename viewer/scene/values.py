@@ -13,10 +13,23 @@ import json
 import math
 import re
 from collections.abc import Iterable
+from pathlib import Path
 from typing import Any
 
 from ..units import Epoch, EpochError, QuantityError, parse_epoch, parse_quantity
 from ..units.forms import is_epoch_text
+
+# The magnitude limits have one home, shared with the command line and the panels.
+from ..units.limits import (  # noqa: F401  (re-exported for the loader)
+    MAX_E,
+    MAX_GM,
+    MAX_LENGTH_M,
+    MAX_TIME_S,
+    MIN_GM,
+    MIN_SIZE_M,
+    TINY,
+    limit_problem,
+)
 from .lines import LineIndex
 from .spec import ALIASES, KINDS, Key
 
@@ -25,17 +38,29 @@ RGB = tuple[float, float, float]
 _HEX = re.compile(r"^#(?:[0-9a-fA-F]{3}|[0-9a-fA-F]{6})$")
 _FRAME = re.compile(r"^[A-Za-z][A-Za-z0-9_]{0,31}$")
 
-#: Magnitude limits that keep every later computation finite (documented in the docs).
-MAX_LENGTH_M = 1e21
-MIN_SIZE_M = 1e-3
-MAX_TIME_S = 1e16
-MIN_GM, MAX_GM = 1e-20, 1e40
-#: Values smaller than this (in SI) are taken as zero, so no later step underflows.
-TINY = 1e-150
 
-_LIMITS = {"length": MAX_LENGTH_M, "time": MAX_TIME_S, "angle": 1e6, "rate": 1e16,
-           "gm": MAX_GM}
-_SI_UNIT = {"length": "m", "time": "s", "angle": "rad", "rate": "s/s", "gm": "m3/s2"}
+def file_in_folder(folder: Path, name: str) -> tuple[Path | None, str | None]:
+    """The one rule for every key that names a file: (the file, None) or (None, why not).
+
+    Shows are shared as folders, so a scene reads only regular files inside its own folder,
+    after every symlink is resolved: no absolute path, no "..", no link out of the folder,
+    no FIFO or device. The reason never holds any of the file's content.
+    """
+    allowed = "a scene reads only files inside its own folder (a path relative to the scene)"
+    if Path(name).is_absolute():
+        return None, f"{describe(name)} is an absolute path; {allowed}"
+    try:
+        root = folder.resolve()
+        target = (folder / name).resolve()
+    except (OSError, RuntimeError):  # a symlink loop
+        return None, f"{describe(name)} cannot be followed (a symlink loop?); {allowed}"
+    if not target.is_relative_to(root):
+        return None, f"{describe(name)} is outside the scene's folder (after links are followed)" \
+            f"; {allowed}"
+    if target.exists() and not target.is_file():
+        return None, f"{describe(name)} is not a regular file (a folder, FIFO or device); " \
+            f"{allowed}, each a regular file"
+    return target, None
 
 
 def describe(value: Any) -> str:
@@ -236,10 +261,9 @@ class Reader:
         except QuantityError as err:
             self.problem(where, f"{err}")
             return None
-        limit = _LIMITS.get(dimension)
-        if limit is not None and abs(x) > limit:
-            self.problem(where, f"{describe(v)} is too large; allowed up to {_g(limit)} "
-                         f"{_SI_UNIT[dimension]} in size")
+        too_large = limit_problem(x, dimension)
+        if too_large is not None:
+            self.problem(where, f"{describe(v)} {too_large}")
             return None
         return 0.0 if abs(x) < TINY else x
 

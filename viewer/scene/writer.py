@@ -27,6 +27,7 @@ import json
 import math
 from collections.abc import Iterable, Mapping
 from dataclasses import fields
+from pathlib import Path
 from typing import Any
 
 from ..units import Epoch, unit_factor
@@ -107,6 +108,17 @@ def color(rgb: RGB) -> str:
 def epoch(e: Epoch) -> str:
     """An epoch as the file writes it: microseconds, none when they are zero."""
     return e.iso(decimals=6).replace(".000000 ", " ")
+
+
+def file_path(scene: Scene, path: Path) -> str:
+    """A file a key names, relative to the scene's folder (scenes read only files inside
+    their own folder), with forward slashes."""
+    if scene.source is not None and path.is_absolute():
+        try:
+            return path.relative_to(Path(scene.source).resolve().parent).as_posix()
+        except ValueError:
+            pass
+    return path.as_posix()
 
 
 # --- tables -----------------------------------------------------------------------------

@@ -11,6 +11,8 @@ been announced after 2016-12-31 (IERS Bulletin C, from memory), and we take none
 
 from __future__ import annotations
 
+import functools
+import math
 import re
 import warnings
 from dataclasses import dataclass
@@ -23,6 +25,11 @@ _ISO = re.compile(
 )
 
 
+#: UTC dates before this year are refused: the IAU SOFA leap-second table (via pyerfa)
+#: starts on 1960-01-01, before which UTC was not defined (SOFA's iau_DAT notes).
+FIRST_UTC_YEAR = 1960
+
+
 class EpochError(ValueError):
     """Text that is not an ISO 8601 epoch with a known time scale."""
 
@@ -33,13 +40,46 @@ def _erfa():  # imported on first use, so that importing viewer.units stays chea
     return erfa
 
 
-@dataclass(frozen=True, order=True)
+#: Epochs are equal when they fall in the same nanosecond of TDB: far below a microsecond,
+#: and far above the 20 ps rounding of a two-part Julian date.
+_TICKS_PER_DAY = 86_400 * 10**9
+
+
+@functools.total_ordering
+@dataclass(frozen=True, eq=False)
 class Epoch:
-    """An instant as a two-part TDB Julian date (jd1 + jd2 days) and the scale to show it in."""
+    """An instant as a two-part TDB Julian date (jd1 + jd2 days) and the scale to show it in.
+
+    Equality, order and hash are those of the instant, to the nanosecond: the split of the
+    Julian date into two parts and the display scale play no part (``Epoch(2451545.0, 0.5)
+    == Epoch(2451545.5, 0.0, "UTC")``).
+    """
 
     jd1: float
     jd2: float
     scale: str = "TDB"
+
+    def instant(self) -> tuple[int, int] | tuple[float, int]:
+        """(whole TDB Julian day, nanoseconds into it): the key of equality and order."""
+        if not (math.isfinite(self.jd1) and math.isfinite(self.jd2)):
+            return (self.jd1 + self.jd2, 0)
+        d1, d2 = math.floor(self.jd1), math.floor(self.jd2)
+        ticks = round(((self.jd1 - d1) + (self.jd2 - d2)) * _TICKS_PER_DAY)
+        days, ticks = divmod(ticks, _TICKS_PER_DAY)
+        return (int(d1 + d2 + days), int(ticks))
+
+    def __eq__(self, other: object) -> bool:
+        if not isinstance(other, Epoch):
+            return NotImplemented
+        return self.instant() == other.instant()
+
+    def __lt__(self, other: object) -> bool:
+        if not isinstance(other, Epoch):
+            return NotImplemented
+        return self.instant() < other.instant()
+
+    def __hash__(self) -> int:
+        return hash(self.instant())
 
     def seconds_since(self, other: Epoch) -> float:
         """TDB seconds from ``other`` to this epoch (positive if this one is later)."""
@@ -129,6 +169,12 @@ def parse_epoch(text: object) -> Epoch:
     if scale not in SCALES:
         raise EpochError(f"{text!r}: unknown time scale {m.group(7)!r}; allowed: "
                          f"{', '.join(SCALES)}")
+    if scale == "UTC" and y < FIRST_UTC_YEAR:
+        raise EpochError(
+            f"{text!r}: UTC begins in {FIRST_UTC_YEAR} (the leap-second table starts there), "
+            f"so an earlier UTC date cannot be converted; write it in TT or TDB instead, e.g. "
+            f"\"{y:04d}-{mo:02d}-{d:02d}T{h:02d}:{mi:02d}:{int(s):02d} TT\" (converted from "
+            f"the time scale your source uses)")
     erfa = _erfa()
     if not (1 <= mo <= 12 and 1 <= d <= 31 and h <= 23 and mi <= 59 and s < 61.0):
         raise EpochError(f"{text!r}: a field is out of range (month 1-12, day 1-31, "
