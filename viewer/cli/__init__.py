@@ -28,6 +28,7 @@ COMMANDS: dict[str, str] = {
     "convert": "convert",
     "timing": "timing",
     "transfer": "transfer",
+    "lambert": "lambert",
     "import": "import_",
     "ephemeris": "ephemeris",
     "bench": "bench",
