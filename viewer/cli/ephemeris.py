@@ -179,12 +179,18 @@ def run(args: argparse.Namespace) -> int:
     # Seconds of TDB from the body's epoch to each label, as printed.
     dts = label_times(labels, calendar_s, scale,
                       scene.epoch.plus_seconds(body.epoch_offset_s))
-    mu = scene.center.gm_m3_s2
-    r0, v0 = state_from_elements(body.elements, mu)
-    r, v = propagate(r0, v0, mu, dts)
+    if body.track is not None:  # positions from the ephemeris itself
+        r, v = body.track.state(dts + body.epoch_offset_s, "--start/--stop")
+        how = (f"positions from {body.track.source} ({body.track.target} relative to "
+               f"{body.track.centre}, TDB), not a two-body conic.")
+    else:
+        mu = float(body.elements.mu)
+        r0, v0 = state_from_elements(body.elements, mu)
+        r, v = propagate(r0, v0, mu, dts)
+        how = f"two-body Keplerian motion about {scene.center.name} (GM = {mu / 1e9:.12g} km3/s2)."
     comments = [
         f"Made by Perifocal from the scene {args.scene}, body {body.name!r}:",
-        f"two-body Keplerian motion about {scene.center.name} (GM = {mu / 1e9:.12g} km3/s2).",
+        how,
         CAUTION,
     ]
     text = write_oem(

@@ -365,14 +365,21 @@ def dump_scene(scene: Scene) -> str:
         t = tomlkit.table()
         t["name"] = b.name
         e = float(el.e)
-        if e == 1.0:
+        if b.track is not None:  # the orbit comes from the ephemeris
+            t["ephemeris"] = b.track.source
+            if b.name.strip().lower() != b.track.target:
+                t["ephemeris_body"] = b.track.target
+        elif e == 1.0:
             t["periapsis"] = _q(float(el.periapsis), lu, lf)
         else:
             t["a"] = _q(float(el.a), lu, lf)
-        t["e"] = e
-        for key in ("i", "raan", "argp", "nu"):
-            t[key] = f"{float(getattr(el, key)) / deg!r} deg"
-        if b.epoch_offset_s:
+        if b.track is None:
+            t["e"] = e
+            for key in ("i", "raan", "argp", "nu"):
+                t[key] = f"{float(getattr(el, key)) / deg!r} deg"
+            if b.gm_m3_s2:
+                t["gm"] = f"{b.gm_m3_s2!r} m3/s2"
+        if b.epoch_offset_s and b.track is None:
             t["epoch"] = scene.epoch.plus_seconds(b.epoch_offset_s).iso(decimals=6)
         if b.limit_radius_m is not None:
             t["limit_radius"] = _q(b.limit_radius_m, lu, lf)
