@@ -29,6 +29,7 @@ COMMANDS: dict[str, str] = {
     "timing": "timing",
     "transfer": "transfer",
     "lambert": "lambert",
+    "porkchop": "porkchop",
     "import": "import_",
     "ephemeris": "ephemeris",
     "bench": "bench",

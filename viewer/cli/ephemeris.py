@@ -57,6 +57,16 @@ def add_parser(sub: Any) -> None:
     p.set_defaults(run=run)
 
 
+def body_by_name(scene: Any, name: str, flag: str) -> Any:
+    """The scene's body called ``name``, or UserInputError naming ``flag`` and the bodies."""
+    try:
+        return scene.body(name)
+    except KeyError:
+        names = ", ".join(repr(b.name) for b in scene.bodies) or "none"
+        raise UserInputError(flag, f"the scene has no body named {name!r}; its bodies: "
+                             f"{names}") from None
+
+
 def time_arg(text: str, flag: str, scene: Any) -> Any:
     """An Epoch from a flag: an ISO epoch (TDB without a suffix) or an offset from the
     scene epoch (bare numbers in the scene's time unit)."""
@@ -159,12 +169,7 @@ def run(args: argparse.Namespace) -> int:
     from . import CAUTION
 
     scene = load_scene(args.scene)
-    try:
-        body = scene.body(args.body)
-    except KeyError:
-        names = ", ".join(repr(b.name) for b in scene.bodies) or "none"
-        raise UserInputError("--body", f"the scene has no body named {args.body!r}; its bodies: "
-                             f"{names}") from None
+    body = body_by_name(scene, args.body, "--body")
     start = time_arg(args.start, "--start", scene)
     stop = time_arg(args.stop, "--stop", scene)
     try:

@@ -64,12 +64,9 @@ def add_parser(sub: Any) -> None:
 
 
 def _body(scene: Any, name: str, flag: str) -> Any:
-    try:
-        return scene.body(name)
-    except KeyError:
-        names = ", ".join(repr(b.name) for b in scene.bodies) or "none"
-        raise UserInputError(flag, f"the scene has no body named {name!r}; its bodies: "
-                             f"{names}") from None
+    from .ephemeris import body_by_name
+
+    return body_by_name(scene, name, flag)
 
 
 def _circle_problems(body: Any, flag: str) -> list[str]:
