@@ -150,7 +150,7 @@ class Track:
         e = self.epoch_jd[0] + self.epoch_jd[1]
         return ((SPAN_JD[0] - e) * 86400.0, (SPAN_JD[1] - e) * 86400.0)
 
-    def state(self, t_s: Any, what: str = "time") -> tuple[np.ndarray, np.ndarray]:
+    def state(self, t_s: Any, what: str = "the scene time") -> tuple[np.ndarray, np.ndarray]:
         """Position (m) and velocity (m/s) relative to the centre in the scene's frame at
         scene times ``t_s`` (shape (...,) -> (..., 3))."""
         t = np.asarray(t_s, dtype=np.float64)

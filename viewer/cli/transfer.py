@@ -26,6 +26,13 @@ one plane (normals within 0.5 deg). The transfer starts where the --from body is
 (default: the scene epoch), in its plane and direction of motion. The phase angle is how
 far the --to body must lead at departure for it to be at the meeting point on arrival;
 "next window" is the first departure time from --at with that phase.
+
+Between two bodies that follow an ephemeris (the planets of scenes/solar-system.toml)
+the transfer is the textbook estimate: circles of radius a (the osculating a at --at)
+in the departure body's plane, whatever their real e and inclination (a warning says
+so), and the next window is found from their real positions:
+    perifocal transfer scenes/solar-system.toml --from Earth --to Mars --at 2026-01-01
+For transfers between their real positions on real dates, use perifocal porkchop.
 """
 
 #: Largest eccentricity treated as circular, and the largest angle between orbit planes.
@@ -96,6 +103,12 @@ def run(args: argparse.Namespace) -> int:
     arr = _body(scene, args.to_body, "--to")
     if dep.name == arr.name:
         raise UserInputError("--to", "--from and --to name the same body")
+    at = time_arg(args.at, "--at", scene) if args.at is not None else scene.epoch
+    t_dep = at.seconds_since(scene.epoch)
+    # Bodies that follow an ephemeris: their osculating conics at the departure time.
+    real = dep.track is not None and arr.track is not None
+    if real:
+        dep, arr = dep.osculating(t_dep), arr.osculating(t_dep)
     problems = _circle_problems(dep, "--from") + _circle_problems(arr, "--to")
     w1, w2 = _normal(dep.elements), _normal(arr.elements)
     plane = math.acos(float(np.clip(np.dot(w1, w2), -1.0, 1.0)))
@@ -103,12 +116,20 @@ def run(args: argparse.Namespace) -> int:
         problems.append(f"the orbits are not coplanar: their planes are {math.degrees(plane):.4g}"
                         f" deg apart (at most {math.degrees(MAX_PLANE_RAD):g} deg; a plane "
                         f"change is not part of this transfer)")
+    approximations = []
+    if real and problems:  # real planets: the textbook estimate between mean circles
+        approximations = [f"{dep.name} and {arr.name} follow {dep.track.source}: treated as "
+                          f"circles of radius a (osculating at departure) in {dep.name}'s plane "
+                          f"(their e are {float(dep.elements.e):.3g} and "
+                          f"{float(arr.elements.e):.3g}, their planes "
+                          f"{math.degrees(plane):.3g} deg apart); the window is found from "
+                          f"their real positions. For transfers on real dates see perifocal "
+                          f"porkchop (Lambert)"]
+        problems = []
     if problems:
         raise UserInputError(args.scene, problems)
     mu = scene.center.gm_m3_s2
     r1, r2 = float(dep.elements.a), float(arr.elements.a)
-    at = time_arg(args.at, "--at", scene) if args.at is not None else scene.epoch
-    t_dep = at.seconds_since(scene.epoch)
     try:
         if args.via is None:
             tr = hohmann(r1, r2, mu)
@@ -121,7 +142,12 @@ def run(args: argparse.Namespace) -> int:
     except OrbitError as err:
         raise UserInputError("--via" if args.via else args.scene, str(err)) from None
     geometry = _geometry(scene, dep, arr, tr, t_dep)
+    if real:
+        geometry["wait_s"] = _real_wait(dep, arr, geometry, t_dep)
     out = _describe(scene, dep, arr, tr, t_dep, geometry)
+    out["warnings"] = approximations + out["warnings"]
+    if out["next_window_s"] is not None:
+        out["next_window_epoch"] = scene.epoch.plus_seconds(out["next_window_s"]).iso(decimals=3)
     name = args.name or f"{dep.name} to {arr.name}"
     if args.output is not None:
         _write(args, scene, tr, geometry, name, out)
@@ -163,6 +189,37 @@ def _geometry(scene: Any, dep: Any, arr: Any, tr: Any, t_dep: float) -> dict[str
         wait = ((need - phase_now) / rel) % (2.0 * math.pi / abs(rel))
     return {"legs": legs, "phase_now": phase_now % (2 * math.pi), "phase_need": need,
             "wait_s": wait, "synodic_s": 2 * math.pi / abs(rel) if rel else None}
+
+
+def _real_wait(dep: Any, arr: Any, geometry: dict[str, Any], t_dep: float) -> float | None:
+    """Seconds from t_dep to the first time the target's real lead over the departure
+    body (angle about the departure plane's normal, from the ephemeris) is the phase angle
+    the transfer needs; searched a day at a time over 1.5 synodic periods, then
+    interpolated. None if it never is (or the search would leave the ephemeris' span)."""
+    import numpy as np
+
+    synodic = geometry["synodic_s"]
+    if synodic is None:
+        return None
+    lo, hi = dep.track.span_s()
+    stop = min(t_dep + 1.5 * synodic, hi)
+    t = np.arange(t_dep, stop, 86400.0)
+    if t.size < 2:
+        return None
+    w = _normal(dep.elements)
+    r1, _ = dep.track.state(t)
+    r2, _ = arr.track.state(t)
+    lead = np.arctan2(np.einsum("ij,j->i", np.cross(r1, r2), w), np.einsum("ij,ij->i", r1, r2))
+    miss = np.angle(np.exp(1j * (lead - geometry["phase_need"])))  # wrapped to (-pi, pi]
+    cross = np.flatnonzero((np.sign(miss[:-1]) != np.sign(miss[1:]))
+                           & (np.abs(miss[:-1]) < 1.0) & (np.abs(miss[1:]) < 1.0))
+    if miss[0] == 0.0:
+        return 0.0
+    if cross.size == 0:
+        return None
+    k = int(cross[0])
+    frac = miss[k] / (miss[k] - miss[k + 1])
+    return float(t[k] + frac * (t[k + 1] - t[k]) - t_dep)
 
 
 def _describe(scene: Any, dep: Any, arr: Any, tr: Any, t_dep: float,
@@ -268,8 +325,9 @@ def _table(d: dict[str, Any]) -> str:
               f"(target ahead of the departure point)"),
              ("phase angle at departure", f"{math.degrees(d['phase_angle_now_rad']):.4f} deg"),
              ("next window", "-" if d["next_window_s"] is None else
-              f"scene time {d['next_window_s']:.3f} s (synodic period "
-              f"{hours(d['synodic_period_s'])})")]
+              f"scene time {d['next_window_s']:.3f} s"
+              + (f", {d['next_window_epoch']}" if "next_window_epoch" in d else "")
+              + f" (synodic period {hours(d['synodic_period_s'])})")]
     if "wrote" in d:
         rows.append(("wrote", f"{d['wrote']} (added {', '.join(d['bodies_added'])})"))
     rows += [("warning", w) for w in d["warnings"]]

@@ -49,7 +49,7 @@ class Grid:
         return divmod(k, values.shape[1])  # type: ignore[return-value]
 
 
-def body_states(body: Any, t_s: np.ndarray, what: str = "time"
+def body_states(body: Any, t_s: np.ndarray, what: str = "the scene time"
                 ) -> tuple[np.ndarray, np.ndarray]:
     """Position (m) and velocity (m/s) of a scene body at scene times ``t_s`` (N,): from its
     ephemeris when it follows one (``what`` names the times in a span error), else its
