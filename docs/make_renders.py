@@ -7,7 +7,9 @@ any change to the renderer or the scenes:
 Each still is the scene at its timeline start through its own camera, at 1600x900
 (labels and lines scale with the height), drawn headlessly by the same renderer as the
 viewer. Two more show other ways of looking at the demo: a perspective view from low
-over the reference plane, and an edge-on view.
+over the reference plane, and an edge-on view. ``solar-system.png`` is the real sky on
+2026-01-01 (every planet from DE421). ``porkchop-earth-mars-2026.png`` and ``.svg`` are
+the 2026 Earth-Mars season, made by ``perifocal porkchop`` on the bundled solar system.
 """
 
 from __future__ import annotations
@@ -58,7 +60,29 @@ def main(argv: list[str]) -> int:
                 target = OUT / f"{out_name}.png"
                 atomic_write_bytes(target, png_bytes(rgba))
                 print(f"wrote {target.relative_to(OUT.parent.parent)}")
+    if not wanted or "porkchop" in wanted:
+        _porkchop(_scenes()["solar-system"])
     return 0
+
+
+def _porkchop(scene_path: Path) -> None:
+    """The 2026 Earth-Mars pork-chop plot (PNG and SVG; the CSV grid is not kept)."""
+    import shutil
+    import tempfile
+
+    from viewer.cli import main as perifocal
+
+    with tempfile.TemporaryDirectory() as tmp:
+        prefix = Path(tmp) / "porkchop"
+        code = perifocal(["porkchop", str(scene_path), "--from", "Earth", "--to", "Mars",
+                          "--depart", "2026-09-01", "2027-01-31", "--arrive", "2027-05-01",
+                          "2028-03-01", "-o", str(prefix)])
+        if code != 0:
+            raise SystemExit(code)
+        for ext in ("png", "svg"):
+            target = OUT / f"porkchop-earth-mars-2026.{ext}"
+            shutil.copyfile(f"{prefix}.{ext}", target)
+            print(f"wrote {target.relative_to(OUT.parent.parent)}")
 
 
 if __name__ == "__main__":

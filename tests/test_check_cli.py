@@ -122,7 +122,7 @@ def test_vis_viva_through_check_matches_the_fact_sheet_speeds(tmp_path, capsys):
 
 
 def test_standish_scene_agrees_with_the_fact_sheet(capsys):
-    out = check_json(SCENES / "solar-system.toml", capsys)
+    out = check_json(SCENES / "solar-system-mean.toml", capsys)
     by_name = {b["name"].split("-")[0].split()[0].lower(): b for b in out["bodies"]}
     for name, row in NSSDCA.items():
         b = by_name[name]

@@ -35,9 +35,9 @@ _TABLE_ROW = re.compile(r"^#.*?a ([\d.]+)\s+e ([\d.]+)\s+I ([-\d.]+)\s+L ([-\d.]
 
 
 def test_solar_system_elements_are_the_table_converted_to_argp_and_m():
-    text = (SCENES / "solar-system.toml").read_text()
+    text = (SCENES / "solar-system-mean.toml").read_text()
     rows = _TABLE_ROW.findall(text)
-    scene = load_scene(SCENES / "solar-system.toml")
+    scene = load_scene(SCENES / "solar-system-mean.toml")
     assert len(rows) == len(scene.bodies) == 9
     for row, body in zip(rows, scene.bodies, strict=True):
         a, e, inc, L, varpi, node = map(float, row)
@@ -59,7 +59,7 @@ def test_earth_is_near_perihelion_at_j2000():
     # The Sun's mean anomaly at J2000 is 357.529 deg (Astronomical Almanac low-precision
     # solar formula, g = 357.529 + 0.98560028 d, from memory), and Earth's distance from
     # the Sun on 2000 January 1 is about 0.9833 au (Astronomical Almanac, from memory).
-    scene = load_scene(SCENES / "solar-system.toml")
+    scene = load_scene(SCENES / "solar-system-mean.toml")
     earth = scene.body("Earth-Moon barycentre").elements
     # 0.005 deg: the formula prints three decimals, and it is the Sun's mean anomaly seen
     # from Earth, not the Earth-Moon barycentre's of a fitted 1800-2050 table.

@@ -30,6 +30,8 @@ COMMANDS: dict[str, str] = {
     "convert": "convert",
     "timing": "timing",
     "transfer": "transfer",
+    "lambert": "lambert",
+    "porkchop": "porkchop",
     "import": "import_",
     "ephemeris": "ephemeris",
     "bench": "bench",

@@ -11,6 +11,7 @@ from typing import Any
 #: Part name -> "module:function" returning a dict with "rows" (label, value, unit, note).
 PARTS: dict[str, str] = {
     "kepler": "viewer.orbit.bench:bench_kepler",
+    "porkchop": "viewer.mission.bench:bench_porkchop",
     "scene": "viewer.scene.bench:bench_scene",
     "render": "viewer.render.bench:bench_all",
     "export": "viewer.export.bench:bench_export",
@@ -20,6 +21,7 @@ PARTS: dict[str, str] = {
 EXAMPLES = """examples:
   perifocal bench            # every part
   perifocal bench kepler     # 1e6 Kepler solves beside scipy.optimize.newton
+  perifocal bench porkchop   # a 200 x 200 Earth-Mars grid beside a per-cell scipy loop
   perifocal bench scene      # loading 1,000 bodies and 100,000-row populations
   perifocal bench render     # demo frame beside matplotlib; 100k bodies; memory
   perifocal bench export     # PNG sequence beside matplotlib, MP4 rate, 4K dome master

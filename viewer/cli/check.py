@@ -117,6 +117,11 @@ def format_summary(s: dict[str, Any], source: str) -> str:
         ]
         if b["v_inf_m_s"] is not None:
             rows.append(("v_inf", _speed(b["v_inf_m_s"])))
+        eph = b.get("ephemeris")
+        if eph is not None:
+            rows.insert(0, ("follows", f"{eph['source']} ({eph['target']} from "
+                            f"{eph['centre']}), {eph['span']}; the numbers below are the "
+                            f"osculating conic at the scene epoch"))
         out.append(f"{b['name']}  ({b['kind']})")
         out += [f"  {label:<20} {value}" for label, value in rows]
         out.append("")

@@ -57,6 +57,16 @@ def add_parser(sub: Any) -> None:
     p.set_defaults(run=run)
 
 
+def body_by_name(scene: Any, name: str, flag: str) -> Any:
+    """The scene's body called ``name``, or UserInputError naming ``flag`` and the bodies."""
+    try:
+        return scene.body(name)
+    except KeyError:
+        names = ", ".join(repr(b.name) for b in scene.bodies) or "none"
+        raise UserInputError(flag, f"the scene has no body named {name!r}; its bodies: "
+                             f"{names}") from None
+
+
 def time_arg(text: str, flag: str, scene: Any) -> Any:
     """An Epoch from a flag: an ISO epoch (TDB without a suffix) or an offset from the
     scene epoch (bare numbers in the scene's time unit), by
@@ -182,12 +192,7 @@ def run(args: argparse.Namespace) -> int:
 
     scene = load_scene(args.scene)
     claim_output(args.output, force=args.force, inputs=[args.scene])
-    try:
-        body = scene.body(args.body)
-    except KeyError:
-        names = ", ".join(repr(b.name) for b in scene.bodies) or "none"
-        raise UserInputError("--body", f"the scene has no body named {args.body!r}; its bodies: "
-                             f"{names}") from None
+    body = body_by_name(scene, args.body, "--body")
     start = time_arg(args.start, "--start", scene)
     stop = time_arg(args.stop, "--stop", scene)
     try:
@@ -202,12 +207,18 @@ def run(args: argparse.Namespace) -> int:
     # Seconds of TDB from the body's epoch to each label, as printed.
     dts = label_times(labels, calendar_s, scale,
                       scene.epoch.plus_seconds(body.epoch_offset_s))
-    mu = scene.center.gm_m3_s2
-    r0, v0 = state_from_elements(body.elements, mu)
-    r, v = propagate(r0, v0, mu, dts)
+    if body.track is not None:  # positions from the ephemeris itself
+        r, v = body.track.state(dts + body.epoch_offset_s, "--start/--stop")
+        how = (f"positions from {body.track.source} ({body.track.target} relative to "
+               f"{body.track.centre}, TDB), not a two-body conic.")
+    else:
+        mu = float(body.elements.mu)
+        r0, v0 = state_from_elements(body.elements, mu)
+        r, v = propagate(r0, v0, mu, dts)
+        how = f"two-body Keplerian motion about {scene.center.name} (GM = {mu / 1e9:.12g} km3/s2)."
     comments = [
         f"Made by Perifocal from the scene {args.scene}, body {body.name!r}:",
-        f"two-body Keplerian motion about {scene.center.name} (GM = {mu / 1e9:.12g} km3/s2).",
+        how,
         CAUTION,
     ]
     text = write_oem(

@@ -25,6 +25,13 @@ one plane (normals within 0.5 deg). The transfer starts where the --from body is
 (default: the scene epoch), in its plane and direction of motion. The phase angle is how
 far the --to body must lead at departure for it to be at the meeting point on arrival;
 "next window" is the first departure time from --at with that phase.
+
+Between two bodies that follow an ephemeris (the planets of scenes/solar-system.toml)
+the transfer is the textbook estimate: circles of radius a (the osculating a at --at)
+in the departure body's plane, whatever their real e and inclination (a warning says
+so), and the next window is found from their real positions:
+    perifocal transfer scenes/solar-system.toml --from Earth --to Mars --at 2026-01-01
+For transfers between their real positions on real dates, use perifocal porkchop.
 """
 
 def add_parser(sub: Any) -> None:
@@ -87,6 +94,8 @@ def run(args: argparse.Namespace) -> int:
     except MissionRefused as err:
         raise UserInputError(FLAGS.get(err.field, args.scene), err.problems) from None
     out = _describe(scene, plan)
+    if out["next_window_s"] is not None:
+        out["next_window_epoch"] = scene.epoch.plus_seconds(out["next_window_s"]).iso(decimals=3)
     if args.output is not None:
         _write(args, scene, plan, out)
     if args.json:
@@ -183,8 +192,9 @@ def _table(d: dict[str, Any]) -> str:
               f"(target ahead of the departure point)"),
              ("phase angle at departure", format_direction(d['phase_angle_now_rad'])),
              ("next window", "-" if d["next_window_s"] is None else
-              f"scene time {d['next_window_s']:.3f} s (synodic period "
-              f"{hours(d['synodic_period_s'])})")]
+              f"scene time {d['next_window_s']:.3f} s"
+              + (f", {d['next_window_epoch']}" if "next_window_epoch" in d else "")
+              + f" (synodic period {hours(d['synodic_period_s'])})")]
     if "wrote" in d:
         rows.append(("wrote", f"{d['wrote']} (added {', '.join(d['bodies_added'])})"))
     rows += [("warning", w) for w in d["warnings"]]

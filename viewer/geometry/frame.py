@@ -257,8 +257,10 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     (per-body constants, and everything but the bodies' positions while the scene and
     the view stay the same). Both are deterministic: the result is the same with or
     without them. ``overlay`` is text fixed on the picture (captions, the clock: see
-    viewer.scene.timeline.overlay_at), placed before every other label.
+    viewer.scene.timeline.overlay_at), placed before every other label. A body that
+    follows an ephemeris is drawn on its osculating conic at ``t_s``.
     """
+    scene = scene.osculating(t_s)
     w, h = view.size_px
     hs = view.style_scale
     bg = scene.render.background

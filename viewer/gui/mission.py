@@ -91,7 +91,8 @@ def transfer_rows(plan: TransferPlan, scene: Scene
         "phasing": (("phase angle needed", f"{format_direction(plan.phase_needed_rad)} "
                                            "(target ahead)"),
                     ("phase angle now", format_direction(plan.phase_now_rad)),
-                    ("next window", f"in {format_time(plan.next_window_s - plan.departure_s, 5)}"),
+                    ("next window", "none found" if plan.next_window_s is None else
+                     f"in {format_time(plan.next_window_s - plan.departure_s, 5)}"),
                     ("  then every", format_time(plan.synodic_s, 5))),
         "legs": tuple(legs),
     }

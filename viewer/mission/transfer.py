@@ -65,8 +65,9 @@ class TransferPlan:
     phase_needed_rad: float
     phase_now_rad: float
     #: Scene time of the first departure at or after ``departure_s`` with the needed
-    #: phase, and the synodic period between such chances (s).
-    next_window_s: float
+    #: phase (None when bodies that follow an ephemeris never reach it in the search),
+    #: and the synodic period between such chances (s).
+    next_window_s: float | None
     synodic_s: float
     warnings: tuple[str, ...]
 
@@ -106,6 +107,10 @@ def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hoh
         raise MissionRefused("to", "the departure and arrival bodies are the same; choose two "
                              "different bodies")
     dep, arr = scene.bodies[from_index], scene.bodies[to_index]
+    # Bodies that follow an ephemeris: their osculating conics at the departure time.
+    real = dep.track is not None and arr.track is not None
+    if real:
+        dep, arr = dep.osculating(departure_s), arr.osculating(departure_s)
     problems = _circle_problem(dep, "from") + _circle_problem(arr, "to")
     tilt = math.acos(float(np.clip(np.dot(_normal(dep.elements), _normal(arr.elements)),
                                    -1.0, 1.0)))
@@ -114,6 +119,15 @@ def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hoh
                         f"{math.degrees(tilt):.4g} deg apart (at most "
                         f"{math.degrees(MAX_PLANE_RAD):g} deg; a plane change is not part of "
                         f"this transfer)")
+    notes: tuple[str, ...] = ()
+    if real and problems:  # real planets: the textbook estimate between mean circles
+        assert dep.track is not None
+        notes = (f"{dep.name} and {arr.name} follow {dep.track.source}: treated as circles "
+                 f"of radius a (osculating at departure) in {dep.name}'s plane (their e are "
+                 f"{float(dep.elements.e):.3g} and {float(arr.elements.e):.3g}, their planes "
+                 f"{math.degrees(tilt):.3g} deg apart); the window is found from their real "
+                 f"positions. For transfers on real dates see perifocal porkchop (Lambert)",)
+        problems = []
     r1, r2 = float(dep.elements.a), float(arr.elements.a)
     if math.isclose(r1, r2, rel_tol=1e-9):
         problems.append("both circles have the same radius: there is nothing to transfer")
@@ -159,17 +173,45 @@ def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hoh
     n_dep, n_tgt = math.sqrt(mu / r1**3), math.sqrt(mu / r2**3)
     synodic = TWO_PI / abs(n_tgt - n_dep)
     # The lead changes at n_tgt - n_dep; the wait until it is the needed one, mod synodic.
-    wait = ((float(tr.phase_angle_rad) - lead) / (n_tgt - n_dep)) % synodic
+    wait: float | None = ((float(tr.phase_angle_rad) - lead) / (n_tgt - n_dep)) % synodic
+    if real:
+        wait = _real_wait(dep, arr, w, float(tr.phase_angle_rad), synodic, departure_s)
 
     c = scene.center
-    warnings = tuple(f"leg {k + 1}: {line}" for k, b in enumerate(legs)
-                     for line in conic_warnings(b.elements, c.radius_m, c.atmosphere_m,
-                                                c.soi_radius_m))
+    warnings = notes + tuple(f"leg {k + 1}: {line}" for k, b in enumerate(legs)
+                             for line in conic_warnings(b.elements, c.radius_m, c.atmosphere_m,
+                                                        c.soi_radius_m))
     return TransferPlan(kind=kind, from_name=dep.name, to_name=arr.name,
                         departure_s=departure_s, transfer=tr, legs=tuple(legs),
                         phase_needed_rad=float(tr.phase_angle_rad), phase_now_rad=lead,
-                        next_window_s=departure_s + wait, synodic_s=synodic,
-                        warnings=warnings)
+                        next_window_s=None if wait is None else departure_s + wait,
+                        synodic_s=synodic, warnings=warnings)
+
+
+def _real_wait(dep: Body, arr: Body, w: np.ndarray, need_rad: float, synodic_s: float,
+               t_dep: float) -> float | None:
+    """Seconds from t_dep to the first time the target's real lead over the departure
+    body (angle about the departure plane's normal, from the ephemeris) is the phase angle
+    the transfer needs; searched a day at a time over 1.5 synodic periods, then
+    interpolated. None if it never is (or the search would leave the ephemeris' span)."""
+    assert dep.track is not None and arr.track is not None
+    _, hi = dep.track.span_s()
+    t = np.arange(t_dep, min(t_dep + 1.5 * synodic_s, hi), 86400.0)
+    if t.size < 2:
+        return None
+    r1, _ = dep.track.state(t)
+    r2, _ = arr.track.state(t)
+    lead = np.arctan2(np.einsum("ij,j->i", np.cross(r1, r2), w), np.einsum("ij,ij->i", r1, r2))
+    miss = np.angle(np.exp(1j * (lead - need_rad)))  # wrapped to (-pi, pi]
+    if miss[0] == 0.0:
+        return 0.0
+    cross = np.flatnonzero((np.sign(miss[:-1]) != np.sign(miss[1:]))
+                           & (np.abs(miss[:-1]) < 1.0) & (np.abs(miss[1:]) < 1.0))
+    if cross.size == 0:
+        return None
+    k = int(cross[0])
+    frac = miss[k] / (miss[k] - miss[k + 1])
+    return float(t[k] + frac * (t[k + 1] - t[k]) - t_dep)
 
 
 def check_leg_names(scene: Scene, plan: TransferPlan) -> None:

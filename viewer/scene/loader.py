@@ -219,6 +219,8 @@ class _RawBody:
     flags: dict[str, bool | None]
     sweep: dict[str, Any] | None
     limit: float | None
+    gm: float = 0.0
+    track: Any = None
 
 
 class _Loader:
@@ -229,6 +231,9 @@ class _Loader:
         self.default_title = title
         self.warnings: list[str] = []
         self.body_names: list[str] = []
+        self.frame = "ECLIPJ2000"
+        self.center: Center | None = None
+        self.kernel: Any = None
 
     def scene(self, source: Path | None) -> Scene | None:
         r = self.r
@@ -240,6 +245,7 @@ class _Loader:
         s = r.table(self.data, spec.SCENE, "")
         title, frame, epoch = self._scene_table(s or {})
         r.epoch = epoch
+        self.frame = frame
         center = self._center()
         bodies = self._bodies(center)
         populations = self._populations(center)
@@ -348,6 +354,7 @@ class _Loader:
                       "(put large populations in a table file: [[population]])")
             return None
         mu = center.gm_m3_s2 if center is not None else None
+        self.center = center
         parsed: list[_RawBody] = []
         names: dict[str, int] = {}
         for k, t in enumerate(raw):
@@ -386,7 +393,17 @@ class _Loader:
                           "names must be unique (the camera and the editor find bodies by name)")
             names.setdefault(name, k)
             self.body_names.append(name)
-        size = self._size(t, path, mu)
+        gm_body = r.quantity(t, "gm", path, "gm")
+        if gm_body is not None and not gm_body >= 0.0:
+            r.problem(f"{path}.gm", "gm must be zero or positive")
+        follows = "ephemeris" in t or "ephemeris_body" in t
+        track = self._track(t, path, name) if follows else None
+        size: tuple[float, float, float | None] | None = None
+        if track is not None:
+            gm_body = track[1] if gm_body is None else gm_body
+            size = (float(track[2].a), float(track[2].e), None)
+        elif not follows:
+            size = self._size(t, path, None if mu is None else mu + (gm_body or 0.0))
         i = r.quantity(t, "i", path, "angle")
         if i is not None and not -1e-12 <= i <= math.pi * (1 + 1e-12):
             r.problem(f"{path}.i", f"i = {math.degrees(i):.6g} deg is out of range; allowed: 0 to "
@@ -424,6 +441,9 @@ class _Loader:
         a, e, parabola_p = size
         nu_value: float | None = None
         M_value: float | None = None
+        if track is not None:  # the osculating conic at the scene epoch
+            osc = track[2]
+            i, raan, argp, nu = float(osc.i), float(osc.raan), float(osc.argp), float(osc.nu)
         if nu is not None:
             nu_value = nu
             if e >= 1.0:
@@ -450,7 +470,62 @@ class _Loader:
                 M_value = M_value % TWO_PI
         return _RawBody(k, name or "", a, e, parabola_p, max(0.0, min(i or 0.0, math.pi)),
                         (raan or 0.0) % TWO_PI, (argp or 0.0) % TWO_PI, M_value, nu_value, offset,
-                        t, path, color, line_width, radius, flags, sweep, limit)
+                        t, path, color, line_width, radius, flags, sweep, limit,
+                        gm_body or 0.0, None if track is None else track[0])
+
+    def _track(self, t: dict[str, Any], path: str, name: str | None) -> Any:
+        """(Track, GM of the body, osculating Elements at the scene epoch) of a body that
+        follows an ephemeris, or None with the problems recorded."""
+        from ..ephemeris import (
+            ECLIPTIC_FRAMES,
+            EPHEMERIDES,
+            EQUATORIAL_FRAMES,
+            TARGETS,
+            Kernel,
+            Track,
+            frame_rotation,
+        )
+
+        r = self.r
+        m0 = r.mark()
+        source = r.choice(t, "ephemeris", path, EPHEMERIDES) or "DE421"
+        target = r.choice(t, "ephemeris_body", path, TARGETS, fold_case=True)
+        if target is None and "ephemeris_body" not in t and name is not None:
+            target = name.strip().lower()
+            if target not in TARGETS:
+                r.problem(f"{path}.ephemeris_body", f"{source.upper()} has no body named "
+                          f"{name!r}; give ephemeris_body = one of {', '.join(TARGETS)}")
+        orbit_keys = [k for k in (*spec.SIZE_KEYS, "e", "i", "raan", "argp",
+                                  *spec.ANOMALY_KEYS, "epoch") if k in t]
+        if orbit_keys:
+            r.problem(f"{path}.{orbit_keys[0]}", f"{', '.join(orbit_keys)}: a body that follows "
+                      "an ephemeris takes its orbit from it; remove these keys")
+        center = self.center
+        if center is None:
+            return None
+        if center.preset not in TARGETS:
+            r.problem(path, f"a body that follows {source.upper()} needs a [center] preset "
+                      f"the ephemeris has (preset = one of {', '.join(p for p in CATALOGUE)})")
+        elif target == center.preset:
+            r.problem(f"{path}.ephemeris_body", f"{target!r} is the centre itself")
+        if frame_rotation(self.frame) is None:
+            r.problem("scene.frame", f"frame {self.frame!r}: a body that follows "
+                      f"{source.upper()} needs frame = one of "
+                      f"{', '.join(EQUATORIAL_FRAMES + ECLIPTIC_FRAMES)}")
+        if r.failed_since(m0) or target is None or r.epoch is None:
+            return None
+        if self.kernel is None:
+            self.kernel = Kernel(source)
+        gm_body = self.kernel.gm_m3_s2(target)
+        track = Track(kernel=self.kernel, target=target, centre=str(center.preset),
+                      frame=self.frame.upper(), epoch_jd=(r.epoch.jd1, r.epoch.jd2),
+                      mu=center.gm_m3_s2 + gm_body)
+        try:
+            osc = track.elements_at(0.0)
+        except UserInputError as err:
+            r.problem("scene.epoch", f"{err.problems[0]} (body {name!r} follows it)")
+            return None
+        return track, gm_body, osc
 
     def _size(self, t: dict[str, Any], path: str,
               mu: float | None) -> tuple[float, float, float | None] | None:
@@ -545,7 +620,7 @@ class _Loader:
         r = self.r
         assert b.nu is not None
         el = Elements(a=b.a, e=b.e, i=b.i, raan=b.raan, argp=b.argp, nu=b.nu,
-                      mu=center.gm_m3_s2, parabola_p=b.parabola_p)
+                      mu=center.gm_m3_s2 + b.gm, parabola_p=b.parabola_p)
         warnings = orbit_warnings(el, center)
         sweep = self._sweep(b, el)
         defaults = BodyShow()
@@ -576,7 +651,7 @@ class _Loader:
         return Body(name=b.name, elements=el, epoch_offset_s=b.epoch_offset_s, color=b.color,
                     line_width_px=2.0 if b.line_width is None else b.line_width, show=show,
                     sweep=sweep, limit_radius_m=limit, radius_m=b.radius,
-                    warnings=tuple(warnings))
+                    warnings=tuple(warnings), gm_m3_s2=b.gm, track=b.track)
 
     def _sweep_values(self, t: dict[str, Any], path: str) -> dict[str, Any] | None:
         """The sweep table's own values (None if absent or wrong); defaults come later."""

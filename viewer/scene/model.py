@@ -13,6 +13,7 @@ from typing import Any
 
 import numpy as np
 
+from ..ephemeris import Track
 from ..orbit import Elements
 from ..units import Epoch
 
@@ -97,10 +98,25 @@ class Body:
     warnings: tuple[str, ...] = ()
     #: Opacity of each mark at the frame being drawn (set per frame from the show's fades).
     fade: MarkOpacity = field(default_factory=MarkOpacity)
+    #: The body's own GM (m^3/s^2); its two-body motion uses GM_centre + this.
+    gm_m3_s2: float = 0.0
+    #: Set when the body follows an ephemeris: its position at any time comes from there,
+    #: and ``elements`` is the osculating conic at the scene epoch.
+    track: Track | None = None
 
     def elements_at(self, t_s: float) -> Elements:
-        """The body's elements (its true anomaly) at scene time t_s."""
+        """The body's elements (its true anomaly) at scene time t_s; for a body that
+        follows an ephemeris, the osculating conic there."""
+        if self.track is not None:
+            return self.track.elements_at(t_s)
         return self.elements.after(t_s - self.epoch_offset_s)
+
+    def osculating(self, t_s: float) -> Body:
+        """This body with ``elements`` the osculating conic at scene time t_s (itself when
+        it does not follow an ephemeris)."""
+        if self.track is None:
+            return self
+        return replace(self, elements=self.track.elements_at(t_s), epoch_offset_s=t_s)
 
 
 @dataclass(frozen=True)
@@ -263,6 +279,13 @@ class Scene:
             if b.name == name:
                 return b
         raise KeyError(name)
+
+    def osculating(self, t_s: float) -> Scene:
+        """A copy whose ephemeris bodies hold their osculating conics at scene time t_s
+        (the scene itself when none follows an ephemeris): what a frame at t_s draws."""
+        if all(b.track is None for b in self.bodies):
+            return self
+        return replace(self, bodies=tuple(b.osculating(t_s) for b in self.bodies))
 
     def with_body(self, index: int, body: Body) -> Scene:
         """A copy with body ``index`` replaced."""

@@ -81,8 +81,21 @@ def body_summary(body: Body, center: Center) -> dict[str, Any]:
         "specific_energy_j_kg": float(el.energy) + 0.0,  # + 0.0 turns -0.0 into 0.0
         "h_m2_s": float(el.h),
         "v_inf_m_s": float(el.v_infinity) if e > 1.0 else None,
+        "gm_m3_s2": body.gm_m3_s2,
+        "ephemeris": _ephemeris_summary(body),
         "warnings": list(body.warnings),
     }
+
+
+def _ephemeris_summary(body: Body) -> dict[str, Any] | None:
+    """Which ephemeris a body follows and over what span (None if it follows none)."""
+    from ..ephemeris import SPAN_TEXT
+
+    if body.track is None:
+        return None
+    return {"source": body.track.source, "target": body.track.target,
+            "centre": body.track.centre, "frame": body.track.frame, "span": SPAN_TEXT,
+            "elements": "osculating at the scene epoch"}
 
 
 def scene_summary(scene: Scene) -> dict[str, Any]:

@@ -47,6 +47,10 @@ def _not_both(*pairs: tuple[str, str]) -> list[dict[str, Any]]:
     return [{"not": {"required": list(p)}} for p in pairs]
 
 
+#: Keys a body that follows an ephemeris may not have (its orbit comes from there).
+_ORBIT_KEYS = ("a", "period", "periapsis", "apoapsis", "e", "i", "raan", "argp", "M", "nu",
+               "tp", "epoch")
+
 #: Required keys and keys that exclude each other, per table (as the loader checks them).
 _RULES: dict[str, dict[str, Any]] = {
     "": {"required": ["center"]},
@@ -56,8 +60,11 @@ _RULES: dict[str, dict[str, Any]] = {
     },
     "body": {
         "required": ["name"],
-        "anyOf": [{"required": ["a"]}, {"required": ["period"]}, {"required": ["periapsis"]}],
-        "allOf": _not_both(("a", "period"), ("a", "periapsis"), ("a", "apoapsis"),
+        "anyOf": [{"required": ["a"]}, {"required": ["period"]}, {"required": ["periapsis"]},
+                  {"required": ["ephemeris"]}, {"required": ["ephemeris_body"]}],
+        "allOf": _not_both(*(("ephemeris", k) for k in _ORBIT_KEYS),
+                           *(("ephemeris_body", k) for k in _ORBIT_KEYS), ("a", "period"),
+                           ("a", "periapsis"), ("a", "apoapsis"),
                            ("period", "periapsis"), ("period", "apoapsis"), ("M", "nu"),
                            ("M", "tp"), ("nu", "tp"))
         + [{"not": {"required": ["periapsis", "apoapsis", "e"]}}],

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from ..ephemeris import EPHEMERIDES, TARGETS
 from ..orbit.constants import CATALOGUE
 from .marks import MARKS
 from .marks import NAMES as MARK_NAMES
@@ -145,6 +146,12 @@ BODY = Key("body", "tables", "one orbiting body per [[body]] table", keys=(
     Key("radius", "length", "the body's own radius (for its marker when zoomed in)", "none"),
     Key("color", "color", "colour of every mark of the body", "from a palette"),
     Key("line_width", "number", "line width in pixels at 1080 px image height", "2"),
+    Key("gm", "gm", "the body's own GM: its two-body motion uses GM_centre + gm",
+        "0, or the ephemeris' value for a body that follows one"),
+    Key("ephemeris", "choice", "the body follows this ephemeris (then it has no orbit keys)",
+        "none", EPHEMERIDES),
+    Key("ephemeris_body", "choice", "which body of the ephemeris it is",
+        "the body's name in lower case", TARGETS),
     SHOW,
     SWEEP,
 ))

@@ -141,16 +141,22 @@ def body_table(scene: Scene, body: Body) -> dict[str, Any]:
     el = body.elements
     e = float(el.e)
     t: dict[str, Any] = {"name": body.name}
-    if e < 1.0:
-        t["a"] = length(float(el.a), lu)
-        t["e"] = e
+    if body.track is not None:  # the orbit comes from the ephemeris
+        t["ephemeris"] = body.track.source
+        if body.name.strip().lower() != body.track.target:
+            t["ephemeris_body"] = body.track.target
     else:
-        t["periapsis"] = length(float(el.periapsis), lu)
+        if e < 1.0:
+            t["a"] = length(float(el.a), lu)
+        else:
+            t["periapsis"] = length(float(el.periapsis), lu)
         t["e"] = e
-    for key in ("i", "raan", "argp", "nu"):
-        t[key] = angle(float(getattr(el, key)))
-    if body.epoch_offset_s:
-        t["epoch"] = epoch(scene.epoch.plus_seconds(body.epoch_offset_s))
+        for key in ("i", "raan", "argp", "nu"):
+            t[key] = angle(float(getattr(el, key)))
+        if body.gm_m3_s2:
+            t["gm"] = gm(body.gm_m3_s2)
+        if body.epoch_offset_s:
+            t["epoch"] = epoch(scene.epoch.plus_seconds(body.epoch_offset_s))
     if body.limit_radius_m is not None and e >= 1.0:
         t["limit_radius"] = length(body.limit_radius_m, lu)
     if body.radius_m is not None:

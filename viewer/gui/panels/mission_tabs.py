@@ -150,7 +150,7 @@ def transfer(p: Panels, s: Session) -> None:
         names = ", ".join(ed.scene.bodies[i].name for i in idx)
         s.message = f"added {names} (Ctrl+Z undoes)"
     imgui.same_line()
-    if p.button("Jump to the next departure window"):
+    if p.button("Jump to the next departure window") and plan.next_window_s is not None:
         s.clock.t_s = plan.next_window_s
     imgui.separator_text("Phasing with the target")
     p.table("tr-phasing", rows["phasing"], 150)
