@@ -15,9 +15,9 @@ from pathlib import Path
 
 import pytest
 
+from viewer import fileio as writer_module  # the one atomic writer, used by scene saves
 from viewer.errors import UserInputError
 from viewer.scene import dump_scene, edit_text, load_scene, load_scene_text, save_edits
-from viewer.scene import save as save_module
 from viewer.scene.save import SaveError, write_atomic
 
 DATA = Path(__file__).parent / "data" / "scenes"
@@ -125,7 +125,7 @@ def test_a_file_changed_on_disk_since_loading_is_not_overwritten(scene_file):
 def test_a_read_only_file_is_refused(scene_file, monkeypatch):
     before = scene_file.read_bytes()
     # os.access stands in for a read-only file (root could write through a chmod 444)
-    monkeypatch.setattr(save_module.os, "access", lambda path, mode: False)
+    monkeypatch.setattr(writer_module.os, "access", lambda path, mode: False)
     with pytest.raises(SaveError, match="read-only"):
         save_edits(scene_file, {"body[0].e": 0.3})
     assert scene_file.read_bytes() == before
@@ -164,7 +164,7 @@ class Boom(OSError):
 
 
 def _fail_on_call(monkeypatch, name: str, call: int) -> None:
-    """Make ``os.<name>`` raise on its ``call``-th use inside viewer.scene.save."""
+    """Make ``os.<name>`` raise on its ``call``-th use inside the atomic writer."""
     real = getattr(os, name)
     count = {"n": 0}
 
@@ -174,13 +174,13 @@ def _fail_on_call(monkeypatch, name: str, call: int) -> None:
             raise Boom()
         return real(*args, **kwargs)
 
-    monkeypatch.setattr(save_module.os, name, wrapped)
+    monkeypatch.setattr(writer_module.os, name, wrapped)
 
 
 @pytest.mark.parametrize("name, call, step", [
     ("write", 1, "writing the temporary file"),
-    ("fsync", 1, "after writing the temporary file, at its fsync"),
-    ("fsync", 2, "at the fsync of the backup copy"),
+    ("fsync", 1, "at the fsync of the backup copy"),
+    ("fsync", 2, "after writing the temporary file, at its fsync"),
     ("replace", 1, "at the rename of the backup copy"),
     ("replace", 2, "at the rename of the new file, before it happens"),
 ])
@@ -215,7 +215,7 @@ def test_an_interrupt_while_writing_leaves_the_old_file(scene_file, monkeypatch)
     def interrupted(*args):
         raise KeyboardInterrupt
 
-    monkeypatch.setattr(save_module.os, "fsync", interrupted)
+    monkeypatch.setattr(writer_module.os, "fsync", interrupted)
     with pytest.raises(KeyboardInterrupt):
         save_edits(scene_file, {"body[0].e": 0.3})
     assert scene_file.read_bytes() == before

@@ -88,11 +88,90 @@ def atomic_path(target: str | os.PathLike[str], suffix: str | None = None) -> It
         with open(tmp, "rb+") as f:
             os.fsync(f.fileno())
         os.replace(tmp, target)
-        fsync_dir(folder)
     except BaseException:
         with contextlib.suppress(OSError):
             tmp.unlink()
         raise
+    try:
+        fsync_dir(folder)
+    except OSError as err:
+        raise FolderSyncError(err.errno, err.strerror) from err
+
+
+class FolderSyncError(OSError):
+    """The new file is in place, but its folder could not be synced (the rename may not
+    survive a crash)."""
+
+
+class WriteError(UserInputError):
+    """A write that could not be done; the message says what is on disk now."""
+
+
+def _write_all(path: Path, data: bytes) -> None:
+    fd = os.open(path, os.O_WRONLY | os.O_TRUNC)
+    try:
+        view = memoryview(data)
+        while view:
+            n = os.write(fd, view)
+            view = view[n:]
+    finally:
+        os.close(fd)
+
+
+def _backup(path: Path) -> Path:
+    """Copy ``path`` to NAME.bak through a fsynced temporary file and one rename, with the
+    mode the file has."""
+    bak = path.with_name(path.name + ".bak")
+    fd, tmp = tempfile.mkstemp(prefix=f".{bak.name}.", suffix=".tmp", dir=path.parent)
+    try:
+        with open(path, "rb") as src, os.fdopen(fd, "wb", closefd=False) as dst:
+            shutil.copyfileobj(src, dst, 1 << 20)
+            dst.flush()
+        os.fsync(fd)
+        os.chmod(tmp, stat.S_IMODE(path.stat().st_mode))
+        os.close(fd)
+        fd = -1
+        os.replace(tmp, bak)
+    except BaseException:
+        if fd >= 0:
+            os.close(fd)
+        with contextlib.suppress(OSError):
+            os.unlink(tmp)
+        raise
+    return bak
+
+
+def write_atomic(path: str | os.PathLike[str], data: str | bytes, *,
+                 backup: bool = False) -> Path:
+    """Write ``data`` to ``path`` through ``atomic_path``, so that a failure or a kill at
+    any step leaves either the old file or the new one, complete; with ``backup`` the
+    previous version is kept as ``NAME.bak``. Returns the path written.
+
+    Raises WriteError (exit 2) saying what is on disk when a step fails: before the
+    rename the file is unchanged; after it, the new version is in place.
+    """
+    p = Path(path)
+    if p.is_symlink():
+        p = p.resolve()
+    blob = data.encode("utf-8") if isinstance(data, str) else data
+    exists = p.exists()
+    if exists and not p.is_file():
+        raise WriteError(str(p), "cannot save: this is not a regular file")
+    if exists and not os.access(p, os.W_OK):
+        raise WriteError(str(p), "cannot save: the file is read-only; the file is unchanged")
+    try:
+        with atomic_path(p) as tmp:
+            _write_all(tmp, blob)
+            if exists and backup:
+                _backup(p)
+    except FolderSyncError as err:
+        raise WriteError(str(p), f"saved, but the folder could not be synced ({err.strerror}); "
+                         "the new version is in place") from None
+    except OSError as err:
+        raise WriteError(str(p), f"cannot save: {describe_os_error(err)}; the file is unchanged"
+                         + (" (the previous version may also be in "
+                            f"{p.name}.bak)" if backup and exists else "")) from None
+    return p
 
 
 def atomic_write_bytes(target: str | os.PathLike[str], data: bytes) -> None:
@@ -141,23 +220,11 @@ def claim_output(target: str | os.PathLike[str], *, force: bool,
 
 
 def _keep_backup(path: Path) -> None:
-    """NAME.bak: the present version of ``path``, through a temporary name and one rename."""
-    bak = path.with_name(path.name + ".bak")
-    fd, tmp_name = tempfile.mkstemp(prefix=f".{bak.name}.", suffix=".tmp",
-                                    dir=path.parent if str(path.parent) else ".")
-    os.close(fd)
-    tmp = Path(tmp_name)
+    """NAME.bak: the present version of ``path`` (``_backup``), a failure as exit 2."""
     try:
-        tmp.unlink()
-        try:
-            os.link(path, tmp)
-        except OSError:
-            shutil.copy2(path, tmp)
-        os.replace(tmp, bak)
+        _backup(path)
     except OSError as err:
-        with contextlib.suppress(OSError):
-            tmp.unlink()
-        raise user_write_error(bak, err) from None
+        raise user_write_error(path.with_name(path.name + ".bak"), err) from None
 
 
 def write_output(target: str | os.PathLike[str], data: bytes) -> None:

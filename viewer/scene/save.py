@@ -21,17 +21,14 @@ tomlkit is imported only here, so loading and ``perifocal check`` do not pay for
 from __future__ import annotations
 
 import math
-import os
 import re
-import shutil
-import stat
-import tempfile
 from collections.abc import Mapping
 from pathlib import Path
 from typing import Any
 
 from ..errors import UserInputError
-from ..fileio import describe_os_error
+from ..fileio import WriteError
+from ..fileio import write_atomic as _write_atomic
 from . import writer
 from .loader import MAX_FILE_BYTES, load_scene_text, read_scene_text
 from .model import Camera, RenderSettings, Scene
@@ -39,8 +36,8 @@ from .model import Camera, RenderSettings, Scene
 _SEGMENT = re.compile(r'([A-Za-z0-9_-]+)(?:\[(?:(\d+)|(\+)|"((?:[^"\\]|\\.)*)")\])?')
 
 
-class SaveError(UserInputError):
-    """A save that could not be done; the message says what is on disk now."""
+#: A save that could not be done; the message says what is on disk now.
+SaveError = WriteError
 
 
 # --- editing text --------------------------------------------------------------------
@@ -188,94 +185,10 @@ def _tidy_inline(node: Any) -> None:
 # --- writing files -------------------------------------------------------------------
 
 
-from ..fileio import fsync_dir as _fsync_dir  # noqa: E402  (one implementation)
-
-
-def _temp_in(folder: Path, name: str) -> tuple[int, str]:
-    return tempfile.mkstemp(prefix=f".{name}.", suffix=".tmp", dir=folder)
-
-
-def _write_fd(fd: int, data: bytes) -> None:
-    view = memoryview(data)
-    while view:
-        n = os.write(fd, view)
-        view = view[n:]
-    os.fsync(fd)
-
-
-def _backup(path: Path) -> Path:
-    """Copy ``path`` to NAME.bak through a fsynced temporary file and one rename."""
-    bak = path.with_name(path.name + ".bak")
-    fd, tmp = _temp_in(path.parent, bak.name)
-    try:
-        with open(path, "rb") as src, os.fdopen(fd, "wb", closefd=False) as dst:
-            shutil.copyfileobj(src, dst, 1 << 20)
-            dst.flush()
-        os.fsync(fd)
-        os.chmod(tmp, stat.S_IMODE(path.stat().st_mode))
-        os.close(fd)
-        fd = -1
-        os.replace(tmp, bak)
-    except BaseException:
-        if fd >= 0:
-            os.close(fd)
-        _remove(tmp)
-        raise
-    return bak
-
-
-def _remove(name: str) -> None:
-    try:
-        os.unlink(name)
-    except OSError:
-        pass
-
-
 def write_atomic(path: str | Path, data: str | bytes, *, backup: bool = True) -> Path:
-    """Write ``data`` to ``path`` so that a failure or kill at any step leaves either the
-    old file or the new one, complete (see the module docstring). Returns the path.
-
-    With ``backup``, the previous version is kept as ``NAME.bak`` (NAME.toml.bak).
-    Raises SaveError (exit 2 in the CLI) saying what is on disk when a step fails.
-    """
-    p = Path(path)
-    if p.is_symlink():
-        p = p.resolve()
-    blob = data.encode("utf-8") if isinstance(data, str) else data
-    exists = p.exists()
-    if exists and not p.is_file():
-        raise SaveError(str(p), "cannot save: this is not a regular file")
-    if exists and not os.access(p, os.W_OK):
-        raise SaveError(str(p), "cannot save: the file is read-only; the file is unchanged")
-    try:
-        fd, tmp = _temp_in(p.parent, p.name)
-    except OSError as err:
-        raise SaveError(str(p), f"cannot save: cannot create a file in {p.parent} "
-                        f"({describe_os_error(err)}); the file is unchanged") from None
-    try:
-        try:
-            _write_fd(fd, blob)
-        finally:
-            os.close(fd)
-        if exists:
-            os.chmod(tmp, stat.S_IMODE(p.stat().st_mode))
-            if backup:
-                _backup(p)
-        os.replace(tmp, p)
-    except OSError as err:
-        _remove(tmp)
-        raise SaveError(str(p), f"cannot save: {describe_os_error(err)}; the file is unchanged"
-                        + (" (the previous version may also be in "
-                           f"{p.name}.bak)" if backup and exists else "")) from None
-    except BaseException:
-        _remove(tmp)
-        raise
-    try:
-        _fsync_dir(p.parent)
-    except OSError as err:
-        raise SaveError(str(p), f"saved, but the folder could not be synced ({err.strerror}); "
-                        "the new version is in place") from None
-    return p
+    """Write a scene file atomically, the previous version kept as ``NAME.bak``: the one
+    writer, ``viewer.fileio.write_atomic``."""
+    return _write_atomic(path, data, backup=backup)
 
 
 def save_edits(path: str | Path, edits: Mapping[str, Any], *,
