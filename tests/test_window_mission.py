@@ -21,13 +21,11 @@ from support.xwindow import (
     Display,
     click,
     read_report,
+    running_viewer,
     select_all,
-    settled_report,
     stable_rect,
-    start_viewer,
     type_into,
     wait_for,
-    window_origin,
 )
 
 pytestmark = [
@@ -66,20 +64,8 @@ def viewer(display: Display, tmp_path: Path):  # type: ignore[no-untyped-def]
     """``perifocal open`` on the two-circle scene: (report path, window origin, scene)."""
     scene = tmp_path / "two.toml"
     scene.write_text(TWO_CIRCLES, encoding="utf-8")
-    report = tmp_path / "ui.json"
-    proc = start_viewer(display, tmp_path, scene, report)
-    try:
-        wait_for(lambda: settled_report(report), what="the first frames")
-        yield report, window_origin(display), scene
-        display.xdotool("key", "ctrl+q")
-        if (r := read_report(report)) and r["dirty"]:
-            ui = wait_for(lambda: stable_rect(report, "prompt:discard"), what="the prompt")
-            click(display, window_origin(display), ui["rects"]["prompt:discard"])
-        assert proc.wait(timeout=60) == 0
-    finally:
-        if proc.poll() is None:
-            proc.kill()
-            proc.wait()
+    with running_viewer(display, tmp_path, scene) as (report, origin):
+        yield report, origin, scene
 
 
 def changed_pixels(a: np.ndarray, b: np.ndarray) -> int:

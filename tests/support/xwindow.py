@@ -4,12 +4,14 @@ inputs are and what they show."""
 
 from __future__ import annotations
 
+import contextlib
 import json
 import os
 import struct
 import subprocess
 import sys
 import time
+from collections.abc import Iterator
 from pathlib import Path
 
 import numpy as np
@@ -103,6 +105,26 @@ def start_viewer(display: Display, tmp: Path, scene: Path, report: Path) -> subp
         return subprocess.Popen([*PERIFOCAL, "open", str(scene), "--size", "1600x900",
                                  "--ui-report", str(report)], env=display.env,
                                 stdout=log, stderr=subprocess.STDOUT)
+
+
+@contextlib.contextmanager
+def running_viewer(display: Display, tmp: Path,
+                   scene: Path) -> Iterator[tuple[Path, tuple[int, int]]]:
+    """``perifocal open SCENE`` until the block ends: (report path, window origin). At the
+    end it quits with Ctrl+Q (discarding unsaved changes at the prompt) and must exit 0."""
+    report = tmp / "ui.json"
+    proc = start_viewer(display, tmp, scene, report)
+    try:
+        wait_for(lambda: settled_report(report), what="the first frames")
+        yield report, window_origin(display)
+        display.xdotool("key", "ctrl+q")
+        if (r := read_report(report)) and r["dirty"]:
+            ui = wait_for(lambda: stable_rect(report, "prompt:discard"), what="the prompt")
+            click(display, window_origin(display), ui["rects"]["prompt:discard"])
+        assert proc.wait(timeout=60) == 0
+    finally:
+        if proc.poll() is None:
+            proc.kill()
 
 
 def window_origin(display: Display) -> tuple[int, int]:

@@ -19,6 +19,7 @@ from typing import Any
 
 from .camera_input import focus, preset
 from .clock import next_apsis_s
+from .overlays import OVERLAYS, scene_with_overlays, toggled
 
 Run = Callable[[Any], None]
 When = Callable[[Any], bool]
@@ -130,6 +131,33 @@ def _flag(attr: str) -> When:
     return lambda s: bool(getattr(s, attr))
 
 
+def _overlay(name: str) -> Run:
+    def run(s: Any) -> None:
+        s.overlays = toggled(s.editor.scene, s.overlays, name)
+    return run
+
+
+def _overlay_on(name: str) -> When:
+    def on(s: Any) -> bool:
+        drawn = scene_with_overlays(s.editor.scene, s.overlays)
+        if OVERLAYS[name][1] == "render":
+            return bool(getattr(drawn.render, name))
+        return any(getattr(b.show, name) for b in drawn.bodies)
+    return on
+
+
+def _fit(s: Any) -> None:
+    s.fit_wanted = True
+
+
+def _close_top(s: Any) -> None:
+    """Esc: close the help overlay, else the plots window (dialogs close themselves)."""
+    if s.show_help:
+        s.show_help = False
+    elif s.show_plots:
+        s.show_plots = False
+
+
 C = Chord
 ACTIONS: tuple[Action, ...] = (
     # File
@@ -160,6 +188,16 @@ ACTIONS: tuple[Action, ...] = (
     Action("centre", "Centre on the central body", (C("C"),), _centre, "View"),
     Action("plots", "Plots: distance and speed, third law", (C("G"),), _toggle("show_plots"),
            "View", _always, _flag("show_plots")),
+    Action("fit", "Fit the whole scene in view", (C("HOME", shift=True),), _fit, "View"),
+    Action("presentation", "Presentation: hide every panel", (C("F10"),),
+           _toggle("presenting"), "View", _always, _flag("presenting")),
+    Action("fullscreen", "Full screen", (C("F11"),), _toggle("fullscreen"), "View", _always,
+           _flag("fullscreen")),
+    *(Action(f"overlay_{name}", f"Show {label}", (C(key, shift=True),), _overlay(name),
+             "Overlays", _always, _overlay_on(name))
+      for (name, (label, _)), key in zip(OVERLAYS.items(), ("L", "G", "S", "F", "W", "A"),
+                                         strict=True)),
+    Action("close", "Close the help or the plots", (C("ESCAPE"),), _close_top),
     # Time
     Action("play", "Play / pause", (C("SPACE"),), _toggle_play, "Time"),
     Action("step_back", "Step one frame back", (C("LEFT"),), lambda s: s.clock.step(-1),
@@ -179,7 +217,7 @@ ACTIONS: tuple[Action, ...] = (
 
 #: The menus in the order of the menu bar ("Mission" is drawn by the panels: its entries
 #: open tabs, not actions).
-MENUS = ("File", "Edit", "View", "Time", "Help")
+MENUS = ("File", "Edit", "View", "Overlays", "Time", "Help")
 
 #: Help rows for what is not an action.
 EXTRA_HELP = (

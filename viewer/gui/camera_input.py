@@ -11,10 +11,12 @@ from __future__ import annotations
 
 import math
 from dataclasses import replace
+from typing import Any
 
 import numpy as np
 
 from ..geometry.camera import View
+from ..orbit import state_from_elements
 from ..scene.model import Camera
 
 #: Radians of turn per pixel of drag.
@@ -73,3 +75,40 @@ def preset(camera: Camera, look: str) -> Camera:
 def focus(camera: Camera, target: str) -> Camera:
     """Follow a body (its name) or the central body ("center")."""
     return replace(camera, target=target)
+
+
+def fit(camera: Camera, scene: Any, t_s: float, window_px: tuple[int, int],
+        free_px: tuple[int, int], margin: float = 0.9) -> Camera:
+    """The camera framing every orbit of ``scene`` (and the central body) inside the part
+    of the window the panels leave free, ``free_px`` of ``window_px``, looking the same
+    way. Orthographic: ``width`` (which spans the whole window); perspective: the eye's
+    distance. The target becomes the centre of the orbits' extent."""
+    from ..geometry.camera import view_for
+
+    view = view_for(scene, t_s, window_px, camera)
+    pts = [np.zeros((1, 3))]
+    for b in scene.bodies:
+        el = b.elements_at(t_s)
+        e = float(el.e)
+        if e < 1.0:
+            nu = np.linspace(0.0, 2.0 * math.pi, 181)
+        else:
+            r_max = b.limit_radius_m or 5.0 * float(el.periapsis)
+            c = max(-1.0, min(1.0, (float(el.p) / r_max - 1.0) / e))
+            nu = np.linspace(-math.acos(c), math.acos(c), 181)
+        r, _ = state_from_elements(el.with_(nu=nu))
+        pts.append(np.asarray(r).reshape(-1, 3))
+    p = np.concatenate(pts) - view.origin_m
+    x, y = p @ view.basis[0], p @ view.basis[1]
+    cx, cy = 0.5 * (x.max() + x.min()), 0.5 * (y.max() + y.min())
+    bw = max(float(x.max() - x.min()), 1.0)
+    bh = max(float(y.max() - y.min()), 1.0)
+    target = view.origin_m + cx * view.basis[0] + cy * view.basis[1]
+    W, H = window_px
+    fw, fh = max(free_px[0], 1), max(free_px[1], 1)
+    out = replace(camera, target=(float(target[0]), float(target[1]), float(target[2])))
+    if camera.projection == "perspective":
+        tan = 2.0 * math.tan(0.5 * camera.fov_rad)
+        d = max(bw * H / (margin * fw * tan), bh * H / (margin * fh * tan))
+        return replace(out, distance_m=d)
+    return replace(out, width_m=max(bw * W / (margin * fw), bh * W / (margin * fh)))

@@ -20,17 +20,15 @@ from dataclasses import dataclass, replace
 from pathlib import Path
 
 from ..orbit import AU_M, DAY_S, JULIAN_YEAR_S, Elements
-from ..scene.loader import PALETTE
+from ..scene.loader import free_color
 from ..scene.model import Body, BodyShow, Center, Scene, Sweep
 from ..scene.report import orbit_warnings
-from ..scene.values import parse_color
 from ..units import EpochError, QuantityError, parse_epoch, parse_quantity
 from .elements_edit import FIELDS, HOLDS, EditRefused, edit_elements
 
 __all__ = ["Editor", "EditRefused", "FIELDS", "HOLDS"]
 
 #: Colours given to new bodies in turn (the scene loader's palette, distinct on black).
-NEW_BODY_COLORS = tuple(parse_color(c) for c in PALETTE)
 #: Open orbits are drawn out to this many periapsis radii (the loader's default).
 LIMIT_PERIAPSES = 5.0
 _NAME_BAD = re.compile(r"[\x00-\x1f\x7f]")
@@ -261,7 +259,7 @@ class Editor:
         taken = {b.name for b in scene.bodies}
         name = _unique(f"Body {len(scene.bodies) + 1}", taken)
         el = Elements(a=a, e=0.0, mu=c.gm_m3_s2)
-        color = NEW_BODY_COLORS[len(scene.bodies) % len(NEW_BODY_COLORS)]
+        color = free_color(scene.bodies)  # a colour no other body has, while any is left
         body = Body(name=name, elements=el, color=color,
                     warnings=tuple(orbit_warnings(el, c)))
         bodies = [*scene.bodies, body]

@@ -39,6 +39,16 @@ class Session:
     camera: Any
     show_help: bool = False
     show_plots: bool = False
+    #: Presentation: every panel hidden, the picture fills the window.
+    presenting: bool = False
+    fullscreen: bool = False
+    #: Panel text, labels and markers scale together (``--ui-scale``, saved per user).
+    ui_scale: float = 1.0
+    #: View-wide switches over the scene's own settings (labels, grid, stars, foci,
+    #: sectors, axes): None follows the scene; they never mark the file changed.
+    overlays: dict[str, bool] = field(default_factory=dict)
+    #: Set by the "fit" action: the window frames the whole scene on its next frame.
+    fit_wanted: bool = False
     message: str = ""
     quit_now: bool = False
     #: While the unsaved-changes prompt is up: what follows it ("quit" or "open").

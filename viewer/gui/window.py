@@ -23,8 +23,10 @@ from .actions import action_for
 from .camera_input import focus, orbit, pan, zoom
 from .clock import Clock
 from .editor import Editor
+from .overlays import scene_with_overlays
 from .panels import Panels
 from .session import Session
+from .theme import PANEL_FONT_PX, apply_theme
 
 #: Frames drawn after an input event, so imgui's hover and focus states settle.
 SETTLE_FRAMES = 3
@@ -47,7 +49,9 @@ class ViewerWindow:
     """One scene in one window. ``editor`` holds the scene; ``size`` is (W, H) in px."""
 
     def __init__(self, editor: Editor, size: tuple[int, int] = (1600, 900),
-                 visible: bool = True, ui_report: str | Path | None = None) -> None:
+                 visible: bool = True, ui_report: str | Path | None = None,
+                 ui_scale: float = 1.0, screen: int | None = None, fullscreen: bool = False,
+                 presenting: bool = False) -> None:
         import moderngl
         import pyglet
         from imgui_bundle import imgui, implot
@@ -72,12 +76,9 @@ class ViewerWindow:
         io.set_ini_filename("")  # layout is ours; nothing is written beside the scene
         io.config_input_text_cursor_blink = False  # a blinking caret would need redraws
         font = _font_path()
-        if font is not None:
-            io.fonts.add_font_from_file_ttf(font, 16.0)
-        imgui.style_colors_dark()
-        style = imgui.get_style()
-        style.window_rounding = 4.0
-        style.frame_rounding = 3.0
+        if font is not None:  # panel text of at least 18 px at scale 1 (projector-legible)
+            io.fonts.add_font_from_file_ttf(font, PANEL_FONT_PX * ui_scale)
+        apply_theme(imgui, ui_scale)
         io.fonts.flags |= imgui.ImFontAtlasFlags_.no_baked_lines  # sampled nearest
         w, h = self.window.get_size()
         io.display_size = imgui.ImVec2(float(w), float(h))
@@ -93,7 +94,14 @@ class ViewerWindow:
             self.render_error = f"the scene cannot be drawn: {err}"
         self.session = Session(editor=editor, clock=Clock.for_scene(editor.scene),
                                camera=editor.scene.camera, message=self.render_error,
-                               renderer=self.renderer)
+                               renderer=self.renderer, ui_scale=ui_scale,
+                               fullscreen=fullscreen, presenting=presenting)
+        screens = pyglet.display.get_display().get_screens()
+        if screen is not None and not 0 <= screen < len(screens):
+            raise ValueError(f"screen {screen} does not exist (this display has "
+                             f"{len(screens)}: 0 to {len(screens) - 1})")
+        self._screen = screens[screen] if screen is not None else None
+        self._view_state: Any = None
         self._job_renderer: Any = None
         self._job_state = ""
         self._shown_editor: Any = editor
@@ -210,7 +218,8 @@ class ViewerWindow:
         panels' home places, so no part of the scene hides behind a panel."""
         from .panels import scene_area
 
-        return scene_area(self.window.get_framebuffer_size())
+        s = self.session
+        return scene_area(self.window.get_framebuffer_size(), s.ui_scale, s.presenting)
 
     def _shift_m(self, view: Any) -> Any:
         """World offset (m) from the camera's target to the point drawn at the window's
@@ -260,14 +269,35 @@ class ViewerWindow:
         s = self.session
         job = s.job.state if s.job is not None else ""
         return (self._pending > 0 or s.clock.playing or self._input_queued()
+                or self._view_settings() != self._view_state
                 or self.editor.revision != self._last_revision
                 or s.camera is not self._last_camera or job == "running"
                 or job != self._job_state or s.editor is not self._shown_editor)
+
+    def _view_settings(self) -> Any:
+        s = self.session
+        return (s.presenting, s.fullscreen, tuple(sorted(s.overlays.items())), s.fit_wanted)
+
+    def _apply_view_settings(self) -> None:
+        """Full screen (on the chosen screen) and "fit" as the session asks."""
+        from .camera_input import fit
+
+        s = self.session
+        if s.fullscreen != self.window.fullscreen:
+            self.window.set_fullscreen(s.fullscreen, screen=self._screen)
+            self._pending = SETTLE_FRAMES
+        if s.fit_wanted:
+            s.fit_wanted = False
+            size = self.window.get_framebuffer_size()
+            _, _, fw, fh = self._scene_area()
+            s.camera = fit(s.camera, self.editor.scene, s.clock.t_s, size, (fw, fh))
+        self._view_state = self._view_settings()
 
     def draw(self) -> None:
         """Draw one frame: the scene, then the panels over it (not flipped yet)."""
         imgui = self._imgui
         t0 = time.perf_counter()
+        self._apply_view_settings()
         # What this frame shows; an edit made by the panels below changes the revision
         # again, so the loop draws the next frame at once (the edit is seen next frame).
         self._last_revision = self.editor.revision
@@ -283,8 +313,8 @@ class ViewerWindow:
         drawn = False
         if self.renderer is not None:
             try:
-                geom = self.renderer.geometry(self.editor.scene, self.session.clock.t_s,
-                                              self._view())
+                drawn_scene = scene_with_overlays(self.editor.scene, self.session.overlays)
+                geom = self.renderer.geometry(drawn_scene, self.session.clock.t_s, self._view())
                 self.renderer.draw(geom, self.ctx.screen)
                 drawn = True
             except Exception as err:  # keep the editor usable; say what went wrong

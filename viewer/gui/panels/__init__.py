@@ -67,16 +67,11 @@ class Panels(Widgets):
         self.report = {"rects": {}, "readout": [], "values": {}, "dirty": s.editor.dirty,
                        "prompt": "unsaved" if s.unsaved_for else "",
                        "bodies": [b.name for b in s.editor.scene.bodies]}
-        menu.draw(self, s)
-        top = MENU_H + GAP
-        split = top + min(250.0, 0.33 * h)
-        bodies.draw_bodies(self, s, (GAP, top), (LEFT_W, split - top))
-        bodies.draw_marks(self, s, (GAP, split + GAP), (LEFT_W, h - split - TIME_H - 3 * GAP))
-        split = top + min(480.0, 0.56 * h)
-        orbit.draw(self, s, (w - RIGHT_W - GAP, top), (RIGHT_W, split - top))
-        numbers.draw(self, s, (w - RIGHT_W - GAP, split + GAP),
-                      (RIGHT_W, h - split - TIME_H - 3 * GAP))
-        time_panel.draw(self, s, (GAP, h - TIME_H - GAP), (w - 2 * GAP, TIME_H))
+        self.report.update(presenting=s.presenting, fullscreen=s.fullscreen,
+                           overlays=dict(s.overlays), plots=s.show_plots, help=s.show_help,
+                           camera_width_m=s.camera.width_m, ui_scale=s.ui_scale)
+        if not s.presenting:  # presentation: no panel at all, only dialogs when asked
+            self._home_panels(s, w, h)
         if s.show_plots:
             plots_window.draw(self, s, w, h)
         if s.job is not None:
@@ -89,6 +84,21 @@ class Panels(Widgets):
         dialogs.still_dialog(self, s)
         dialogs.job_dialog(self, s)
 
+
+    def _home_panels(self, s: Session, w: float, h: float) -> None:
+        """The menu bar and the five docked panels, sized by the UI scale."""
+        k = s.ui_scale
+        gap, left, right, time_h = GAP * k, LEFT_W * k, RIGHT_W * k, TIME_H * k
+        menu.draw(self, s)
+        top = MENU_H * k + gap
+        split = top + min(250.0 * k, 0.33 * h)
+        bodies.draw_bodies(self, s, (gap, top), (left, split - top))
+        bodies.draw_marks(self, s, (gap, split + gap), (left, h - split - time_h - 3 * gap))
+        split = top + min(480.0 * k, 0.56 * h)
+        orbit.draw(self, s, (w - right - gap, top), (right, split - top))
+        numbers.draw(self, s, (w - right - gap, split + gap),
+                     (right, h - split - time_h - 3 * gap))
+        time_panel.draw(self, s, (gap, h - time_h - gap), (w - 2 * gap, time_h))
 
 
 def shortcut_list() -> tuple[tuple[str, str], ...]:

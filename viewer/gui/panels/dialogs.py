@@ -159,7 +159,7 @@ def job_dialog(p: Panels, s: Session) -> None:
 def job_progress(p: Panels, s: Session, w: float, h: float) -> None:
     job = s.job
     assert job is not None
-    x0, top, fw, fh = scene_area((int(w), int(h)))
+    x0, top, fw, fh = scene_area((int(w), int(h)), s.ui_scale, s.presenting)
     width = min(620.0, fw - 2 * GAP)
     imgui.set_next_window_pos(imgui.ImVec2(x0 + 0.5 * (fw - width), top + fh - 112 - GAP),
                               imgui.Cond_.first_use_ever)

@@ -68,7 +68,7 @@ def _elements(p: Panels, s: Session) -> None:
 def _rows(p: Panels, s: Session, k: int, rows: tuple[tuple[str, str], ...]) -> None:
     if not imgui.begin_table(f"rows{rows[0][0]}", 2, imgui.TableFlags_.sizing_stretch_prop):
         return
-    imgui.table_setup_column("what", imgui.TableColumnFlags_.width_fixed, 190)
+    imgui.table_setup_column("what", imgui.TableColumnFlags_.width_fixed, 225)
     imgui.table_setup_column("value", imgui.TableColumnFlags_.width_stretch)
     for name, label in rows:
         imgui.table_next_row()

@@ -23,7 +23,7 @@ if TYPE_CHECKING:
 def draw(p: Panels, s: Session, w: float, h: float) -> None:
     from imgui_bundle import implot
 
-    x0, top, fw, fh = scene_area((int(w), int(h)))
+    x0, top, fw, fh = scene_area((int(w), int(h)), s.ui_scale, s.presenting)
     imgui.set_next_window_pos(imgui.ImVec2(x0 + fw - 520 - GAP, top + GAP),
                               imgui.Cond_.first_use_ever)
     imgui.set_next_window_size(imgui.ImVec2(520, min(640.0, fh - 2 * GAP)),

@@ -12,20 +12,21 @@ from imgui_bundle import imgui
 from ...mission import CAUTION
 from ...scene.marks import MARKS
 from ...units import QuantityError
+from .. import theme
 from ..editor import EditRefused
 from ..session import Session
 
 MENU_H = 26.0
 LEFT_W = 340.0
-RIGHT_W = 430.0
+RIGHT_W = 490.0
 TIME_H = 118.0
 GAP = 6.0
 #: Width of a dialog's text (its path input and its wrapped problems), px.
 DIALOG_TEXT_W = 640.0
 
-AMBER = imgui.ImVec4(1.0, 0.75, 0.3, 1.0)
-RED = imgui.ImVec4(1.0, 0.45, 0.4, 1.0)
-DIM = imgui.ImVec4(0.65, 0.68, 0.72, 1.0)
+AMBER = imgui.ImVec4(*theme.WARNING)
+RED = imgui.ImVec4(*theme.REFUSAL)
+DIM = imgui.ImVec4(*theme.TEXT_SECONDARY)  # secondary text, high contrast on the panels
 
 #: Element fields in the order shown, with their labels.
 ELEMENT_ROWS = (
@@ -46,14 +47,18 @@ ORBIT_TABS = ("Elements", "Quick answers", "Transfer")
 SHOW_LABELS = tuple((m.name, m.label) for m in MARKS)
 
 
-def scene_area(size: tuple[int, int]) -> tuple[int, int, int, int]:
+def scene_area(size: tuple[int, int], scale: float = 1.0,
+               presenting: bool = False) -> tuple[int, int, int, int]:
     """(x, y from the top, width, height) in px of the window left for the picture
-    between the panels' home places (at least a quarter of the window each way)."""
+    between the panels' home places (at least a quarter of the window each way); the
+    whole window while presenting (no panels). ``scale`` is the UI scale."""
     w, h = size
-    x0 = int(LEFT_W + 2 * GAP)
-    x1 = int(w - RIGHT_W - 2 * GAP)
-    top = int(MENU_H)
-    bottom = int(h - TIME_H - 2 * GAP)
+    if presenting:
+        return 0, 0, w, h
+    x0 = int(scale * (LEFT_W + 2 * GAP))
+    x1 = int(w - scale * (RIGHT_W + 2 * GAP))
+    top = int(scale * MENU_H)
+    bottom = int(h - scale * (TIME_H + 2 * GAP))
     if x1 - x0 < w // 4:
         x0, x1 = 0, w
     if bottom - top < h // 4:
@@ -83,9 +88,13 @@ class Widgets:
 
     @staticmethod
     def window(name: str, pos: tuple[float, float], size: tuple[float, float]) -> bool:
-        imgui.set_next_window_pos(imgui.ImVec2(*pos), imgui.Cond_.first_use_ever)
-        imgui.set_next_window_size(imgui.ImVec2(*size), imgui.Cond_.first_use_ever)
-        return imgui.begin(name, None, imgui.WindowFlags_.no_collapse)[0]
+        # Docked to the window's edges: the panels keep their place when the window is
+        # resized or goes fullscreen.
+        imgui.set_next_window_pos(imgui.ImVec2(*pos), imgui.Cond_.always)
+        imgui.set_next_window_size(imgui.ImVec2(*size), imgui.Cond_.always)
+        flags = imgui.WindowFlags_.no_collapse | imgui.WindowFlags_.no_move \
+            | imgui.WindowFlags_.no_resize
+        return imgui.begin(name, None, flags)[0]
 
     def typed_field(self, key: str, shown: str, commit: Callable[[str], object],
                     width: float = -1.0, label: str = "", rect: str | None = None,
