@@ -96,3 +96,13 @@ def test_the_clock_moves_only_while_playing_and_steps_by_timeline_frames() -> No
     assert c.advance(0.1) and c.t_s == pytest.approx(DAY_S)
     c.step(3)
     assert c.t_s == pytest.approx(DAY_S + 1.0 * DAY_S)
+
+
+def test_neighbouring_names_on_the_third_law_plot_alternate_above_and_below() -> None:
+    from viewer.gui.panels.plots_window import label_offsets
+
+    a = np.array([1.0, 1.05, 1.1, 5.0, 30.0]) * 1.496e11
+    span = np.array([0.3, 40.0]) * 1.496e11
+    dy = label_offsets(a, span)
+    assert dy[0] < 0 and dy[1] > 0 and dy[2] < 0  # three crowded names: up, down, up
+    assert dy[3] < 0 and dy[4] < 0  # names far apart all sit above their points

@@ -94,10 +94,11 @@ class Panels(Widgets):
         split = top + min(250.0 * k, 0.33 * h)
         bodies.draw_bodies(self, s, (gap, top), (left, split - top))
         bodies.draw_marks(self, s, (gap, split + gap), (left, h - split - time_h - 3 * gap))
-        split = top + min(480.0 * k, 0.56 * h)
-        orbit.draw(self, s, (w - right - gap, top), (right, split - top))
-        numbers.draw(self, s, (w - right - gap, split + gap),
-                     (right, h - split - time_h - 3 * gap))
+        if not s.show_plots:  # the plots take the right-hand column while they are open
+            split = top + min(480.0 * k, 0.56 * h)
+            orbit.draw(self, s, (w - right - gap, top), (right, split - top))
+            numbers.draw(self, s, (w - right - gap, split + gap),
+                         (right, h - split - time_h - 3 * gap))
         time_panel.draw(self, s, (gap, h - time_h - gap), (w - 2 * gap, time_h))
 
 

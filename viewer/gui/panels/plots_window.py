@@ -13,7 +13,9 @@ from ..session import Session
 from .widgets import (
     DIM,
     GAP,
-    scene_area,
+    MENU_H,
+    RIGHT_W,
+    TIME_H,
 )
 
 if TYPE_CHECKING:
@@ -23,12 +25,16 @@ if TYPE_CHECKING:
 def draw(p: Panels, s: Session, w: float, h: float) -> None:
     from imgui_bundle import implot
 
-    x0, top, fw, fh = scene_area((int(w), int(h)), s.ui_scale, s.presenting)
-    imgui.set_next_window_pos(imgui.ImVec2(x0 + fw - 520 - GAP, top + GAP),
-                              imgui.Cond_.first_use_ever)
-    imgui.set_next_window_size(imgui.ImVec2(520, min(640.0, fh - 2 * GAP)),
-                               imgui.Cond_.first_use_ever)
-    opened, keep = imgui.begin("Plots", True, imgui.WindowFlags_.no_collapse)
+    # Beside the picture, never over it: the plots take the right-hand column (the
+    # Orbit and Numbers panels come back when they close); presenting, the right edge.
+    k = s.ui_scale
+    top = 0.0 if s.presenting else MENU_H * k + GAP * k
+    bottom = h if s.presenting else h - (TIME_H + 2 * GAP) * k
+    width = RIGHT_W * k
+    imgui.set_next_window_pos(imgui.ImVec2(w - width - GAP * k, top), imgui.Cond_.always)
+    imgui.set_next_window_size(imgui.ImVec2(width, bottom - top), imgui.Cond_.always)
+    opened, keep = imgui.begin("Plots", True, imgui.WindowFlags_.no_collapse
+                               | imgui.WindowFlags_.no_move | imgui.WindowFlags_.no_resize)
     if opened:
         ed = s.editor
         b = ed.body
@@ -43,6 +49,9 @@ def draw(p: Panels, s: Session, w: float, h: float) -> None:
                        else ("km", 1e3))
             days = (prof.t_s - prof.now_s) / DAY_S
             implot.setup_axes("days from now", f"distance ({unit})")
+            # Legends below the plot area, never over the curves.
+            implot.setup_legend(implot.Location_.south,
+                                implot.LegendFlags_.outside | implot.LegendFlags_.horizontal)
             implot.setup_axis(implot.ImAxis_.y2, "speed (km/s)",
                               implot.AxisFlags_.aux_default)
             implot.setup_axes_limits(float(days[0]), float(days[-1]),
@@ -61,20 +70,43 @@ def draw(p: Panels, s: Session, w: float, h: float) -> None:
         if len(law.a_m) and implot.begin_plot("Third law: T^2 grows as a^3##law",
                                               imgui.ImVec2(-1, -1)):
             implot.setup_axes("semi-major axis a (au)", "period T (d)")
+            # Legends below the plot area, never over the curves.
+            implot.setup_legend(implot.Location_.south,
+                                implot.LegendFlags_.outside | implot.LegendFlags_.horizontal)
             implot.setup_axis_scale(implot.ImAxis_.x1, implot.Scale_.log10)
             implot.setup_axis_scale(implot.ImAxis_.y1, implot.Scale_.log10)
-            implot.setup_axes_limits(float(law.line_a_m[0] / AU_M),
-                                     float(law.line_a_m[-1] / AU_M),
-                                     float(law.line_period_s[0] / DAY_S),
-                                     float(law.line_period_s[-1] / DAY_S),
+            # A margin of a fifth of a decade each way, so the end points' names fit.
+            implot.setup_axes_limits(float(law.line_a_m[0] / AU_M) / 1.6,
+                                     float(law.line_a_m[-1] / AU_M) * 1.6,
+                                     float(law.line_period_s[0] / DAY_S) / 2.0,
+                                     float(law.line_period_s[-1] / DAY_S) * 2.0,
                                      implot.Cond_.always)
             implot.plot_line("T = 2 pi sqrt(a^3/GM): slope 3/2", law.line_a_m / AU_M,
                              law.line_period_s / DAY_S)
             implot.plot_scatter("bodies", law.a_m / AU_M, law.period_s / DAY_S)
-            for name, a, T in zip(law.names, law.a_m, law.period_s, strict=True):
-                implot.plot_text(name, float(a / AU_M), float(T / DAY_S),
-                                 imgui.ImVec2(0, -10))
+            for name, a, T, dy in zip(law.names, law.a_m, law.period_s,
+                                      label_offsets(law.a_m, law.line_a_m), strict=True):
+                implot.plot_text(name, float(a / AU_M), float(T / DAY_S), imgui.ImVec2(0, dy))
             implot.end_plot()
     imgui.end()
     if keep is False:
         s.show_plots = False
+
+
+def label_offsets(a_m: np.ndarray, span_m: np.ndarray, px: float = 12.0) -> list[float]:
+    """Vertical offsets (px) of the point labels on the third-law plot: above the point,
+    and for a point within a twentieth of the axis (in log a) of the previous labelled
+    one, alternately below, so neighbouring names do not print over each other."""
+    if len(a_m) == 0:
+        return []
+    x = np.log10(np.asarray(a_m, dtype=np.float64))
+    near = 0.05 * max(float(np.ptp(np.log10(span_m))), 1e-9)
+    order = np.argsort(x)
+    out = [0.0] * len(x)
+    side = -1.0
+    last = -np.inf
+    for k in order:
+        side = -side if x[k] - last < near else 1.0
+        out[int(k)] = -px * side
+        last = x[k]
+    return out
