@@ -62,23 +62,21 @@ def add_parser(sub: Any) -> None:
 def time_arg(text: str, flag: str, scene: Any) -> Any:
     """An Epoch from a flag: an ISO epoch (TDB without a suffix) or an offset from the
     scene epoch (bare numbers in the scene's time unit)."""
-    from ..units import EpochError, QuantityError, parse_epoch, parse_quantity
+    from ..units import EpochError, QuantityError, parse_epoch
+    from ..units.limits import parse_limited
 
     try:
         if _EPOCH_START.match(text):
-            return parse_epoch(text)
-        return scene.epoch.plus_seconds(parse_quantity(_number_or_text(text), "time",
-                                                       scene.time_unit))
+            epoch = parse_epoch(text)
+        else:
+            epoch = scene.epoch.plus_seconds(parse_limited(text, "time", scene.time_unit))
     except (EpochError, QuantityError) as err:
         raise UserInputError(flag, f"{err}; give an epoch such as \"2030-01-01T00:00:00 UTC\" "
                              f"or an offset from the scene epoch such as \"90 d\"") from None
-
-
-def _number_or_text(text: str) -> float | str:
-    try:
-        return float(text)
-    except ValueError:
-        return text
+    if not epoch.in_calendar():
+        raise UserInputError(flag, f"{text!r} is outside years 1 to 9999 (epochs are written "
+                             "with four-digit years); give a nearer time")
+    return epoch
 
 
 def _label(epoch: Any, scale: str, flag: str) -> tuple[dt.datetime, str | None]:
@@ -180,8 +178,8 @@ def run(args: argparse.Namespace) -> int:
     from ..formats.kvn import creation_date_now
     from ..orbit import propagate, state_from_elements
     from ..scene import load_scene
-    from ..units import QuantityError, parse_quantity
     from . import CAUTION
+    from .options import quantity
 
     scene = load_scene(args.scene)
     claim_output(args.output, force=args.force, inputs=[args.scene])
@@ -193,10 +191,7 @@ def run(args: argparse.Namespace) -> int:
                              f"{names}") from None
     start = time_arg(args.start, "--start", scene)
     stop = time_arg(args.stop, "--stop", scene)
-    try:
-        step_s = parse_quantity(_number_or_text(args.step), "time", scene.time_unit)
-    except QuantityError as err:
-        raise UserInputError("--step", f"{err}; give a duration such as \"60 s\"") from None
+    step_s = quantity(args.step, "--step", "time", scene.time_unit)
     if not step_s >= 1e-3:
         raise UserInputError("--step", f"the step must be at least 1 ms (epochs are written to "
                              f"the millisecond); got {args.step!r}")

@@ -111,15 +111,21 @@ def parse_time(text: str | None, scene: Any) -> float:
     """
     if text is None:
         return float(scene.timeline.start_s)
-    from ..units import EpochError, QuantityError, parse_epoch, parse_quantity
+    from ..units import EpochError, QuantityError, parse_epoch
+    from ..units.limits import limit_problem, parse_limited
 
     if _EPOCH_LIKE.match(text):
         try:
-            return parse_epoch(text).seconds_since(scene.epoch)
+            t_s = parse_epoch(text).seconds_since(scene.epoch)
         except EpochError as err:
             raise UserInputError("--at", str(err)) from None
+        too_large = limit_problem(t_s, "time")
+        if too_large is not None:
+            raise UserInputError("--at", f"{text!r} is {t_s:.3g} s from the scene epoch, which "
+                                 f"{too_large}")
+        return t_s
     try:
-        return parse_quantity(text, "time", scene.time_unit or "d")
+        return parse_limited(text, "time", scene.time_unit or "d")
     except QuantityError as err:
         raise UserInputError("--at", f"{err}; or give an epoch such as "
                              "\"2030-01-01T00:00:00 TDB\"") from None

@@ -5,7 +5,6 @@ phasing; optionally a new scene with the transfer orbit added as a body."""
 from __future__ import annotations
 
 import argparse
-import json
 import math
 import sys
 from pathlib import Path
@@ -90,9 +89,10 @@ def run(args: argparse.Namespace) -> int:
     from ..orbit import OrbitError
     from ..orbit.transfer import bi_elliptic, hohmann
     from ..scene import load_scene
-    from ..units import QuantityError, parse_quantity
+    from ..units.limits import MAX_TIME_S, limit_problem
     from . import CAUTION
     from .ephemeris import time_arg
+    from .options import quantity, write_json
 
     scene = load_scene(args.scene)
     dep = _body(scene, args.from_body, "--from")
@@ -116,13 +116,13 @@ def run(args: argparse.Namespace) -> int:
         if args.via is None:
             tr = hohmann(r1, r2, mu)
         else:
-            try:
-                rb = parse_quantity(args.via, "length", scene.length_unit)
-            except QuantityError as err:
-                raise UserInputError("--via", str(err)) from None
-            tr = bi_elliptic(r1, rb, r2, mu)
+            tr = bi_elliptic(r1, quantity(args.via, "--via", "length", scene.length_unit), r2, mu)
     except OrbitError as err:
         raise UserInputError("--via" if args.via else args.scene, str(err)) from None
+    if limit_problem(float(tr.time_of_flight_s), "time") is not None:
+        raise UserInputError("--via", f"the transfer would take {float(tr.time_of_flight_s):.3g} s"
+                             f", beyond the {MAX_TIME_S:g} s every time is held to; choose a "
+                             f"smaller --via")
     geometry = _geometry(scene, dep, arr, tr, t_dep)
     out = _describe(scene, dep, arr, tr, t_dep, geometry)
     name = args.name or f"{dep.name} to {arr.name}"
@@ -130,8 +130,7 @@ def run(args: argparse.Namespace) -> int:
         _write(args, scene, tr, geometry, name, out)
     if args.json:
         out["caution"] = CAUTION
-        json.dump(out, sys.stdout, indent=1)
-        sys.stdout.write("\n")
+        write_json(out)
     else:
         sys.stdout.write(_table(out) + "\n\n" + CAUTION + "\n")
     return 0
@@ -212,6 +211,9 @@ def _write(args: argparse.Namespace, scene: Any, tr: Any, geometry: dict[str, An
     from ..orbit import elements_from_state
     from ..scene import load_scene_text, read_scene_text
 
+    if not all(scene.epoch.plus_seconds(t).in_calendar() for t, _, _ in geometry["legs"]):
+        raise UserInputError("-o", "a leg would start after year 9999, which a scene epoch "
+                             "cannot be written in; choose a smaller --via")
     target = claim_output(args.output, force=args.force, inputs=[args.scene])
     names = [name] if len(geometry["legs"]) == 1 else [
         f"{name} (leg {k + 1})" for k in range(len(geometry["legs"]))]
