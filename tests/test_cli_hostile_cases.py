@@ -96,3 +96,29 @@ def test_a_millisecond_step_can_be_written_as_the_error_says(
                  "10 ms", "--step", "1 ms", "-o", str(out)]) == 0
     lines = [ln for ln in out.read_text().splitlines() if ln.startswith("2030-01-01T00:00:00.0")]
     assert [ln.split()[0][-3:] for ln in lines] == [f"{k:03d}" for k in range(11)]
+
+
+def _no_constants(name: str) -> None:
+    raise AssertionError(f"the JSON holds {name}, which JSON does not have")
+
+
+@pytest.mark.parametrize("bundled", sorted((Path(__file__).parent.parent / "scenes")
+                                           .glob("*.toml")), ids=lambda p: p.name)
+def test_check_json_of_every_bundled_scene_is_strict(bundled: Path,
+                                                     capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["check", str(bundled), "--json"]) == 0
+    json.loads(capsys.readouterr().out, parse_constant=_no_constants)
+
+
+def test_write_json_turns_every_non_finite_number_into_null() -> None:
+    import io
+
+    import numpy as np
+
+    from viewer.cli.options import write_json
+
+    out = io.StringIO()
+    write_json({"a": math.nan, "b": [math.inf, -math.inf, 1.5], "c": np.float64("nan"),
+                "d": (np.float32(2.0), None, True)}, out)
+    assert json.loads(out.getvalue(), parse_constant=_no_constants) == {
+        "a": None, "b": [None, None, 1.5], "c": None, "d": [2.0, None, True]}
