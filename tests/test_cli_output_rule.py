@@ -44,11 +44,15 @@ def scene(tmp_path: Path) -> Path:
 
 @pytest.fixture
 def umask_022() -> Iterator[None]:
+    from viewer import fileio
+
     old = os.umask(0o022)
+    fileio._umask.cache_clear()  # the writer reads the umask once per process
     try:
         yield
     finally:
         os.umask(old)
+        fileio._umask.cache_clear()
 
 
 def ephemeris(scene: Path, out: Path, *extra: str) -> int:
@@ -155,3 +159,13 @@ def test_demo_with_a_file_in_the_way_or_a_read_only_folder(
                         "permission")
     finally:
         locked.chmod(0o700)
+
+
+def test_a_screenshot_follows_the_rule_too(scene: Path, capsys: pytest.CaptureFixture[str],
+                                           monkeypatch: pytest.MonkeyPatch) -> None:
+    shot = scene.parent / "shot.png"
+    shot.write_bytes(b"mine")
+    monkeypatch.delenv("DISPLAY", raising=False)  # refused before any window is opened
+    code = main(["open", str(scene), "--screenshot", str(shot), "--quit-after", "1"])
+    one_line_exit_2(code, capsys, "--screenshot", "--force")
+    assert shot.read_bytes() == b"mine"

@@ -15,6 +15,7 @@ import numpy as np
 import pytest
 
 from viewer.cli import main
+from viewer.export.frames import SETTINGS_NAME
 
 pytestmark = pytest.mark.gl
 
@@ -56,7 +57,8 @@ def digest(folder: Path) -> dict[str, str]:
 def test_a_folder_gets_the_whole_timeline_numbered_by_frame(scene: Path, tmp_path: Path) -> None:
     out = tmp_path / "frames"
     assert main(["render", str(scene), "-o", f"{out}/"]) == 0
-    assert sorted(p.name for p in out.iterdir()) == [f"frame_{k:06d}.png" for k in range(12)]
+    frames = sorted(p.name for p in out.iterdir() if p.name != SETTINGS_NAME)
+    assert frames == [f"frame_{k:06d}.png" for k in range(12)]
 
 
 def test_shards_on_several_machines_give_the_frames_of_one_run(scene: Path,
@@ -152,3 +154,45 @@ def test_an_unwritable_output_folder_is_a_clear_error(scene: Path,
                                                       capsys: pytest.CaptureFixture[str]) -> None:
     assert main(["render", str(scene), "-o", "/proc/perifocal-no/frames/"]) == 2
     assert "cannot create the output folder" in capsys.readouterr().err
+
+
+def _sizes(folder: Path) -> set[tuple[int, int]]:
+    from PIL import Image
+
+    sizes = set()
+    for p in folder.glob("frame_*.png"):
+        with Image.open(p) as img:
+            sizes.add(img.size)
+    return sizes
+
+
+def test_resume_never_keeps_frames_made_with_other_settings(
+        scene: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    out = tmp_path / "frames"
+    assert main(["render", str(scene), "--size", "32x18", "--frames", "0:4", "-o", f"{out}/"]) == 0
+    capsys.readouterr()
+    # the folder's record says 32x18: resuming at 64x36 is refused, saying why
+    code = main(["render", str(scene), "--size", "64x36", "--resume", "-o", f"{out}/"])
+    err = capsys.readouterr().err
+    assert code == 2 and "--resume" in err and "size" in err and "Traceback" not in err
+    assert _sizes(out) == {(32, 18)}
+    # a folder without the record (made by hand, or by an older version): every frame
+    # is checked against the settings, and the ones that differ are made again
+    (out / SETTINGS_NAME).unlink()
+    assert main(["render", str(scene), "--size", "64x36", "--resume", "-o", f"{out}/"]) == 0
+    assert _sizes(out) == {(64, 36)} and len(list(out.glob("frame_*.png"))) == 12
+    # the scene itself is part of the settings
+    scene.write_text(SHORT.replace("e = 0.3", "e = 0.4"))
+    code = main(["render", str(scene), "--size", "64x36", "--resume", "-o", f"{out}/"])
+    assert code == 2 and "scene_sha256" in capsys.readouterr().err
+
+
+def test_resume_removes_the_temporary_file_of_a_killed_frame(scene: Path, tmp_path: Path) -> None:
+    out = tmp_path / "frames"
+    assert main(["render", str(scene), "--frames", "0:3", "-o", f"{out}/"]) == 0
+    stale = out / ".frame_000003.png.k1ll3d.png.tmp"  # what atomic_path leaves when killed
+    stale.write_bytes(b"\x89PNG half a frame")
+    other = out / ".frame_000011.png.sh4rd.png.tmp"  # another shard's frame, still being written
+    other.write_bytes(b"\x89PNG")
+    assert main(["render", str(scene), "--frames", "0:6", "--resume", "-o", f"{out}/"]) == 0
+    assert not stale.exists() and other.exists()

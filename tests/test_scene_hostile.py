@@ -100,3 +100,37 @@ def test_a_fifo_is_refused_at_once(tmp_path: Path, capsys: pytest.CaptureFixture
     done = subprocess.run([sys.executable, "-m", "viewer.cli", "import", str(opm), "-o",
                            str(tmp_path / "x.toml")], capture_output=True, text=True, timeout=60)
     assert done.returncode == 2 and "regular file" in done.stderr, done.stderr
+
+
+EARTH = '[center]\npreset = "earth"\n'
+
+
+def _names_problems(tmp_path: Path, *names: str) -> list[str]:
+    from viewer.errors import UserInputError
+    from viewer.scene import load_scene_text
+
+    text = EARTH + "".join(f'[[body]]\nname = "{n}"\na = "{7000 + 100 * k} km"\ne = 0\n'
+                           for k, n in enumerate(names))
+    try:
+        load_scene_text(text)
+    except UserInputError as err:
+        return err.problems
+    return []
+
+
+def test_a_body_may_not_take_the_central_bodys_name(tmp_path: Path) -> None:
+    from viewer.orbit import central_body
+
+    earth = central_body("earth").name
+    for name in (earth, f"  {earth} ", "center"):
+        problems = _names_problems(tmp_path, "Sat", name)
+        assert len(problems) == 1 and "body[1].name" in problems[0], problems
+    assert _names_problems(tmp_path, "Sat", "Moonlet") == []
+
+
+def test_names_equal_after_trimming_and_nfc_are_one_name(tmp_path: Path) -> None:
+    composed, decomposed = "C\u00e9res", "Ce\u0301res"  # the same name in two Unicode forms
+    assert composed != decomposed
+    for pair in ((composed, decomposed), ("Sat", " Sat "), ("Sat", "Sat\t")):
+        problems = _names_problems(tmp_path, *pair)
+        assert len(problems) == 1 and "already the name of body[0]" in problems[0], problems

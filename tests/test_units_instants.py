@@ -75,3 +75,23 @@ def test_utc_before_1960_is_refused_saying_what_to_write(text: str) -> None:
     assert f'"{text[:19]} TT"' in str(err.value)
     assert parse_epoch(text[:19] + " TT").scale == "TT"
     assert parse_epoch("1960-01-01T00:00:00 UTC").scale == "UTC"
+
+
+def test_the_editor_saves_an_epoch_only_when_the_instant_or_its_scale_changes(
+        tmp_path: Path) -> None:
+    from dataclasses import replace
+
+    from viewer.gui.scene_edits import scene_file_edits
+    from viewer.scene import load_scene
+
+    path = tmp_path / "leap.toml"
+    path.write_text(SCENE)
+    saved = load_scene(path)
+    origins = tuple(range(len(saved.bodies)))
+    e = saved.epoch
+    resplit = replace(saved, epoch=Epoch(e.jd1 + 0.25, e.jd2 - 0.25, e.scale))
+    assert resplit.epoch == saved.epoch
+    assert scene_file_edits(resplit, saved, origins, SCENE) == []  # the same instant
+    shown_in_tt = replace(saved, epoch=e.in_scale("TT"))
+    keys = [k for k, _ in scene_file_edits(shown_in_tt, saved, origins, SCENE)]
+    assert keys == ["scene.epoch"]  # written again, in TT; no body moves

@@ -4,8 +4,6 @@ from __future__ import annotations
 
 import argparse
 import importlib
-import json
-import sys
 from typing import Any
 
 #: Part name -> "module:function" returning a dict with "rows" (label, value, unit, note).
@@ -79,6 +77,7 @@ def run(args: argparse.Namespace) -> int:
             for verdict in res.get("verdicts", []):
                 print(f"  -> {verdict}")
     if args.json:
-        json.dump(results, sys.stdout, indent=1)
-        print()
+        from .options import write_json
+
+        write_json(results)
     return 0

@@ -7,10 +7,12 @@ so it starts fast and runs on machines without OpenGL.
 from __future__ import annotations
 
 import argparse
-import json
 import math
 import sys
 from typing import Any
+
+from ..units import format_eccentricity
+from .options import write_json
 
 EXAMPLES = """examples:
   perifocal check scenes/demo.toml
@@ -51,21 +53,10 @@ def run(args: argparse.Namespace) -> int:
     scene = load_scene(args.scene)
     summary = scene_summary(scene)
     if args.json:
-        sys.stdout.write(json.dumps(_nulls(summary), indent=1, allow_nan=False) + "\n")
+        write_json(summary)
     else:
         sys.stdout.write(format_summary(summary, args.scene))
     return 0
-
-
-def _nulls(x: Any) -> Any:
-    """NaN and infinities become None (JSON null), recursively."""
-    if isinstance(x, float):
-        return x if math.isfinite(x) else None
-    if isinstance(x, dict):
-        return {k: _nulls(v) for k, v in x.items()}
-    if isinstance(x, list):
-        return [_nulls(v) for v in x]
-    return x
 
 
 def _length(x: float | None, unit: str) -> str:
@@ -100,7 +91,7 @@ def format_summary(s: dict[str, Any], source: str) -> str:
         rows = [
             ("period", _time(b["period_s"])),
             ("a", _length(b["a_m"], unit) if b["a_m"] is not None else "- (parabola)"),
-            ("e", f"{b['e']:.6g}"),
+            ("e", format_eccentricity(b["e"])),
             ("i, raan, argp", ", ".join(f"{math.degrees(b[k]):.6g}" for k in
                                         ("i_rad", "raan_rad", "argp_rad")) + " deg"),
             ("periapsis", f"{_length(b['periapsis_m'], unit)}  (altitude "

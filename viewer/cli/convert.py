@@ -3,12 +3,13 @@
 from __future__ import annotations
 
 import argparse
-import json
 import math
 import sys
 from typing import Any
 
 from ..errors import UserInputError
+from ..units import format_eccentricity
+from .options import quantity, write_json
 
 EXAMPLES = """examples:
   state to elements (km and km/s), about Earth's catalogue GM:
@@ -58,36 +59,22 @@ def add_parser(sub: Any) -> None:
 
 def _gm(args: argparse.Namespace) -> float:
     from ..orbit import central_body
-    from ..units import QuantityError, parse_quantity
+    from ..units.limits import MIN_GM
 
     if args.center is not None:
         try:
             return central_body(args.center).gm_m3_s2
         except KeyError as err:
             raise UserInputError("--center", str(err).strip("'\"")) from None
-    try:
-        gm = parse_quantity(args.gm, "gm", "km3/s2" if args.unit == "km" else "m3/s2")
-    except QuantityError as err:
-        raise UserInputError("--gm", str(err)) from None
-    if gm <= 0:
-        raise UserInputError("--gm", f"GM must be positive, got {args.gm!r}")
+    gm = quantity(args.gm, "--gm", "gm", "km3/s2" if args.unit == "km" else "m3/s2")
+    if not gm >= MIN_GM:
+        raise UserInputError("--gm", f"GM must be positive (at least {MIN_GM:g} m3/s2), got "
+                             f"{args.gm!r}")
     return gm
 
 
 def _vector(flag: str, values: list[str], dimension: str, unit: str) -> list[float]:
-    from ..units import QuantityError, parse_quantity
-
-    try:
-        return [parse_quantity(_number_or_text(v), dimension, unit) for v in values]
-    except QuantityError as err:
-        raise UserInputError(flag, str(err)) from None
-
-
-def _number_or_text(v: str) -> float | str:
-    try:
-        return float(v)
-    except ValueError:
-        return v
+    return [quantity(v, flag, dimension, unit) for v in values]
 
 
 def run(args: argparse.Namespace) -> int:
@@ -111,8 +98,7 @@ def run(args: argparse.Namespace) -> int:
                              "and --e (and optionally --i --raan --argp --nu)")
     if args.json:
         out["caution"] = CAUTION
-        json.dump(_jsonable(out), sys.stdout, indent=1)
-        sys.stdout.write("\n")
+        write_json(out)
     else:
         sys.stdout.write(_table(out, args.unit) + "\n\n" + CAUTION + "\n")
     return 0
@@ -134,7 +120,6 @@ def _state_to_elements(args: argparse.Namespace, mu: float) -> dict[str, Any]:
 
 def _elements_to_state(args: argparse.Namespace, mu: float) -> dict[str, Any]:
     from ..orbit import AnomalyError, Elements, OrbitError, state_from_elements, true_from_mean
-    from ..units import QuantityError, parse_quantity
 
     length = "km" if args.unit == "km" else "m"
 
@@ -144,10 +129,7 @@ def _elements_to_state(args: argparse.Namespace, mu: float) -> dict[str, Any]:
             if default is None:
                 raise UserInputError(f"--{flag}", f"--{flag} is needed for elements to state")
             return default
-        try:
-            return parse_quantity(_number_or_text(raw), dimension, unit)
-        except QuantityError as err:
-            raise UserInputError(f"--{flag}", str(err)) from None
+        return quantity(raw, f"--{flag}", dimension, unit)
 
     e = q("e", "dimensionless", None)
     if e < 0:
@@ -207,17 +189,6 @@ def _describe(el: Any, mu: float, r: list[float], v: list[float]) -> dict[str, A
     }
 
 
-def _jsonable(d: dict[str, Any]) -> dict[str, Any]:
-    def fix(x: Any) -> Any:
-        if isinstance(x, float) and not math.isfinite(x):
-            return None
-        if isinstance(x, list):
-            return [fix(y) for y in x]
-        return x
-
-    return {k: fix(v) for k, v in d.items()}
-
-
 def _table(d: dict[str, Any], unit: str) -> str:
     km = unit == "km" or (d["periapsis_m"] > 1e5)
 
@@ -244,7 +215,7 @@ def _table(d: dict[str, Any], unit: str) -> str:
         ("r", "  ".join(length(x) for x in d["r_m"])),
         ("v", "  ".join(speed(x) for x in d["v_m_s"])),
         ("a  semi-major axis", length(d["a_m"])),
-        ("e  eccentricity", f"{d['e']:.9f}"),
+        ("e  eccentricity", format_eccentricity(d["e"], 9)),
         ("i  inclination", angle(d["i_rad"])),
         ("raan", angle(d["raan_rad"])),
         ("argp  argument of periapsis", angle(d["argp_rad"])),

@@ -82,10 +82,16 @@ def time_arg(text: str, flag: str, scene: Any) -> Any:
 
     try:
         if is_epoch_text(text):  # kept in its own scale, which the messages are written in
-            return parse_epoch(text)
-        return scene.epoch.plus_seconds(parse_scene_time(text, scene.epoch, scene.time_unit))
+            epoch = parse_epoch(text)
+        else:
+            epoch = scene.epoch.plus_seconds(parse_scene_time(text, scene.epoch,
+                                                              scene.time_unit))
     except (EpochError, QuantityError) as err:
         raise UserInputError(flag, f"{err}; {scene_time_hint()}") from None
+    if not epoch.in_calendar():
+        raise UserInputError(flag, f"{text!r} is outside years 1 to 9999 (epochs are written "
+                             "with four-digit years); give a nearer time")
+    return epoch
 
 
 def _label(epoch: Any, scale: str, flag: str) -> tuple[dt.datetime, str | None]:
@@ -187,18 +193,15 @@ def run(args: argparse.Namespace) -> int:
     from ..formats.kvn import creation_date_now
     from ..orbit import propagate, state_from_elements
     from ..scene import load_scene
-    from ..units import QuantityError, parse_quantity
     from . import CAUTION
+    from .options import quantity
 
     scene = load_scene(args.scene)
     claim_output(args.output, force=args.force, inputs=[args.scene])
     body = body_by_name(scene, args.body, "--body")
     start = time_arg(args.start, "--start", scene)
     stop = time_arg(args.stop, "--stop", scene)
-    try:
-        step_s = parse_quantity(args.step, "time", scene.time_unit)
-    except QuantityError as err:
-        raise UserInputError("--step", f"{err}; give a duration such as \"60 s\"") from None
+    step_s = quantity(args.step, "--step", "time", scene.time_unit)
     if not step_s >= 1e-3:
         raise UserInputError("--step", f"the step must be at least 1 ms (epochs are written to "
                              f"the millisecond); got {args.step!r}")

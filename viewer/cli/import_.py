@@ -267,14 +267,17 @@ def _check_loads(text: str, target: Path, name: str, el: Any, mu: float, src: st
 
 
 def _summary(scene: Any, name: str) -> list[str]:
+    from ..units import format_eccentricity
+
     body = scene.body(name)
     el = body.elements
     c = scene.center
     e = float(el.e)
     q = float(el.periapsis)
     rows = [f"  centre {c.name}, frame {scene.frame}, epoch {scene.epoch.iso(decimals=3)}",
-            f"  e = {e:.9g}, periapsis {q / 1e3:,.3f} km (altitude {(q - c.radius_m) / 1e3:,.3f} "
-            f"km), speed there {float(el.speed_periapsis) / 1e3:.6f} km/s"]
+            f"  e = {format_eccentricity(e, 9)}, periapsis {q / 1e3:,.3f} km (altitude "
+            f"{(q - c.radius_m) / 1e3:,.3f} km), speed there "
+            f"{float(el.speed_periapsis) / 1e3:.6f} km/s"]
     if e < 1.0:
         rows.append(f"  a = {float(el.a) / 1e3:,.3f} km, apoapsis {float(el.apoapsis) / 1e3:,.3f}"
                     f" km, period {float(el.period) / 3600:.6f} h")

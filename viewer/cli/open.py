@@ -85,6 +85,8 @@ def add_parser(sub: Any) -> None:
                    help="window size in pixels (default 1600x900)")
     p.add_argument("--screenshot", metavar="PNG",
                    help="with --quit-after: save the whole window as PNG, then exit")
+    p.add_argument("--force", action="store_true",
+                   help="--screenshot: replace an existing file (the old one is kept as NAME.bak)")
     p.add_argument("--quit-after", type=_count, metavar="N",
                    help="draw N frames, then exit 0 (for tests and the docs' screenshots)")
     p.add_argument("--ui-scale", type=_scale, metavar="S",
@@ -108,9 +110,13 @@ def run(args: argparse.Namespace) -> int:
         raise UserInputError("--screenshot", "needs --quit-after N (the frame to save)")
     if args.screenshot and not args.screenshot.lower().endswith(".png"):
         raise UserInputError("--screenshot", f"{args.screenshot!r}: the screenshot is a .png")
+    from ..fileio import claim_output
     from ..gui.editor import Editor
 
     editor = Editor.open(args.scene)
+    if args.screenshot:
+        claim_output(args.screenshot, force=args.force, inputs=[args.scene],
+                     flag="--screenshot")
     if not os.environ.get("DISPLAY") and not os.environ.get("WAYLAND_DISPLAY"):
         raise UserInputError("display", "no display (DISPLAY is not set): the viewer needs "
                              "a window; use 'perifocal render' for files instead")

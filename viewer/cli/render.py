@@ -229,14 +229,26 @@ def run(args: argparse.Namespace) -> int:
         todo = parse_frame_range(args.frames, scene.timeline.frame_count)
         if kind == "sequence":
             options = {"transparent": args.transparent, "bits": args.bits} if fmt == "png" else {}
+            settings = {"size": list(out_size), "format": fmt, **options,
+                        "projection": repr(spec), "scene_sha256": _digest(args.scene)}
             result = render_sequence(todo, frames.frame, Path(args.output), fmt,
-                                     resume=args.resume, **options)
+                                     resume=args.resume, size=out_size, settings=settings,
+                                     **options)
         else:
             result = render_video(todo, frames.frame, Path(args.output), out_size,
                                   scene.timeline.fps, args.quality)
         print(f"wrote {args.output} ({result.rendered} frames rendered"
               + (f", {result.skipped} already complete" if result.skipped else "") + ")")
     return 0
+
+
+def _digest(path: str) -> str:
+    """SHA-256 of the scene file: a frame depends on all of it."""
+    import hashlib
+
+    from ..fileio import read_regular_bytes
+
+    return hashlib.sha256(read_regular_bytes(path)).hexdigest()
 
 
 class _Frames:

@@ -5,7 +5,6 @@ and for open orbits v-infinity, turning angle and the asymptote's anomaly."""
 from __future__ import annotations
 
 import argparse
-import json
 import math
 import sys
 from typing import Any
@@ -52,12 +51,9 @@ def add_parser(sub: Any) -> None:
 
 
 def _angle(text: str, flag: str) -> float:
-    from ..units import QuantityError, parse_quantity
+    from .options import quantity
 
-    try:
-        return parse_quantity(text, "angle", "deg")
-    except QuantityError as err:
-        raise UserInputError(flag, str(err)) from None
+    return quantity(text, flag, "angle", "deg")
 
 
 #: Mission refusal fields -> the flag that gave the input.
@@ -111,23 +107,24 @@ def _duration(s: float | None) -> str:
 
 def run(args: argparse.Namespace) -> int:
     from ..scene import load_scene
-    from ..units import QuantityError, parse_quantity
+    from ..units import format_eccentricity
     from . import CAUTION
+    from .options import quantity, write_json
 
+    if args.nu is None and args.radius is None:
+        raise UserInputError("timing", "nothing to answer: give --nu FROM TO (a time of "
+                             "flight) or --radius R (when the body reaches it), or both")
     scene = load_scene(args.scene)
     nu = None if args.nu is None else (_angle(args.nu[0], "--nu"), _angle(args.nu[1], "--nu"))
     radius = None
     if args.radius is not None:
-        try:
-            radius = parse_quantity(args.radius, "length", scene.length_unit)
-        except QuantityError as err:
-            raise UserInputError("--radius", str(err)) from None
+        radius = quantity(args.radius, "--radius", "length", scene.length_unit)
     out = answers(scene, args.body, nu, radius)
     if args.json:
         out["caution"] = CAUTION
-        sys.stdout.write(json.dumps(out, indent=1) + "\n")
+        write_json(out)
         return 0
-    rows = [("body", f"{out['body']} (e = {out['e']:.6g})")]
+    rows = [("body", f"{out['body']} (e = {format_eccentricity(out['e'])})")]
     if "time_of_flight_s" in out:
         turns = out["full_turns"]
         nu0, nu1 = out["nu_from_rad"], out["nu_to_rad"]

@@ -5,7 +5,6 @@ phasing; optionally a new scene with the transfer orbit added as a body."""
 from __future__ import annotations
 
 import argparse
-import json
 import sys
 from pathlib import Path
 from typing import Any
@@ -72,18 +71,14 @@ def run(args: argparse.Namespace) -> int:
     from ..mission.quick import MissionRefused
     from ..mission.transfer import body_index, check_leg_names, plan_transfer
     from ..scene import load_scene
-    from ..units import QuantityError, parse_quantity
     from . import CAUTION
     from .ephemeris import time_arg
+    from .options import quantity, write_json
 
     scene = load_scene(args.scene)
     at = time_arg(args.at, "--at", scene) if args.at is not None else scene.epoch
-    via = None
-    if args.via is not None:
-        try:
-            via = parse_quantity(args.via, "length", scene.length_unit)
-        except QuantityError as err:
-            raise UserInputError("--via", str(err)) from None
+    via = None if args.via is None else quantity(args.via, "--via", "length",
+                                                 scene.length_unit)
     try:
         i = body_index(scene, args.from_body, "from")
         j = body_index(scene, args.to_body, "to")
@@ -100,8 +95,7 @@ def run(args: argparse.Namespace) -> int:
         _write(args, scene, plan, out)
     if args.json:
         out["caution"] = CAUTION
-        json.dump(out, sys.stdout, indent=1)
-        sys.stdout.write("\n")
+        write_json(out)
     else:
         sys.stdout.write(_table(out) + "\n\n" + CAUTION + "\n")
     return 0
@@ -140,6 +134,9 @@ def _write(args: argparse.Namespace, scene: Any, plan: Any, out: dict[str, Any])
     from ..scene import load_scene_text, read_scene_text
     from ..scene.writer import body_text
 
+    if not all(scene.epoch.plus_seconds(leg.epoch_offset_s).in_calendar() for leg in plan.legs):
+        raise UserInputError("-o", "a leg would start after year 9999, which a scene epoch "
+                             "cannot be written in; choose a smaller --via")
     target = claim_output(args.output, force=args.force, inputs=[args.scene])
     text = read_scene_text(args.scene)
     blocks = []

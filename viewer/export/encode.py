@@ -89,8 +89,14 @@ def write_still(path: Path, rgba: np.ndarray, fmt: str, **options: Any) -> None:
     atomic_write_bytes(path, encode_still(rgba, fmt, **options))
 
 
-def image_is_complete(path: Path) -> bool:
-    """True if ``path`` is a whole, decodable PNG or JPEG (for ``--resume``)."""
+def image_is_complete(path: Path, size: tuple[int, int] | None = None, fmt: str | None = None,
+                      bits: int = 8, transparent: bool = False) -> bool:
+    """True if ``path`` is a whole, decodable PNG or JPEG (for ``--resume``).
+
+    With ``size`` (and ``fmt``, ``bits``, ``transparent``), it must also be the image the
+    current settings make: that format, W x H pixels, that bit depth and alpha channel;
+    a frame rendered with other settings is not complete.
+    """
     try:
         data = path.read_bytes()
     except OSError:
@@ -98,16 +104,26 @@ def image_is_complete(path: Path) -> bool:
     if data.startswith(b"\x89PNG\r\n\x1a\n"):
         if not data.endswith(b"IEND\xaeB`\x82"):
             return False
+        kind = "png"
     elif data.startswith(b"\xff\xd8"):
         if not data.rstrip(b"\x00").endswith(b"\xff\xd9"):
             return False
+        kind = "jpg"
     else:
         return False
+    if fmt is not None and kind != fmt:
+        return False
+    if size is not None and kind == "png":
+        w, h = int.from_bytes(data[16:20], "big"), int.from_bytes(data[20:24], "big")
+        if (w, h) != tuple(size) or (data[24], data[25]) != (bits, 6 if transparent else 2):
+            return False
     from PIL import Image
 
     try:
         with Image.open(io.BytesIO(data)) as img:
             img.load()
+            if size is not None and img.size != tuple(size):
+                return False
     except Exception:  # any decoding failure means "render it again"
         return False
     return True

@@ -7,8 +7,10 @@ are numbered by absolute frame: ``frame_000040.png`` is frame 40 wherever it was
 
 from __future__ import annotations
 
+import contextlib
+import json
 import os
-from collections.abc import Callable
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from pathlib import Path
 from typing import TextIO
@@ -16,11 +18,13 @@ from typing import TextIO
 import numpy as np
 
 from ..errors import UserInputError
-from ..fileio import atomic_path, describe_os_error
+from ..fileio import atomic_path, atomic_write_bytes, describe_os_error
 from .encode import StillWriter, VideoWriter, image_is_complete
 from .progress import Progress
 
 FRAME_NAME = "frame_{:06d}.{}"
+#: The settings a sequence folder's frames were made with (for --resume).
+SETTINGS_NAME = ".perifocal-frames.json"
 
 
 def parse_frame_range(text: str | None, frame_count: int) -> range:
@@ -74,18 +78,68 @@ def prepare_folder(folder: Path) -> None:
         raise UserInputError(str(folder), "the output folder is not writable")
 
 
+def _settings_check(folder: Path, settings: Mapping[str, object], resume: bool) -> None:
+    """With ``resume``, refuse a folder whose frames were made with other settings (its
+    SETTINGS_NAME file says so); then record the current ones there."""
+    record = folder / SETTINGS_NAME
+    wanted = json.loads(json.dumps(dict(settings)))  # as it reads back (tuples -> lists)
+    try:
+        before = json.loads(record.read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        before = None
+    if before == wanted:
+        return
+    if resume:
+        if isinstance(before, dict):
+            changed = ", ".join(f"{k} {before.get(k)!r} -> {wanted.get(k)!r}"
+                                for k in sorted(set(before) | set(wanted))
+                                if before.get(k) != wanted.get(k))
+            raise UserInputError("--resume", f"the frames in {folder} were rendered with other "
+                                 f"settings ({changed}); resume with the same settings, or "
+                                 f"render without --resume (or into a new folder)")
+    try:
+        atomic_write_bytes(record, (json.dumps(wanted, indent=1) + "\n").encode("utf-8"))
+    except OSError as err:
+        raise UserInputError(str(folder), f"writing frames failed: "
+                             f"{describe_os_error(err)}") from None
+
+
+def _remove_stale_temporaries(folder: Path, frames: range, fmt: str) -> None:
+    """The temporary files of frames of ``frames`` that a killed render left behind (only
+    of these frames: another shard may be writing its own into the same folder)."""
+    for k in frames:
+        for tmp in folder.glob(f".{FRAME_NAME.format(k, fmt)}.*.tmp"):
+            with contextlib.suppress(OSError):
+                tmp.unlink()
+
+
 def render_sequence(frames: range, render: RenderFn, folder: Path, fmt: str = "png",
                     resume: bool = False, stream: TextIO | None = None,
+                    size: tuple[int, int] | None = None,
+                    settings: Mapping[str, object] | None = None,
                     **options: object) -> SequenceResult:
     """Render ``frames`` into ``folder`` as numbered stills; with ``resume``, frames whose
-    files are already whole are skipped and broken ones are rendered again."""
+    files are already whole are skipped and broken ones are rendered again.
+
+    With ``size``, a frame counts as whole only if it is the image these settings make
+    (format, size, bit depth, alpha); with ``settings`` (everything else a frame depends
+    on, e.g. the scene's digest), a resume into a folder made with others is refused.
+    Temporary files that a killed render left for these frames are removed on resume.
+    """
     prepare_folder(folder)
+    if settings is not None:
+        _settings_check(folder, settings, resume)
+    if resume:
+        _remove_stale_temporaries(folder, frames, fmt)
+    bits = int(options.get("bits", 8))  # type: ignore[call-overload]
+    transparent = bool(options.get("transparent", False))
     progress = Progress(len(frames), "frames", stream)
     try:
         with StillWriter() as writer:
             for k in frames:
                 path = frame_path(folder, k, fmt)
-                if resume and image_is_complete(path):
+                if resume and image_is_complete(path, size, fmt if size else None, bits,
+                                                transparent):
                     progress.advance(skipped=True)
                     continue
                 writer.submit(path, render(k), fmt, **options)

@@ -22,6 +22,7 @@ import numpy as np
 
 from ..errors import UserInputError
 from ..units import Epoch
+from ..units.limits import limit_problem
 from .kvn import (
     KvnLine,
     by_line,
@@ -67,6 +68,14 @@ for _k in COVARIANCE[1:]:
     UNITS[_k] = ("km**2", "km**2/s", "km**2/s**2")[_n_dot]
 
 _NUMERIC = set(UNITS)
+#: Keywords held to the limits every value obeys (viewer.units.limits): dimension and
+#: factor from the keyword's unit to SI.
+_LIMITED = {**{k: ("length", 1e3) for k in ("X", "Y", "Z", "SEMI_MAJOR_AXIS")},
+            **{k: ("speed", 1e3) for k in ("X_DOT", "Y_DOT", "Z_DOT")},
+            "ECCENTRICITY": ("dimensionless", 1.0), "GM": ("gm", 1e9),
+            **{k: ("angle", 0.017453292519943295) for k in (
+                "INCLINATION", "RA_OF_ASC_NODE", "ARG_OF_PERICENTER", "TRUE_ANOMALY",
+                "MEAN_ANOMALY")}}
 #: Frames that rotate with the Earth (CCSDS SANA reference-frame list): two-body
 #: propagation in them is wrong, so they are refused on import.
 ROTATING_FRAMES = ("ITRF", "ITRF-93", "ITRF-97", "ITRF2000", "ITRF2005", "ITRF2008",
@@ -238,6 +247,13 @@ def _build(values: dict[str, KvnLine], comments: list[Comment],
         if kw in _NUMERIC:
             check_unit(ln, UNITS[kw], problems)
             x = parse_number(ln, problems)
+            if x is not None and kw in _LIMITED:
+                dimension, factor = _LIMITED[kw]
+                too_large = limit_problem(x * factor, dimension)
+                if too_large is not None:
+                    problems.append(f"line {ln.number}: {kw} = {ln.value} [{UNITS[kw]}] "
+                                    f"{too_large}")
+                    continue
             if x is not None:
                 numbers[kw] = x
         elif ln.unit is not None and kw != "COV_REF_FRAME":

@@ -33,6 +33,7 @@ from ..orbit.flight import conic_warnings
 from ..orbit.transfer import Transfer, bi_elliptic, hohmann
 from ..scene.loader import free_color
 from ..scene.model import Body, BodyShow, Scene
+from ..units.limits import MAX_TIME_S, limit_problem
 from .quick import MissionRefused
 
 #: Largest eccentricity taken as circular, and the largest angle between the two orbit
@@ -148,6 +149,12 @@ def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hoh
             tr = hohmann(r1, r2, mu) if kind == "hohmann" else bi_elliptic(r1, rb, r2, mu)
     except (OrbitError, FloatingPointError) as err:
         raise MissionRefused("via" if kind == "bi-elliptic" else "transfer", str(err)) from None
+    tof = float(tr.time_of_flight_s)
+    if limit_problem(tof, "time") is not None:
+        raise MissionRefused("via" if kind == "bi-elliptic" else "transfer", (
+            f"the transfer would take {tof:.3g} s, beyond the {MAX_TIME_S:g} s every time is "
+            f"held to" + ("; choose a smaller intermediate radius" if kind == "bi-elliptic"
+                          else "")))
 
     now = dep.elements_at(departure_s)
     u0 = float(now.argp) + float(now.nu)

@@ -116,11 +116,11 @@ class Elements:
 
     @property
     def p(self) -> Any:
-        """Semi-latus rectum, m."""
+        """Semi-latus rectum a (1 - e)(1 + e), m (1 - e is exact near e = 1: no cancellation)."""
         e = np.asarray(self.e, dtype=np.float64)
         a = np.asarray(self.a, dtype=np.float64)
         with np.errstate(invalid="ignore"):
-            p = a * (1.0 - e * e)
+            p = a * ((1.0 - e) * (1.0 + e))
         if self.parabola_p is not None:
             p = np.where(e == 1.0, self.parabola_p, p)
         return _f(p)
@@ -145,7 +145,7 @@ class Elements:
         e = np.asarray(self.e, dtype=np.float64)
         a = np.abs(np.asarray(self.a, dtype=np.float64))
         with np.errstate(invalid="ignore"):  # inf * 0 for a parabola, replaced below
-            b = a * np.sqrt(np.abs(1.0 - e * e))
+            b = a * np.sqrt(np.abs((1.0 - e) * (1.0 + e)))
         return _f(np.where(e == 1.0, np.inf, b))
 
     @property
@@ -195,10 +195,14 @@ class Elements:
         return _f(np.asarray(self.p) / (1.0 + np.asarray(self.e) * np.cos(nu)))
 
     def speed_at(self, nu: ArrayLike) -> Any:
-        """Speed at true anomaly nu by vis-viva, v^2 = mu (2/r - 1/a), m/s."""
+        """Speed at true anomaly nu, m/s: vis-viva written as the sum of its radial and
+        transverse parts, v^2 = (mu/p) [(1 + e cos nu)^2 + (e sin nu)^2] (Curtis, eqs. 2.31
+        and 2.49), which has no cancellation where 2/r - 1/a would lose its digits
+        (apoapsis as e -> 1)."""
         mu = self._mu()
-        r = np.asarray(self.radius_at(nu))
-        return _f(np.sqrt(mu * (2.0 / r - 1.0 / np.asarray(self.a, dtype=np.float64))))
+        e = np.asarray(self.e, dtype=np.float64)
+        return _f(np.sqrt(mu / np.asarray(self.p)) * np.hypot(1.0 + e * np.cos(nu),
+                                                              e * np.sin(nu)))
 
     def flight_path_angle_at(self, nu: ArrayLike) -> Any:
         """Flight-path angle above the local horizontal, atan2(e sin nu, 1 + e cos nu), rad."""
@@ -207,15 +211,17 @@ class Elements:
 
     @property
     def speed_periapsis(self) -> Any:
-        """Speed at periapsis (vis-viva), m/s: the fastest point of the orbit."""
-        return self.speed_at(0.0)
+        """Speed at periapsis sqrt(mu/p) (1 + e), m/s: the fastest point of the orbit."""
+        e = np.asarray(self.e, dtype=np.float64)
+        return _f(np.sqrt(self._mu() / np.asarray(self.p)) * (1.0 + e))
 
     @property
     def speed_apoapsis(self) -> Any:
-        """Speed at apoapsis (vis-viva), m/s: the slowest point; NaN for e >= 1."""
+        """Speed at apoapsis sqrt(mu/p) (1 - e) = sqrt(mu (1 - e) / (a (1 + e))), m/s: the
+        slowest point; NaN for e >= 1. 1 - e is exact near e = 1, so no digit is lost."""
         e = np.asarray(self.e, dtype=np.float64)
         with np.errstate(invalid="ignore", divide="ignore"):
-            v = np.asarray(self.speed_at(np.pi))
+            v = np.sqrt(self._mu() / np.asarray(self.p)) * (1.0 - e)
         return _f(np.where(e < 1.0, v, np.nan))
 
     @property

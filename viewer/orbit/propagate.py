@@ -98,13 +98,25 @@ def _propagate_flat(r0: Floats, v0: Floats, mu: float, dt: Floats) -> tuple[Floa
         with np.errstate(divide="ignore"):
             guess = np.sqrt(p) * 2.0 / np.tan(2.0 * w)
         chi[par] = np.where(np.isfinite(guess), guess, 0.0)
+    # A bracket for chi: dchi/dt = sqrt(mu)/r and r >= periapsis q = p/(1 + e), so chi lies
+    # between 0 and sqrt(mu) dt / q. Newton steps that leave it are replaced by bisection,
+    # so the iteration converges from any guess (the time equation increases with chi).
+    p_h = h * h / mu
+    q = p_h / (1.0 + np.sqrt(np.maximum(1.0 - p_h * alpha, 0.0)))
+    reach = sqmu * dt / q * (1.0 + 1e-9)
+    lo, hi = np.minimum(reach, 0.0) - 1e-12, np.maximum(reach, 0.0) + 1e-12
+    chi = np.clip(chi, lo, hi)
     todo = np.ones(dt.shape, dtype=bool)
     for _ in range(200):
         psi = chi * chi * alpha
         c2, c3 = stumpff_c2_c3(psi)
         r = chi * chi * c2 + rv / sqmu * chi * (1.0 - psi * c3) + r0n * (1.0 - psi * c2)
         f = sqmu * dt - chi**3 * c3 - rv / sqmu * chi * chi * c2 - r0n * chi * (1.0 - psi * c3)
-        step = f / r
+        lo = np.where(f > 0, chi, lo)
+        hi = np.where(f < 0, chi, hi)
+        newton = chi + f / r
+        inside = (newton > lo) & (newton < hi)
+        step = np.where(inside, newton, 0.5 * (lo + hi)) - chi
         chi = np.where(todo, chi + step, chi)
         todo = todo & (np.abs(step) > 1e-14 * np.abs(chi) + 1e-12)
         if not np.any(todo):

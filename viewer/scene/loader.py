@@ -43,6 +43,7 @@ from .model import (
     Scene,
     Sweep,
     Timeline,
+    name_key,
 )
 from .population import TableError, generate_belt, read_csv, read_npy, to_elements
 from .report import orbit_warnings
@@ -357,8 +358,13 @@ class _Loader:
         self.center = center
         parsed: list[_RawBody] = []
         names: dict[str, int] = {}
+        # Names the camera's target already means: "center" and the central body's own.
+        taken = {name_key("center"): 'the word "center" (the camera\'s name for the central '
+                                     'body)'}
+        if center is not None:
+            taken[name_key(center.name)] = f'the central body\'s name ("{center.name}")'
         for k, t in enumerate(raw):
-            b = self._raw_body(k, t, mu, names)
+            b = self._raw_body(k, t, mu, names, taken)
             if b is not None:
                 parsed.append(b)
         if center is None:
@@ -372,8 +378,8 @@ class _Loader:
                 b.nu = float(nu)
         return tuple(self._finish_body(b, center) for b in parsed)
 
-    def _raw_body(self, k: int, t: Any, mu: float | None,
-                  names: dict[str, int]) -> _RawBody | None:
+    def _raw_body(self, k: int, t: Any, mu: float | None, names: dict[str, int],
+                  taken: dict[str, str]) -> _RawBody | None:
         r = self.r
         path = f"body[{k}]"
         if not isinstance(t, dict):
@@ -388,10 +394,15 @@ class _Loader:
             r.problem(path, 'missing name: every body needs name = "..."')
         name = r.string(t, "name", path, nonempty=True, max_len=200)
         if name is not None:
-            if name in names:
-                r.problem(f"{path}.name", f'"{name}" is already the name of body[{names[name]}]; '
+            key = name_key(name)
+            if key in names:
+                r.problem(f"{path}.name", f'"{name}" is already the name of body[{names[key]}] '
+                          "(names equal after trimming spaces and Unicode NFC are the same); "
                           "names must be unique (the camera and the editor find bodies by name)")
-            names.setdefault(name, k)
+            elif key in taken:
+                r.problem(f"{path}.name", f'"{name}" is {taken[key]}; give the body another '
+                          "name (the camera's target would be ambiguous)")
+            names.setdefault(key, k)
             self.body_names.append(name)
         gm_body = r.quantity(t, "gm", path, "gm")
         if gm_body is not None and not gm_body >= 0.0:
@@ -913,9 +924,12 @@ class _Loader:
             r.problem("camera.target", f'target is "center", a body\'s name or [x, y, z]; got '
                       f"a {type(v).__name__}")
             return "center"
-        if v == "center" or (center is not None and v == center.name):
+        if v == "center" or (center is not None and name_key(v) == name_key(center.name)):
             return "center"
         names = self.body_names
+        by_key = {name_key(n): n for n in names}
+        if name_key(v) in by_key:
+            return by_key[name_key(v)]
         if v not in names:
             from .values import suggest
 

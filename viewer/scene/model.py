@@ -7,6 +7,7 @@ Colours are sRGB triples of floats in [0, 1].
 
 from __future__ import annotations
 
+import unicodedata
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any
@@ -22,6 +23,13 @@ RGB = tuple[float, float, float]
 #: The scene epoch when a file gives none (J2000.0 in TDB).
 DEFAULT_EPOCH_TEXT = "2000-01-01T12:00:00 TDB"
 
+
+
+def name_key(name: str) -> str:
+    """What makes two names the same name: equal after surrounding spaces are dropped and
+    Unicode is normalised (NFC), so "Ceres", " Ceres " and a decomposed "Ce\u0301res" spelling
+    of an accented name cannot be two bodies."""
+    return unicodedata.normalize("NFC", name.strip())
 
 @dataclass(frozen=True)
 class BodyShow:
@@ -274,9 +282,10 @@ class Scene:
     warnings: tuple[str, ...] = ()
 
     def body(self, name: str) -> Body:
-        """The body called ``name``; KeyError if there is none."""
+        """The body called ``name`` (as ``name_key`` compares names); KeyError if none."""
+        key = name_key(name)
         for b in self.bodies:
-            if b.name == name:
+            if name_key(b.name) == key:
                 return b
         raise KeyError(name)
 

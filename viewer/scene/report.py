@@ -14,6 +14,7 @@ from typing import Any
 
 from ..orbit import Elements
 from ..orbit.flight import conic_warnings
+from ..units import format_eccentricity
 from .model import Body, Center, Scene
 
 #: Above this eccentricity (and below 1) an orbit is called nearly parabolic.
@@ -43,8 +44,9 @@ def orbit_warnings(el: Elements, center: Center) -> list[str]:
     out = conic_warnings(el, center.radius_m, center.atmosphere_m, center.soi_radius_m)
     e = float(el.e)
     if NEARLY_PARABOLIC_E < e < 1.0:
-        out.append(f"nearly parabolic: e = {e:.6g} is above {NEARLY_PARABOLIC_E}, so a small "
-                   f"change of e moves the apoapsis and the period a lot")
+        out.append(f"nearly parabolic: e = {format_eccentricity(e)} is above "
+                   f"{NEARLY_PARABOLIC_E}, so a small change of e moves the apoapsis and the "
+                   f"period a lot")
     if float(el.i) > math.pi / 2:
         out.append(f"retrograde: i = {math.degrees(float(el.i)):.6g} deg is above 90 deg")
     return out

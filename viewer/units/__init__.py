@@ -11,12 +11,14 @@ from .epoch import Epoch, EpochError, parse_epoch
 from .quantity import (
     DIMENSIONS,
     QuantityError,
+    format_eccentricity,
     format_quantity,
     parse_quantity,
     unit_factor,
 )
 
 __all__ = [
-    "DIMENSIONS", "Epoch", "EpochError", "QuantityError", "format_quantity", "parse_epoch",
+    "DIMENSIONS", "Epoch", "EpochError", "QuantityError", "format_eccentricity",
+    "format_quantity", "parse_epoch",
     "parse_quantity", "unit_factor",
 ]

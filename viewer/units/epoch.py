@@ -30,6 +30,10 @@ _ISO = re.compile(
 FIRST_UTC_YEAR = 1960
 
 
+#: Julian dates of 0001-01-01T00:00 and 10000-01-01T00:00 (proleptic Gregorian; erfa.cal2jd).
+CALENDAR_JD = (1721425.5, 5373484.5)
+
+
 class EpochError(ValueError):
     """Text that is not an ISO 8601 epoch with a known time scale."""
 
@@ -99,6 +103,8 @@ class Epoch:
     def iso(self, scale: str | None = None, decimals: int = 0) -> str:
         """ISO 8601 text "YYYY-MM-DDThh:mm:ss[.fff] SCALE" in ``scale`` (default: its own)."""
         scale = (scale or self.scale).upper()
+        if not self.in_calendar():
+            return f"JD {self.jd1 + self.jd2:.9g} TDB"  # no four-digit year to show it in
         erfa = _erfa()
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", erfa.ErfaWarning)
@@ -108,6 +114,11 @@ class Epoch:
         if decimals > 0:
             text += f".{int(f):0{decimals}d}"
         return f"{text} {scale}"
+
+    def in_calendar(self) -> bool:
+        """Whether the instant falls in years 1 to 9999 (ISO 8601 and CCSDS four-digit
+        years), where ``iso`` can write it as a date."""
+        return CALENDAR_JD[0] <= self.jd1 + self.jd2 < CALENDAR_JD[1]
 
     def __str__(self) -> str:
         return self.iso()

@@ -9,7 +9,8 @@ from __future__ import annotations
 import re
 
 from .epoch import Epoch, EpochError, parse_epoch
-from .quantity import QuantityError, parse_quantity
+from .limits import limit_problem, parse_limited
+from .quantity import QuantityError
 
 #: The largest image side in pixels (the renderer's framebuffer limit on llvmpipe).
 MAX_SIDE_PX = 16384
@@ -43,15 +44,16 @@ def is_epoch_text(value: object) -> bool:
 
 def parse_scene_time(value: object, scene_epoch: Epoch, time_unit: str) -> float:
     """Seconds from ``scene_epoch``: an epoch's offset from it, or an offset as a time
-    (a bare number in ``time_unit``). Raises EpochError or QuantityError."""
+    (a bare number in ``time_unit``), held to the time limit scene files have
+    (``viewer.units.limits``). Raises EpochError or QuantityError."""
     if is_epoch_text(value):
-        return parse_epoch(value).seconds_since(scene_epoch)
-    if isinstance(value, str):
-        try:
-            value = float(value)
-        except ValueError:
-            pass
-    return parse_quantity(value, "time", time_unit)
+        t_s = parse_epoch(value).seconds_since(scene_epoch)
+        too_large = limit_problem(t_s, "time")
+        if too_large is not None:
+            raise QuantityError(f"{value!r} is {t_s:.3g} s from the scene epoch, which "
+                                f"{too_large}")
+        return t_s
+    return parse_limited(value, "time", time_unit)
 
 
 def scene_time_hint() -> str:

@@ -18,7 +18,7 @@ class QuantityError(ValueError):
 
 
 _LENGTH = {"m": 1.0, "km": 1e3, "Mm": 1e6, "Gm": 1e9, "au": AU_M}
-_TIME = {"s": 1.0, "min": 60.0, "h": 3600.0, "d": DAY_S, "yr": JULIAN_YEAR_S}
+_TIME = {"s": 1.0, "ms": 1e-3, "min": 60.0, "h": 3600.0, "d": DAY_S, "yr": JULIAN_YEAR_S}
 _ANGLE = {"rad": 1.0, "deg": math.pi / 180.0, "arcmin": math.pi / 10800.0,
           "arcsec": math.pi / 648000.0}
 
@@ -135,3 +135,12 @@ def format_quantity(value_si: float, dimension: str, unit: str, digits: int = 6)
     if not math.isfinite(value_si):
         return "-"
     return f"{value_si / unit_factor(unit, dimension):.{digits}g} {unit}"
+
+
+def format_eccentricity(e: float, digits: int = 6) -> str:
+    """e with ``digits`` significant digits, but never rounded onto 1 (an ellipse near
+    e = 1 is not a parabola): then every digit up to the one that differs from 1."""
+    text = f"{e:.{digits}g}"
+    if float(text) == 1.0 and e != 1.0:
+        return repr(float(e))  # the shortest text that reads back as e
+    return text
