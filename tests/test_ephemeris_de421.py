@@ -169,3 +169,26 @@ def test_ephemeris_outside_the_span_says_the_span(tmp_path, capsys):
                  "-o", str(tmp_path / "m.oem")]) == 2
     assert "1900-01-01 to 2050-12-31" in capsys.readouterr().err
     assert not (tmp_path / "m.oem").exists()
+
+
+def test_a_chosen_osculating_epoch_fixes_the_drawn_conic(tmp_path):
+    text = ('[scene]\nepoch = "2026-01-01T00:00:00 TDB"\n[center]\npreset = "sun"\n'
+            '[[body]]\nname = "Mars"\nephemeris = "DE421"\n{extra}\n')
+    fixed = load_scene_text(text.format(extra='osculating_epoch = "2030-01-01T00:00:00 TDB"'))
+    mars = fixed.body("Mars")
+    t_2030 = 1461 * 86400.0  # 2026-01-01 to 2030-01-01: 4 years with one leap day
+    expected = mars.track.elements_at(t_2030)
+    for t_s in (0.0, 500 * 86400.0):
+        drawn = fixed.osculating(t_s).body("Mars").elements
+        assert float(drawn.a) == pytest.approx(float(expected.a), rel=1e-12)
+        assert float(drawn.argp) == pytest.approx(float(expected.argp), abs=1e-12)
+        # The marker still follows the ephemeris at the displayed time.
+        r, _ = state_from_elements(fixed.body("Mars").elements_at(t_s))
+        np.testing.assert_allclose(r, mars.track.state(t_s)[0], atol=1.0)
+    from viewer.scene import dump_scene
+
+    again = load_scene_text(dump_scene(fixed))
+    assert again.body("Mars").track.osculate_s == pytest.approx(t_2030, abs=1e-3)
+    with pytest.raises(Exception, match="osculating_epoch"):
+        load_scene_text('[center]\npreset = "sun"\n[[body]]\nname = "X"\na = "1 au"\n'
+                        'osculating_epoch = "10 d"\n')

@@ -149,3 +149,27 @@ def test_bad_input_is_one_clear_line_and_exit_2(capsys, argv, flag):
     assert main(["porkchop", str(SCENE), *argv]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert flag in err[0] and len(err) == 2, err
+
+
+def test_the_chosen_lambert_transfer_is_saved_and_flies_from_earth_to_mars(tmp_path, capsys):
+    target = tmp_path / "mars2026.toml"
+    assert main(["porkchop", str(SCENE), "--from", "Earth", "--to", "Mars", *SEASON,
+                 "--steps", "40", "40", "--save", str(target), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    scene = load_scene(target)
+    leg = scene.body(out["saved_body"])
+    best = out["best_total"]
+    t_dep = leg.epoch_offset_s  # the departure, to the microsecond
+    assert t_dep == pytest.approx(parse_epoch(best["departure"]).seconds_since(scene.epoch),
+                                  abs=0.5)
+    t_arr = t_dep + best["tof_days"] * DAY
+    from viewer.orbit import state_from_elements
+
+    # The saved conic, propagated by the scene's own two-body motion, leaves the Earth's
+    # DE421 position and meets Mars's DE421 position (to 1 km after 310 days).
+    for t, body, tol in ((t_dep, "Earth", 1.0), (t_arr, "Mars", 1e3)):
+        r = state_from_elements(leg.elements_at(t))[0]
+        assert np.linalg.norm(r - scene.body(body).track.state(t)[0]) < tol, body
+    assert main(["porkchop", str(SCENE), "--from", "Earth", "--to", "Mars", *SEASON,
+                 "--steps", "10", "10", "--save", str(target)]) == 2  # exists, no --force
+    assert "exists" in capsys.readouterr().err

@@ -140,6 +140,8 @@ class Track:
     frame: str
     epoch_jd: tuple[float, float]
     mu: float
+    #: Scene time whose osculating conic is drawn (None: the displayed time).
+    osculate_s: float | None = None
 
     @property
     def source(self) -> str:

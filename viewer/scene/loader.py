@@ -380,6 +380,9 @@ class _Loader:
             gm_body = track[1] if gm_body is None else gm_body
             size = (float(track[2].a), float(track[2].e), None)
         elif not follows:
+            if "osculating_epoch" in t:
+                r.problem(f"{path}.osculating_epoch", "osculating_epoch is for a body that "
+                          'follows an ephemeris (ephemeris = "DE421"); remove it')
             size = self._size(t, path, None if mu is None else mu + (gm_body or 0.0))
         i = r.quantity(t, "i", path, "angle")
         if i is not None and not -1e-12 <= i <= math.pi * (1 + 1e-12):
@@ -489,6 +492,7 @@ class _Loader:
             r.problem("scene.frame", f"frame {self.frame!r}: a body that follows "
                       f"{source.upper()} needs frame = one of "
                       f"{', '.join(EQUATORIAL_FRAMES + ECLIPTIC_FRAMES)}")
+        osculate_s = r.time_or_epoch(t, "osculating_epoch", path)
         if r.failed_since(m0) or target is None or r.epoch is None:
             return None
         if self.kernel is None:
@@ -496,12 +500,18 @@ class _Loader:
         gm_body = self.kernel.gm_m3_s2(target)
         track = Track(kernel=self.kernel, target=target, centre=str(center.preset),
                       frame=self.frame.upper(), epoch_jd=(r.epoch.jd1, r.epoch.jd2),
-                      mu=center.gm_m3_s2 + gm_body)
+                      mu=center.gm_m3_s2 + gm_body, osculate_s=osculate_s)
         try:
             osc = track.elements_at(0.0)
         except UserInputError as err:
             r.problem("scene.epoch", f"{err.problems[0]} (body {name!r} follows it)")
             return None
+        if osculate_s is not None:
+            try:
+                track.elements_at(osculate_s)
+            except UserInputError as err:
+                r.problem(f"{path}.osculating_epoch", err.problems[0])
+                return None
         return track, gm_body, osc
 
     def _size(self, t: dict[str, Any], path: str,

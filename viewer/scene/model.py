@@ -108,11 +108,12 @@ class Body:
         return self.elements.after(t_s - self.epoch_offset_s)
 
     def osculating(self, t_s: float) -> Body:
-        """This body with ``elements`` the osculating conic at scene time t_s (itself when
-        it does not follow an ephemeris)."""
+        """This body with ``elements`` the osculating conic at scene time t_s, or at its
+        chosen ``osculating_epoch`` (itself when it does not follow an ephemeris)."""
         if self.track is None:
             return self
-        return replace(self, elements=self.track.elements_at(t_s), epoch_offset_s=t_s)
+        at = t_s if self.track.osculate_s is None else self.track.osculate_s
+        return replace(self, elements=self.track.elements_at(at), epoch_offset_s=at)
 
 
 @dataclass(frozen=True)

@@ -369,6 +369,9 @@ def dump_scene(scene: Scene) -> str:
             t["ephemeris"] = b.track.source
             if b.name.strip().lower() != b.track.target:
                 t["ephemeris_body"] = b.track.target
+            if b.track.osculate_s is not None:
+                t["osculating_epoch"] = scene.epoch.plus_seconds(b.track.osculate_s).iso(
+                    decimals=6)
         elif e == 1.0:
             t["periapsis"] = _q(float(el.periapsis), lu, lf)
         else:

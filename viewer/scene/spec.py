@@ -159,6 +159,8 @@ BODY = Key("body", "tables", "one orbiting body per [[body]] table", keys=(
         "none", EPHEMERIDES),
     Key("ephemeris_body", "choice", "which body of the ephemeris it is",
         "the body's name in lower case", TARGETS),
+    Key("osculating_epoch", "time_or_epoch", "a body that follows an ephemeris: draw the "
+        "osculating conic of this time", "the displayed time"),
     SHOW,
     SWEEP,
 ))
