@@ -192,3 +192,18 @@ def test_a_chosen_osculating_epoch_fixes_the_drawn_conic(tmp_path):
     with pytest.raises(Exception, match="osculating_epoch"):
         load_scene_text('[center]\npreset = "sun"\n[[body]]\nname = "X"\na = "1 au"\n'
                         'osculating_epoch = "10 d"\n')
+
+
+def test_moving_the_scene_epoch_keeps_ephemeris_bodies_and_flights_at_their_dates():
+    from viewer.gui.editor import Editor
+
+    scene = load_scene(SCENES / "solar-system.toml")
+    ed = Editor(scene)
+    t_before = 100 * 86400.0
+    r_before = scene.body("Mars").track.state(t_before)[0]
+    assert ed.set_epoch("2026-03-01T00:00:00 TDB")
+    shift = 59 * 86400.0  # 2026-01-01 to 2026-03-01
+    moved = ed.scene.body("Mars")
+    np.testing.assert_allclose(moved.track.state(t_before - shift)[0], r_before, atol=1e-3)
+    body = scene.bodies[0].with_epoch_moved(0.0)
+    assert body == scene.bodies[0]

@@ -163,6 +163,7 @@ def test_the_chosen_lambert_transfer_is_saved_and_flies_from_earth_to_mars(tmp_p
     assert t_dep == pytest.approx(parse_epoch(best["departure"]).seconds_since(scene.epoch),
                                   abs=0.5)
     t_arr = t_dep + best["tof_days"] * DAY
+    assert leg.flight_s == pytest.approx((t_dep, t_arr), abs=1e-3)  # only the flown arc
     from viewer.orbit import state_from_elements
 
     # The saved conic, propagated by the scene's own two-body motion, leaves the Earth's

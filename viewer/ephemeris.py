@@ -147,6 +147,14 @@ class Track:
     def source(self) -> str:
         return self.kernel.name
 
+    def with_epoch_moved(self, shift_s: float) -> Track:
+        """The same track for a scene epoch ``shift_s`` seconds later."""
+        from dataclasses import replace
+
+        osc = None if self.osculate_s is None else self.osculate_s - shift_s
+        return replace(self, epoch_jd=(self.epoch_jd[0], self.epoch_jd[1] + shift_s / 86400.0),
+                       osculate_s=osc)
+
     def span_s(self) -> tuple[float, float]:
         """(first, last) scene time covered, TDB seconds from the scene epoch."""
         e = self.epoch_jd[0] + self.epoch_jd[1]

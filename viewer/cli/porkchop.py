@@ -245,10 +245,13 @@ def _save(args: argparse.Namespace, scene: Any, dep: Any, arr: Any, g: Any,
         f"departing {depart.iso('TDB', 3)}, arriving {arrive.iso('TDB', 3)} "
         f"({(t_arr - t_dep) / 86400.0:.3f} d); C3 {g.c3_m2_s2[i, j] / 1e6:.4f} km2/s2, "
         f"arrival v_inf {g.vinf_arr_m_s[i, j] / 1e3:.4f} km/s.",
-        "Only the arc from departure to arrival is flown. Two-body conic: sanity checks only.",
+        "Only the arc from departure to arrival is flown (and drawn). Two-body conic: "
+        "sanity checks only.",
     ]
     text = read_scene_text(args.scene)
     block = body_toml(name, el, depart.iso("TDB", 6), comments, show="{ apsides = true }")
+    block += (f'flight = {{ start = "{depart.iso("TDB", 6)}", '
+              f'end = "{arrive.iso("TDB", 6)}" }}\n')
     new_text = text + ("" if text.endswith("\n") else "\n") + "\n" + block
     load_scene_text(new_text, source=target, base_dir=Path(args.scene).parent)
     write_atomic(target, new_text)

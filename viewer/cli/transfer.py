@@ -288,10 +288,11 @@ def _write(args: argparse.Namespace, scene: Any, tr: Any, geometry: dict[str, An
             f"{after['time_s']:.3f} s: dv {after['dv_m_s'] / 1e3:+.6f} km/s",
             f"total dv {out['dv_total_m_s'] / 1e3:.6f} km/s, time of flight "
             f"{out['time_of_flight_s'] / 3600:.6f} h. Only the half ellipse between the "
-            f"burns is flown.",
+            f"burns is flown (and drawn).",
         ]
-        blocks.append(body_toml(leg_name, el, epoch, comments,
-                                show="{ apsides = true }"))
+        end = scene.epoch.plus_seconds(after["time_s"]).iso(decimals=6)
+        blocks.append(body_toml(leg_name, el, epoch, comments, show="{ apsides = true }")
+                      + f'flight = {{ start = "{epoch}", end = "{end}" }}\n')
     new_text = text + ("" if text.endswith("\n") else "\n") + "\n" + "\n".join(blocks)
     load_scene_text(new_text, source=target, base_dir=Path(args.scene).parent)
     write_atomic(target, new_text)

@@ -198,6 +198,7 @@ class _RawBody:
     limit: float | None
     gm: float = 0.0
     track: Any = None
+    flight: tuple[float, float] | None = None
 
 
 class _Loader:
@@ -451,7 +452,31 @@ class _Loader:
         return _RawBody(k, name or "", a, e, parabola_p, max(0.0, min(i or 0.0, math.pi)),
                         (raan or 0.0) % TWO_PI, (argp or 0.0) % TWO_PI, M_value, nu_value, offset,
                         t, path, color, line_width, radius, flags, sweep, limit,
-                        gm_body or 0.0, None if track is None else track[0])
+                        gm_body or 0.0, None if track is None else track[0],
+                        self._flight(t, path))
+
+    def _flight(self, t: dict[str, Any], path: str) -> tuple[float, float] | None:
+        """(start, end) scene times of a [[body]] flight table, or None."""
+        r = self.r
+        if "flight" not in t:
+            return None
+        ft = r.table(t, spec.FLIGHT, path)
+        if ft is None:
+            return None
+        where = f"{path}.flight"
+        missing = [k for k in ("start", "end") if k not in ft]
+        if missing:
+            r.problem(where, f"missing {' and '.join(missing)}: a flight needs start and end "
+                      '(e.g. flight = { start = "0 d", end = "259 d" })')
+            return None
+        start = r.time_or_epoch(ft, "start", where)
+        end = r.time_or_epoch(ft, "end", where)
+        if start is None or end is None:
+            return None
+        if not end > start:
+            r.problem(f"{where}.end", "the end of the flight must come after its start")
+            return None
+        return start, end
 
     def _track(self, t: dict[str, Any], path: str, name: str | None) -> Any:
         """(Track, GM of the body, osculating Elements at the scene epoch) of a body that
@@ -638,7 +663,8 @@ class _Loader:
         return Body(name=b.name, elements=el, epoch_offset_s=b.epoch_offset_s, color=b.color,
                     line_width_px=2.0 if b.line_width is None else b.line_width, show=show,
                     sweep=sweep, limit_radius_m=limit, radius_m=b.radius,
-                    warnings=tuple(warnings), gm_m3_s2=b.gm, track=b.track)
+                    warnings=tuple(warnings), gm_m3_s2=b.gm, track=b.track,
+                    flight_s=b.flight)
 
     def _sweep_values(self, t: dict[str, Any], path: str) -> dict[str, Any] | None:
         """The sweep table's own values (None if absent or wrong); defaults come later."""

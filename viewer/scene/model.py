@@ -99,6 +99,22 @@ class Body:
     #: Set when the body follows an ephemeris: its position at any time comes from there,
     #: and ``elements`` is the osculating conic at the scene epoch.
     track: Track | None = None
+    #: A trajectory flown only between two scene times (s): its orbit is drawn from the
+    #: first to the second, and its marker and label only in between.
+    flight_s: tuple[float, float] | None = None
+
+    def with_epoch_moved(self, shift_s: float) -> Body:
+        """This body, unchanged in time, for a scene epoch moved ``shift_s`` seconds later:
+        every scene time it holds (its epoch, flight, ephemeris anchor) is re-counted."""
+        flight = None if self.flight_s is None else (self.flight_s[0] - shift_s,
+                                                     self.flight_s[1] - shift_s)
+        track = None if self.track is None else self.track.with_epoch_moved(shift_s)
+        return replace(self, epoch_offset_s=self.epoch_offset_s - shift_s, flight_s=flight,
+                       track=track)
+
+    def in_flight(self, t_s: float) -> bool:
+        """False outside the body's flight (always True for a body without one)."""
+        return self.flight_s is None or self.flight_s[0] <= t_s <= self.flight_s[1]
 
     def elements_at(self, t_s: float) -> Elements:
         """The body's elements (its true anomaly) at scene time t_s; for a body that

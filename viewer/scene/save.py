@@ -397,6 +397,9 @@ def dump_scene(scene: Scene) -> str:
             show["sweep"] = b.show.sweep
         if show:
             t["show"] = _inline(show)
+        if b.flight_s is not None:
+            t["flight"] = _inline({"start": scene.epoch.plus_seconds(b.flight_s[0]).iso(
+                decimals=6), "end": scene.epoch.plus_seconds(b.flight_s[1]).iso(decimals=6)})
         if b.sweep is not None:
             sw = b.sweep
             t["sweep"] = _inline({"start": f"{sw.start_s!r} s", "interval": f"{sw.interval_s!r} s",

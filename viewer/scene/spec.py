@@ -130,6 +130,11 @@ SWEEP = Key("sweep", "table", "equal-time sectors from the occupied focus", keys
     Key("show_area", "bool", "print each sector's area beside it", "false"),
 ))
 
+FLIGHT = Key("flight", "table", "a trajectory flown only between two times", keys=(
+    Key("start", "time_or_epoch", "the departure", required=True),
+    Key("end", "time_or_epoch", "the arrival, after the departure", required=True),
+))
+
 SIZE_KEYS = ("a", "period", "periapsis", "apoapsis")
 ANOMALY_KEYS = ("M", "nu", "tp")
 
@@ -163,6 +168,7 @@ BODY = Key("body", "tables", "one orbiting body per [[body]] table", keys=(
         "osculating conic of this time", "the displayed time"),
     SHOW,
     SWEEP,
+    FLIGHT,
 ))
 
 CAMERA = Key("camera", "table", "how the scene is looked at", keys=(
