@@ -207,3 +207,20 @@ def test_moving_the_scene_epoch_keeps_ephemeris_bodies_and_flights_at_their_date
     np.testing.assert_allclose(moved.track.state(t_before - shift)[0], r_before, atol=1e-3)
     body = scene.bodies[0].with_epoch_moved(0.0)
     assert body == scene.bodies[0]
+
+
+def test_nothing_is_fetched_at_run_time(monkeypatch, tmp_path, capsys):
+    # With every socket refused, the real sky still loads, checks and makes a pork-chop
+    # grid: the kernel comes from the installed de421 package.
+    import socket
+
+    def refuse(*_args, **_kwargs):
+        raise OSError("network use during a run")
+
+    monkeypatch.setattr(socket.socket, "connect", refuse)
+    monkeypatch.setattr(socket, "create_connection", refuse)
+    assert main(["check", str(SCENES / "solar-system.toml")]) == 0
+    assert main(["porkchop", str(SCENES / "solar-system.toml"), "--from", "Earth", "--to",
+                 "Mars", "--depart", "2026-09-01", "2027-01-31", "--arrive", "2027-05-01",
+                 "2028-03-01", "--steps", "20", "20", "--json"]) == 0
+    capsys.readouterr()

@@ -63,7 +63,7 @@ def add_parser(sub: Any) -> None:
                    help="first and last arrival date")
     p.add_argument("--steps", nargs=2, type=int, default=(DEFAULT_STEPS, DEFAULT_STEPS),
                    metavar=("N_DEP", "N_ARR"), help=f"grid size (default {DEFAULT_STEPS} "
-                   f"{DEFAULT_STEPS}; at most {MAX_STEPS} each)")
+                   f"{DEFAULT_STEPS}; at most {MAX_STEPS} each and 1,000,000 cells)")
     p.add_argument("--park-altitude", default="200 km", metavar="H",
                    help='circular parking orbit above the departure planet (default "200 km")')
     p.add_argument("--capture-altitude", default="250 km", metavar="H",
