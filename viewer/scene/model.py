@@ -120,6 +120,10 @@ class Body:
         """The body's elements (its true anomaly) at scene time t_s; for a body that
         follows an ephemeris, the osculating conic there."""
         if self.track is not None:
+            # ``elements`` is always the osculating conic at ``epoch_offset_s`` (as loaded,
+            # and as ``osculating`` and ``with_epoch_moved`` keep it): no second look-up.
+            if t_s == self.epoch_offset_s:
+                return self.elements
             return self.track.elements_at(t_s)
         return self.elements.after(t_s - self.epoch_offset_s)
 
