@@ -224,3 +224,32 @@ def test_nothing_is_fetched_at_run_time(monkeypatch, tmp_path, capsys):
                  "Mars", "--depart", "2026-09-01", "2027-01-31", "--arrive", "2027-05-01",
                  "2028-03-01", "--steps", "20", "20", "--json"]) == 0
     capsys.readouterr()
+
+
+def test_barycentric_positions_agree_with_skyfield(bsp, ts):
+    # [center] origin = "barycenter": positions from the solar-system barycentre, as the
+    # kernel has them; the Sun itself moves (by up to about two solar radii).
+    scene = load_scene_text(
+        '[scene]\nepoch = "2026-01-01T00:00:00 TDB"\nframe = "ICRF"\n'
+        '[center]\npreset = "sun"\norigin = "barycenter"\n'
+        '[[body]]\nname = "Sun"\nephemeris = "DE421"\n'
+        '[[body]]\nname = "Jupiter"\nephemeris = "DE421"\n')
+    t_s = np.linspace(-40, 20, 25) * 365.25 * 86400.0
+    t = ts.tdb_jd(2461041.5 + t_s / 86400.0)
+    for name, spice in (("Sun", "sun"), ("Jupiter", "jupiter barycenter")):
+        r, _ = scene.body(name).track.state(t_s)
+        ref = bsp[spice].at(t).position.km.T * KM
+        assert np.linalg.norm(r - ref, axis=1).max() < 10e3, name
+    wobble = np.linalg.norm(scene.body("Sun").track.state(t_s)[0], axis=1)
+    assert 1e8 < wobble.max() < 2.5e9  # m: the Sun's offset from the barycentre
+    from viewer.scene import dump_scene
+
+    assert load_scene_text(dump_scene(scene)).center.origin == "barycenter"
+
+
+def test_a_mass_gives_the_gm():
+    text = '[center]\npreset = "sun"\n[[body]]\nname = "J"\na = "5.2 au"\n{extra}\n'
+    by_mass = load_scene_text(text.format(extra="mass = 1.898e27")).body("J")
+    assert by_mass.gm_m3_s2 == pytest.approx(6.6743e-11 * 1.898e27)  # CODATA 2018 G
+    with pytest.raises(Exception, match="both gm and mass"):
+        load_scene_text(text.format(extra='mass = 1e27\ngm = "1e17 m3/s2"'))

@@ -40,6 +40,8 @@ EQUATORIAL_FRAMES = ("ICRF", "J2000", "EME2000")
 ECLIPTIC_FRAMES = ("ECLIPJ2000",)
 #: Ephemerides this version reads.
 EPHEMERIDES = ("DE421",)
+#: Where positions are counted from: the centre body itself, or the solar-system barycentre.
+ORIGINS = ("body", "barycenter")
 #: Bodies of DE421, by the names scene files use.
 TARGETS = ("sun", "mercury", "venus", "earth", "moon", "earth-moon-barycenter", "mars",
            "jupiter", "saturn", "uranus", "neptune", "pluto")
@@ -114,6 +116,9 @@ class Kernel:
         jd1 = np.atleast_1d(np.asarray(jd1, dtype=np.float64))
         jd2 = np.atleast_1d(np.asarray(jd2, dtype=np.float64))
         jd1, jd2 = np.broadcast_arrays(jd1, jd2)
+        if target == "barycenter":  # the solar-system barycentre, the kernel's origin
+            zero = np.zeros(jd1.shape + (3,))
+            return zero, zero.copy()
         if target in ("earth", "moon"):
             r_b, v_b = self._raw("earthmoon", jd1, jd2)
             r_m, v_m = self._raw("moon", jd1, jd2)
@@ -130,7 +135,8 @@ class Kernel:
 
 @dataclass(frozen=True)
 class Track:
-    """Where an ephemeris body is: ``target`` relative to ``centre`` in ``frame``, at TDB
+    """Where an ephemeris body is: ``target`` relative to ``centre`` (a target, or
+    "barycenter" for the solar-system barycentre) in ``frame``, at TDB
     seconds from the scene epoch ``epoch_jd`` (two parts). ``mu`` (m^3/s^2) is GM_centre +
     GM_body, used for the osculating conic."""
 

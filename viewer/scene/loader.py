@@ -25,6 +25,7 @@ import numpy as np
 
 from ..errors import UserInputError
 from ..orbit import CATALOGUE, Elements, true_from_mean
+from ..orbit.constants import G_SI
 from ..units import Epoch, parse_epoch
 from . import spec
 from .model import (
@@ -291,6 +292,7 @@ class _Loader:
         show_body = r.boolean(show, "body", "center.show")
         show_label = r.boolean(show, "label", "center.show")
         name = r.string(c, "name", "center", nonempty=True, max_len=200)
+        origin = r.choice(c, "origin", "center", spec.ORIGINS) or "body"
         if r.failed_since(m0):
             return None
         entry = CATALOGUE[preset] if preset else None
@@ -306,7 +308,7 @@ class _Loader:
                       radius_m=radius, color=color,
                       show_body=True if show_body is None else show_body,
                       show_label=True if show_label is None else show_label, preset=preset,
-                      atmosphere_m=atmosphere, soi_radius_m=soi)
+                      atmosphere_m=atmosphere, soi_radius_m=soi, origin=origin)
 
     def _nonneg(self, t: dict[str, Any], key: str, path: str,
                 positive: bool = False) -> float | None:
@@ -374,6 +376,11 @@ class _Loader:
         gm_body = r.quantity(t, "gm", path, "gm")
         if gm_body is not None and not gm_body >= 0.0:
             r.problem(f"{path}.gm", "gm must be zero or positive")
+        mass = r.number(t, "mass", path, 0.0, 1e45)
+        if mass is not None:
+            if "gm" in t:
+                r.problem(f"{path}.mass", "both gm and mass are given; give one")
+            gm_body = G_SI * mass
         follows = "ephemeris" in t or "ephemeris_body" in t
         track = self._track(t, path, name) if follows else None
         size: tuple[float, float, float | None] | None = None
@@ -508,10 +515,10 @@ class _Loader:
         center = self.center
         if center is None:
             return None
-        if center.preset not in TARGETS:
+        if center.preset not in TARGETS and center.origin != "barycenter":
             r.problem(path, f"a body that follows {source.upper()} needs a [center] preset "
                       f"the ephemeris has (preset = one of {', '.join(p for p in CATALOGUE)})")
-        elif target == center.preset:
+        elif target == center.preset and center.origin != "barycenter":
             r.problem(f"{path}.ephemeris_body", f"{target!r} is the centre itself")
         if frame_rotation(self.frame) is None:
             r.problem("scene.frame", f"frame {self.frame!r}: a body that follows "
@@ -523,7 +530,8 @@ class _Loader:
         if self.kernel is None:
             self.kernel = Kernel(source)
         gm_body = self.kernel.gm_m3_s2(target)
-        track = Track(kernel=self.kernel, target=target, centre=str(center.preset),
+        centre = "barycenter" if center.origin == "barycenter" else str(center.preset)
+        track = Track(kernel=self.kernel, target=target, centre=centre,
                       frame=self.frame.upper(), epoch_jd=(r.epoch.jd1, r.epoch.jd2),
                       mu=center.gm_m3_s2 + gm_body, osculate_s=osculate_s)
         try:

@@ -165,6 +165,9 @@ class Center:
     preset: str | None = None
     atmosphere_m: float | None = None
     soi_radius_m: float | None = None
+    #: Where the positions of ephemeris bodies are counted from: "body" (the centre's own
+    #: position: heliocentric for the Sun) or "barycenter" (the solar-system barycentre).
+    origin: str = "body"
 
 
 @dataclass(frozen=True)

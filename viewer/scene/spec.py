@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from ..ephemeris import EPHEMERIDES, TARGETS
+from ..ephemeris import EPHEMERIDES, ORIGINS, TARGETS
 from ..orbit.constants import CATALOGUE
 
 #: How a value of each kind is written in TOML (used in messages and in the docs test).
@@ -101,6 +101,8 @@ CENTER = Key("center", "table", "the central body at the occupied focus", requir
     Key("atmosphere", "length", "height of the top of the atmosphere above the radius",
         "none"),
     Key("soi_radius", "length", "radius of the sphere of influence", "none"),
+    Key("origin", "choice", "bodies that follow an ephemeris: positions from the centre "
+        "body or from the solar-system barycentre", "body", ORIGINS),
     Key("color", "color", "colour of the disc", "#ffd27f"),
     Key("show", "table", "what to draw", keys=(
         Key("body", "bool", "the central body's disc", "true"),
@@ -160,6 +162,7 @@ BODY = Key("body", "tables", "one orbiting body per [[body]] table", keys=(
     Key("line_width", "number", "line width in pixels at 1080 px image height", "2"),
     Key("gm", "gm", "the body's own GM: its two-body motion uses GM_centre + gm",
         "0, or the ephemeris' value for a body that follows one"),
+    Key("mass", "number", "the body's mass in kg, instead of gm (gm = G mass)", "none"),
     Key("ephemeris", "choice", "the body follows this ephemeris (then it has no orbit keys)",
         "none", EPHEMERIDES),
     Key("ephemeris_body", "choice", "which body of the ephemeris it is",
