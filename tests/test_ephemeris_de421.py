@@ -6,6 +6,7 @@ built on it."""
 from __future__ import annotations
 
 import json
+import math
 import os
 from pathlib import Path
 
@@ -16,6 +17,7 @@ from viewer.cli import main
 from viewer.ephemeris import SPAN_JD, Kernel, ecliptic_rotation
 from viewer.orbit import state_from_elements
 from viewer.scene import load_scene, load_scene_text
+from viewer.units import parse_epoch
 
 skyfield_api = pytest.importorskip("skyfield.api")
 skyfield_data = pytest.importorskip("skyfield_data")
@@ -253,3 +255,14 @@ def test_a_mass_gives_the_gm():
     assert by_mass.gm_m3_s2 == pytest.approx(6.6743e-11 * 1.898e27)  # CODATA 2018 G
     with pytest.raises(Exception, match="both gm and mass"):
         load_scene_text(text.format(extra='mass = 1e27\ngm = "1e17 m3/s2"'))
+
+
+@pytest.mark.parametrize("date", ["2025-01-16", "2027-02-19"])
+def test_earth_and_mars_line_up_at_the_published_oppositions(date):
+    # Mars oppositions on 2025 January 16 and 2027 February 19 (almanac dates, from
+    # memory): the heliocentric ecliptic longitudes of Earth and Mars are then equal.
+    scene = load_scene(SCENES / "solar-system.toml")
+    t = parse_epoch(f"{date}T12:00:00 TT").seconds_since(scene.epoch)
+    lon = [math.degrees(math.atan2(r[1], r[0])) for r in
+           (scene.body(n).track.state(t)[0] for n in ("Earth", "Mars"))]
+    assert abs((lon[0] - lon[1] + 180.0) % 360.0 - 180.0) < 0.6  # Mars moves 0.5 deg a day
