@@ -72,3 +72,13 @@ def test_closest_approach_and_impact_warnings_follow_the_flown_arc(capsys):
         assert s["closest_km"] == pytest.approx(least, abs=1.0)
         assert bool(s["warnings"]) == (least < 6378.137)
     assert any(s["warnings"] for s in out["solutions"])
+
+
+def test_a_long_flight_lists_the_fewest_revolutions_up_to_max_revs(capsys):
+    # Ten years between two low orbits allows tens of thousands of laps; the listing
+    # stops at --max-revs, each count with both branches and both directions.
+    assert main(["lambert", "--mu", "earth", "--r1", "7000,0,0", "--r2", "0,7100,0",
+                 "--tof", "3650 d", "--max-revs", "3", "--json"]) == 0
+    sols = json.loads(capsys.readouterr().out)["solutions"]
+    assert sorted({s["revolutions"] for s in sols}) == [0, 1, 2, 3]
+    assert len(sols) == 2 * (1 + 2 * 3)

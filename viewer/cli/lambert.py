@@ -51,7 +51,8 @@ def add_parser(sub: Any) -> None:
     p.add_argument("--r2", required=True, metavar="X,Y,Z", help="arrival position (km)")
     p.add_argument("--tof", required=True, metavar="T", help='time of flight, e.g. "1 h"')
     p.add_argument("--max-revs", type=int, default=MAX_REVS, metavar="N",
-                   help=f"list at most N whole revolutions (default {MAX_REVS})")
+                   help=f"list solutions of 0 to N whole revolutions, the fewest first "
+                   f"(default {MAX_REVS})")
     p.add_argument("--json", action="store_true", help="print JSON (km/s)")
     p.set_defaults(run=run)
 

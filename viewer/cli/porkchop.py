@@ -83,17 +83,19 @@ def add_parser(sub: Any) -> None:
 
 def _planet(body: Any, flag: str) -> tuple[float, float]:
     """(GM, radius) of the body as a planet: the catalogue entry of its ephemeris target or
-    name."""
+    name, else the body's own gm (or mass) and radius from the scene."""
     from ..orbit.constants import CATALOGUE
 
     key = body.track.target if body.track is not None else body.name.strip().lower()
     entry = CATALOGUE.get(key)
-    if entry is None:
-        raise UserInputError(flag, f"{body.name!r} is not a catalogue planet (one of "
-                             f"{', '.join(CATALOGUE)}), so its parking or capture orbit is "
-                             f"unknown; give a body that follows the ephemeris or is named "
-                             f"after a planet")
-    return entry.gm_m3_s2, entry.radius_m
+    if entry is not None:
+        return entry.gm_m3_s2, entry.radius_m
+    if body.gm_m3_s2 > 0.0 and body.radius_m:
+        return body.gm_m3_s2, body.radius_m
+    raise UserInputError(flag, f"{body.name!r} is not a catalogue planet (one of "
+                         f"{', '.join(CATALOGUE)}) and has no gm and radius in the scene, so "
+                         f"its parking or capture orbit is unknown; give the body gm (or "
+                         f"mass) and radius")
 
 
 def _altitude(text: str, flag: str) -> float:
