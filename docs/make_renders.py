@@ -9,7 +9,8 @@ Each still is the scene at its timeline start through its own camera, at 1600x90
 viewer. Two more show other ways of looking at the demo: a perspective view from low
 over the reference plane, and an edge-on view. ``solar-system.png`` is the real sky on
 2026-01-01 (every planet from DE421). ``porkchop-earth-mars-2026.png`` and ``.svg`` are
-the 2026 Earth-Mars season, made by ``perifocal porkchop`` on the bundled solar system.
+the 2026 Earth-Mars season, made by ``perifocal porkchop`` on the bundled solar system;
+``earth-mars-2026-transfer.png`` its least-total transfer halfway through its flight.
 """
 
 from __future__ import annotations
@@ -60,29 +61,43 @@ def main(argv: list[str]) -> int:
                 target = OUT / f"{out_name}.png"
                 atomic_write_bytes(target, png_bytes(rgba))
                 print(f"wrote {target.relative_to(OUT.parent.parent)}")
-    if not wanted or "porkchop" in wanted:
-        _porkchop(_scenes()["solar-system"])
+        if not wanted or "porkchop" in wanted:
+            _porkchop(_scenes()["solar-system"], renderer)
     return 0
 
 
-def _porkchop(scene_path: Path) -> None:
-    """The 2026 Earth-Mars pork-chop plot (PNG and SVG; the CSV grid is not kept)."""
+def _porkchop(scene_path: Path, renderer) -> None:  # type: ignore[no-untyped-def]
+    """The 2026 Earth-Mars pork-chop plot (PNG and SVG; the CSV grid is not kept), and the
+    least-total transfer it picks, drawn halfway through its flight."""
     import shutil
     import tempfile
 
     from viewer.cli import main as perifocal
+    from viewer.export.encode import png_bytes
+    from viewer.fileio import atomic_write_bytes
+    from viewer.scene import load_scene
 
     with tempfile.TemporaryDirectory() as tmp:
         prefix = Path(tmp) / "porkchop"
+        saved = Path(tmp) / "with-transfer.toml"
         code = perifocal(["porkchop", str(scene_path), "--from", "Earth", "--to", "Mars",
                           "--depart", "2026-09-01", "2027-01-31", "--arrive", "2027-05-01",
-                          "2028-03-01", "-o", str(prefix)])
+                          "2028-03-01", "-o", str(prefix), "--save", str(saved)])
         if code != 0:
             raise SystemExit(code)
         for ext in ("png", "svg"):
             target = OUT / f"porkchop-earth-mars-2026.{ext}"
             shutil.copyfile(f"{prefix}.{ext}", target)
             print(f"wrote {target.relative_to(OUT.parent.parent)}")
+        scene = load_scene(saved)
+        leg = scene.bodies[-1]
+        assert leg.flight_s is not None
+        t_mid = 0.5 * (leg.flight_s[0] + leg.flight_s[1])
+        camera = replace(scene.camera, width_m=5.6 * 149_597_870_700.0)
+        rgba = renderer.render(scene, t_mid, SIZE, camera)
+        target = OUT / "earth-mars-2026-transfer.png"
+        atomic_write_bytes(target, png_bytes(rgba))
+        print(f"wrote {target.relative_to(OUT.parent.parent)}")
 
 
 if __name__ == "__main__":

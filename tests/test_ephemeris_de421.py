@@ -6,6 +6,7 @@ built on it."""
 from __future__ import annotations
 
 import json
+import math
 import os
 from pathlib import Path
 
@@ -16,6 +17,7 @@ from viewer.cli import main
 from viewer.ephemeris import SPAN_JD, Kernel, ecliptic_rotation
 from viewer.orbit import state_from_elements
 from viewer.scene import load_scene, load_scene_text
+from viewer.units import parse_epoch
 
 skyfield_api = pytest.importorskip("skyfield.api")
 skyfield_data = pytest.importorskip("skyfield_data")
@@ -169,3 +171,98 @@ def test_ephemeris_outside_the_span_says_the_span(tmp_path, capsys):
                  "-o", str(tmp_path / "m.oem")]) == 2
     assert "1900-01-01 to 2050-12-31" in capsys.readouterr().err
     assert not (tmp_path / "m.oem").exists()
+
+
+def test_a_chosen_osculating_epoch_fixes_the_drawn_conic(tmp_path):
+    text = ('[scene]\nepoch = "2026-01-01T00:00:00 TDB"\n[center]\npreset = "sun"\n'
+            '[[body]]\nname = "Mars"\nephemeris = "DE421"\n{extra}\n')
+    fixed = load_scene_text(text.format(extra='osculating_epoch = "2030-01-01T00:00:00 TDB"'))
+    mars = fixed.body("Mars")
+    t_2030 = 1461 * 86400.0  # 2026-01-01 to 2030-01-01: 4 years with one leap day
+    expected = mars.track.elements_at(t_2030)
+    for t_s in (0.0, 500 * 86400.0):
+        drawn = fixed.osculating(t_s).body("Mars").elements
+        assert float(drawn.a) == pytest.approx(float(expected.a), rel=1e-12)
+        assert float(drawn.argp) == pytest.approx(float(expected.argp), abs=1e-12)
+        # The marker still follows the ephemeris at the displayed time.
+        r, _ = state_from_elements(fixed.body("Mars").elements_at(t_s))
+        np.testing.assert_allclose(r, mars.track.state(t_s)[0], atol=1.0)
+    from viewer.scene import dump_scene
+
+    again = load_scene_text(dump_scene(fixed))
+    assert again.body("Mars").track.osculate_s == pytest.approx(t_2030, abs=1e-3)
+    with pytest.raises(Exception, match="osculating_epoch"):
+        load_scene_text('[center]\npreset = "sun"\n[[body]]\nname = "X"\na = "1 au"\n'
+                        'osculating_epoch = "10 d"\n')
+
+
+def test_moving_the_scene_epoch_keeps_ephemeris_bodies_and_flights_at_their_dates():
+    from viewer.gui.editor import Editor
+
+    scene = load_scene(SCENES / "solar-system.toml")
+    ed = Editor(scene)
+    t_before = 100 * 86400.0
+    r_before = scene.body("Mars").track.state(t_before)[0]
+    assert ed.set_epoch("2026-03-01T00:00:00 TDB")
+    shift = 59 * 86400.0  # 2026-01-01 to 2026-03-01
+    moved = ed.scene.body("Mars")
+    np.testing.assert_allclose(moved.track.state(t_before - shift)[0], r_before, atol=1e-3)
+    body = scene.bodies[0].with_epoch_moved(0.0)
+    assert body == scene.bodies[0]
+
+
+def test_nothing_is_fetched_at_run_time(monkeypatch, tmp_path, capsys):
+    # With every socket refused, the real sky still loads, checks and makes a pork-chop
+    # grid: the kernel comes from the installed de421 package.
+    import socket
+
+    def refuse(*_args, **_kwargs):
+        raise OSError("network use during a run")
+
+    monkeypatch.setattr(socket.socket, "connect", refuse)
+    monkeypatch.setattr(socket, "create_connection", refuse)
+    assert main(["check", str(SCENES / "solar-system.toml")]) == 0
+    assert main(["porkchop", str(SCENES / "solar-system.toml"), "--from", "Earth", "--to",
+                 "Mars", "--depart", "2026-09-01", "2027-01-31", "--arrive", "2027-05-01",
+                 "2028-03-01", "--steps", "20", "20", "--json"]) == 0
+    capsys.readouterr()
+
+
+def test_barycentric_positions_agree_with_skyfield(bsp, ts):
+    # [center] origin = "barycenter": positions from the solar-system barycentre, as the
+    # kernel has them; the Sun itself moves (by up to about two solar radii).
+    scene = load_scene_text(
+        '[scene]\nepoch = "2026-01-01T00:00:00 TDB"\nframe = "ICRF"\n'
+        '[center]\nname = "Barycentre"\npreset = "sun"\norigin = "barycenter"\n'
+        '[[body]]\nname = "Sun"\nephemeris = "DE421"\n'
+        '[[body]]\nname = "Jupiter"\nephemeris = "DE421"\n')
+    t_s = np.linspace(-40, 20, 25) * 365.25 * 86400.0
+    t = ts.tdb_jd(2461041.5 + t_s / 86400.0)
+    for name, spice in (("Sun", "sun"), ("Jupiter", "jupiter barycenter")):
+        r, _ = scene.body(name).track.state(t_s)
+        ref = bsp[spice].at(t).position.km.T * KM
+        assert np.linalg.norm(r - ref, axis=1).max() < 10e3, name
+    wobble = np.linalg.norm(scene.body("Sun").track.state(t_s)[0], axis=1)
+    assert 1e8 < wobble.max() < 2.5e9  # m: the Sun's offset from the barycentre
+    from viewer.scene import dump_scene
+
+    assert load_scene_text(dump_scene(scene)).center.origin == "barycenter"
+
+
+def test_a_mass_gives_the_gm():
+    text = '[center]\npreset = "sun"\n[[body]]\nname = "J"\na = "5.2 au"\n{extra}\n'
+    by_mass = load_scene_text(text.format(extra="mass = 1.898e27")).body("J")
+    assert by_mass.gm_m3_s2 == pytest.approx(6.6743e-11 * 1.898e27)  # CODATA 2018 G
+    with pytest.raises(Exception, match="both gm and mass"):
+        load_scene_text(text.format(extra='mass = 1e27\ngm = "1e17 m3/s2"'))
+
+
+@pytest.mark.parametrize("date", ["2025-01-16", "2027-02-19"])
+def test_earth_and_mars_line_up_at_the_published_oppositions(date):
+    # Mars oppositions on 2025 January 16 and 2027 February 19 (almanac dates, from
+    # memory): the heliocentric ecliptic longitudes of Earth and Mars are then equal.
+    scene = load_scene(SCENES / "solar-system.toml")
+    t = parse_epoch(f"{date}T12:00:00 TT").seconds_since(scene.epoch)
+    lon = [math.degrees(math.atan2(r[1], r[0])) for r in
+           (scene.body(n).track.state(t)[0] for n in ("Earth", "Mars"))]
+    assert abs((lon[0] - lon[1] + 180.0) % 360.0 - 180.0) < 0.6  # Mars moves 0.5 deg a day

@@ -53,3 +53,32 @@ def test_bad_input_is_one_clear_line_and_exit_2(capsys, argv, flag):
     err = capsys.readouterr().err
     assert flag in err.splitlines()[0]
     assert len(err.strip().splitlines()) == 2
+
+
+def test_closest_approach_and_impact_warnings_follow_the_flown_arc(capsys):
+    # The least distance reported for each solution is the minimum of the arc sampled
+    # densely with the universal-variable propagator (tested against solve_ivp); the
+    # warning appears exactly when that is inside the Earth (WGS 84 radius).
+    from viewer.orbit import propagate
+
+    r1 = np.array([7000.0, 0.0, 0.0]) * 1e3
+    assert main(["lambert", "--mu", "earth", "--r1", "7000,0,0", "--r2", "-2000,9000,1500",
+                 "--tof", "3 h", "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    t = np.linspace(0.0, 3 * 3600.0, 20001)
+    for s in out["solutions"]:
+        r, _ = propagate(r1, np.array(s["v1_km_s"]) * 1e3, 398600.4418e9, t)
+        least = np.linalg.norm(r, axis=-1).min() / 1e3
+        assert s["closest_km"] == pytest.approx(least, abs=1.0)
+        assert bool(s["warnings"]) == (least < 6378.137)
+    assert any(s["warnings"] for s in out["solutions"])
+
+
+def test_a_long_flight_lists_the_fewest_revolutions_up_to_max_revs(capsys):
+    # Ten years between two low orbits allows tens of thousands of laps; the listing
+    # stops at --max-revs, each count with both branches and both directions.
+    assert main(["lambert", "--mu", "earth", "--r1", "7000,0,0", "--r2", "0,7100,0",
+                 "--tof", "3650 d", "--max-revs", "3", "--json"]) == 0
+    sols = json.loads(capsys.readouterr().out)["solutions"]
+    assert sorted({s["revolutions"] for s in sols}) == [0, 1, 2, 3]
+    assert len(sols) == 2 * (1 + 2 * 3)

@@ -149,3 +149,52 @@ def test_bad_input_is_one_clear_line_and_exit_2(capsys, argv, flag):
     assert main(["porkchop", str(SCENE), *argv]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert flag in err[0] and len(err) == 2, err
+
+
+def test_the_chosen_lambert_transfer_is_saved_and_flies_from_earth_to_mars(tmp_path, capsys):
+    target = tmp_path / "mars2026.toml"
+    assert main(["porkchop", str(SCENE), "--from", "Earth", "--to", "Mars", *SEASON,
+                 "--steps", "40", "40", "--save", str(target), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    scene = load_scene(target)
+    leg = scene.body(out["saved_body"])
+    best = out["best_total"]
+    t_dep = leg.epoch_offset_s  # the departure, to the microsecond
+    assert t_dep == pytest.approx(parse_epoch(best["departure"]).seconds_since(scene.epoch),
+                                  abs=0.5)
+    t_arr = t_dep + best["tof_days"] * DAY
+    assert leg.flight_s == pytest.approx((t_dep, t_arr), abs=1e-3)  # only the flown arc
+    from viewer.orbit import state_from_elements
+
+    # The saved conic, propagated by the scene's own two-body motion, leaves the Earth's
+    # DE421 position and meets Mars's DE421 position (to 1 km after 310 days).
+    for t, body, tol in ((t_dep, "Earth", 1.0), (t_arr, "Mars", 1e3)):
+        r = state_from_elements(leg.elements_at(t))[0]
+        assert np.linalg.norm(r - scene.body(body).track.state(t)[0]) < tol, body
+    assert main(["porkchop", str(SCENE), "--from", "Earth", "--to", "Mars", *SEASON,
+                 "--steps", "10", "10", "--save", str(target)]) == 2  # exists, no --force
+    assert "exists" in capsys.readouterr().err
+
+
+def test_invented_planets_use_their_own_gm_and_radius(tmp_path, capsys):
+    # Two invented planets on fixed conics: the burns use each one's gm and radius from
+    # the scene; patched-conic escape from 1.1 radii (Curtis eq. 8.40) checks the total.
+    scene = tmp_path / "invented.toml"
+    scene.write_text('[scene]\nepoch = "2030-01-01T00:00:00 TDB"\n[center]\npreset = "sun"\n'
+                     '[[body]]\nname = "Inner"\na = "1 au"\ngm = "4e14 m3/s2"\n'
+                     'radius = "6000 km"\n'
+                     '[[body]]\nname = "Outer"\na = "1.6 au"\nnu = "60 deg"\n'
+                     'gm = "5e13 m3/s2"\nradius = "3500 km"\n')
+    argv = ["porkchop", str(scene), "--from", "Inner", "--to", "Outer", "--depart", "0 d",
+            "400 d", "--arrive", "150 d", "800 d", "--steps", "40", "40",
+            "--park-altitude", "600 km", "--capture-altitude", "350 km", "--json"]
+    assert main(argv) == 0
+    best = json.loads(capsys.readouterr().out)["best_total"]
+    dep = burn_from_circle(best["vinf_departure_km_s"] * 1e3, 4e14, 6600e3)
+    arr = burn_from_circle(best["vinf_arrival_km_s"] * 1e3, 5e13, 3850e3)
+    assert best["dv_total_km_s"] == pytest.approx((dep + arr) / 1e3, rel=1e-9)
+    v, r = best["vinf_departure_km_s"] * 1e3, 6600e3
+    assert dep == pytest.approx(math.sqrt(v * v + 2 * 4e14 / r) - math.sqrt(4e14 / r))
+    scene.write_text(scene.read_text().replace('gm = "5e13 m3/s2"\n', ""))
+    assert main(argv) == 2
+    assert "--to" in capsys.readouterr().err

@@ -64,6 +64,7 @@ def test_the_chosen_transfer_is_saved_as_a_body_with_its_own_epoch(tmp_path, cap
     leg = scene.body("Earth to Mars")
     t_dep = parse_epoch("2026-12-04").seconds_since(scene.epoch)
     assert leg.epoch_offset_s == pytest.approx(t_dep, abs=1e-3)
+    assert leg.flight_s == pytest.approx((t_dep, t_dep + out["time_of_flight_s"]), abs=1e-3)
     # It starts on the departure circle (radius a) in the direction of Earth's real
     # position, and reaches the arrival circle after the time of flight.
     from viewer.orbit import state_from_elements

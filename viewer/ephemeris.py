@@ -40,6 +40,8 @@ EQUATORIAL_FRAMES = ("ICRF", "J2000", "EME2000")
 ECLIPTIC_FRAMES = ("ECLIPJ2000",)
 #: Ephemerides this version reads.
 EPHEMERIDES = ("DE421",)
+#: Where positions are counted from: the centre body itself, or the solar-system barycentre.
+ORIGINS = ("body", "barycenter")
 #: Bodies of DE421, by the names scene files use.
 TARGETS = ("sun", "mercury", "venus", "earth", "moon", "earth-moon-barycenter", "mars",
            "jupiter", "saturn", "uranus", "neptune", "pluto")
@@ -114,6 +116,9 @@ class Kernel:
         jd1 = np.atleast_1d(np.asarray(jd1, dtype=np.float64))
         jd2 = np.atleast_1d(np.asarray(jd2, dtype=np.float64))
         jd1, jd2 = np.broadcast_arrays(jd1, jd2)
+        if target == "barycenter":  # the solar-system barycentre, the kernel's origin
+            zero = np.zeros(jd1.shape + (3,))
+            return zero, zero.copy()
         if target in ("earth", "moon"):
             r_b, v_b = self._raw("earthmoon", jd1, jd2)
             r_m, v_m = self._raw("moon", jd1, jd2)
@@ -130,7 +135,8 @@ class Kernel:
 
 @dataclass(frozen=True)
 class Track:
-    """Where an ephemeris body is: ``target`` relative to ``centre`` in ``frame``, at TDB
+    """Where an ephemeris body is: ``target`` relative to ``centre`` (a target, or
+    "barycenter" for the solar-system barycentre) in ``frame``, at TDB
     seconds from the scene epoch ``epoch_jd`` (two parts). ``mu`` (m^3/s^2) is GM_centre +
     GM_body, used for the osculating conic."""
 
@@ -140,10 +146,20 @@ class Track:
     frame: str
     epoch_jd: tuple[float, float]
     mu: float
+    #: Scene time whose osculating conic is drawn (None: the displayed time).
+    osculate_s: float | None = None
 
     @property
     def source(self) -> str:
         return self.kernel.name
+
+    def with_epoch_moved(self, shift_s: float) -> Track:
+        """The same track for a scene epoch ``shift_s`` seconds later."""
+        from dataclasses import replace
+
+        osc = None if self.osculate_s is None else self.osculate_s - shift_s
+        return replace(self, epoch_jd=(self.epoch_jd[0], self.epoch_jd[1] + shift_s / 86400.0),
+                       osculate_s=osc)
 
     def span_s(self) -> tuple[float, float]:
         """(first, last) scene time covered, TDB seconds from the scene epoch."""

@@ -21,7 +21,7 @@ EXAMPLES = """examples:
   perifocal bench kepler     # 1e6 Kepler solves beside scipy.optimize.newton
   perifocal bench porkchop   # a 200 x 200 Earth-Mars grid beside a per-cell scipy loop
   perifocal bench scene      # loading 1,000 bodies and 100,000-row populations
-  perifocal bench render     # demo frame beside matplotlib; 100k bodies; memory
+  perifocal bench render     # demo frame beside matplotlib; 100k bodies; memory; real sky
   perifocal bench export     # PNG sequence beside matplotlib, MP4 rate, 4K dome master
   perifocal bench window     # the viewer at 1920x1080 (starts Xvfb if there is no display)
   perifocal bench kepler --json

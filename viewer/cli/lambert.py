@@ -51,9 +51,36 @@ def add_parser(sub: Any) -> None:
     p.add_argument("--r2", required=True, metavar="X,Y,Z", help="arrival position (km)")
     p.add_argument("--tof", required=True, metavar="T", help='time of flight, e.g. "1 h"')
     p.add_argument("--max-revs", type=int, default=MAX_REVS, metavar="N",
-                   help=f"list at most N whole revolutions (default {MAX_REVS})")
+                   help=f"list solutions of 0 to N whole revolutions, the fewest first "
+                   f"(default {MAX_REVS})")
     p.add_argument("--json", action="store_true", help="print JSON (km/s)")
     p.set_defaults(run=run)
+
+
+def central_radius_m(text: str) -> float | None:
+    """The catalogue radius when --mu names a central body, else None."""
+    from ..orbit.constants import CATALOGUE
+
+    entry = CATALOGUE.get(text.strip().lower())
+    return None if entry is None else entry.radius_m
+
+
+def closest_m(mu: float, r1: Any, v1: Any, r2: Any, v2: Any, revolutions: int) -> float:
+    """The least distance from the centre along the flown arc, m: the periapsis if the arc
+    passes it (true anomaly crossing 0, always with whole revolutions), else the nearer
+    end."""
+    import math
+
+    import numpy as np
+
+    from ..orbit import elements_from_state
+
+    a = elements_from_state(r1, v1, mu)
+    nu1 = float(a.nu) % (2 * math.pi)
+    nu2 = float(elements_from_state(r2, v2, mu).nu) % (2 * math.pi)
+    if revolutions > 0 or nu2 < nu1:
+        return float(a.periapsis)
+    return float(min(np.linalg.norm(r1), np.linalg.norm(r2)))
 
 
 def parse_mu(text: str, flag: str = "--mu") -> float:
@@ -124,12 +151,23 @@ def run(args: argparse.Namespace) -> int:
     if not sols:
         raise UserInputError("--tof", "no Lambert solution was found for these positions and "
                              "time of flight")
+    radius = central_radius_m(args.mu)
+    for s in sols:
+        s["closest_m"] = closest_m(mu, r1, np.array(s["v1_m_s"]), r2, np.array(s["v2_m_s"]),
+                                   s["revolutions"])
+        s["warnings"] = []
+        if radius is not None and s["closest_m"] < radius:
+            s["warnings"].append(f"the arc passes {s['closest_m'] / 1e3:.6g} km from the "
+                                 f"centre, inside the central body (radius "
+                                 f"{radius / 1e3:.6g} km)")
     if args.json:
         out = {"mu_m3_s2": mu, "tof_s": tof, "solutions": [
             {"revolutions": s["revolutions"], "direction": s["direction"],
              "branch": s["branch"],
              "v1_km_s": [v / 1e3 for v in s["v1_m_s"]],
-             "v2_km_s": [v / 1e3 for v in s["v2_m_s"]]} for s in sols],
+             "v2_km_s": [v / 1e3 for v in s["v2_m_s"]],
+             "closest_km": s["closest_m"] / 1e3, "warnings": s["warnings"]}
+            for s in sols],
             "caution": CAUTION}
         sys.stdout.write(json.dumps(out, indent=1) + "\n")
         return 0
@@ -141,6 +179,7 @@ def run(args: argparse.Namespace) -> int:
         v1 = ", ".join(f"{v / 1e3:9.5f}" for v in s["v1_m_s"])
         v2 = ", ".join(f"{v / 1e3:9.5f}" for v in s["v2_m_s"])
         lines.append(f"{s['revolutions']:>4}  {s['direction']:<10} {s['branch']:<7} "
-                     f"({v1})   ({v2})")
+                     f"({v1})   ({v2})   closest {s['closest_m'] / 1e3:,.1f} km")
+        lines += [f"      warning: {w}" for w in s["warnings"]]
     sys.stdout.write("\n".join(lines) + f"\n\n{CAUTION}\n")
     return 0

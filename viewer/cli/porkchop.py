@@ -27,6 +27,12 @@ bodies' centres about the scene's centre: C3 = v_inf^2 at departure, v_inf at ar
 and the total delta-v from a circular parking orbit at the departure planet to a
 circular capture orbit at the arrival planet (patched conics; each planet's GM and
 radius from the catalogue). -o PREFIX writes PREFIX.png, PREFIX.svg and PREFIX.csv.
+
+--save SCENE writes a copy of the scene with the chosen transfer (--pick total, the
+default, or c3) added as a body: the Lambert conic with its epoch at the departure.
+    perifocal porkchop scenes/solar-system.toml --from Earth --to Mars \
+        --depart 2026-09-01 2027-01-31 --arrive 2027-05-01 2028-03-01 \
+        --save mars2026.toml
 """
 
 DEFAULT_STEPS = 200
@@ -57,7 +63,7 @@ def add_parser(sub: Any) -> None:
                    help="first and last arrival date")
     p.add_argument("--steps", nargs=2, type=int, default=(DEFAULT_STEPS, DEFAULT_STEPS),
                    metavar=("N_DEP", "N_ARR"), help=f"grid size (default {DEFAULT_STEPS} "
-                   f"{DEFAULT_STEPS}; at most {MAX_STEPS} each)")
+                   f"{DEFAULT_STEPS}; at most {MAX_STEPS} each and 1,000,000 cells)")
     p.add_argument("--park-altitude", default="200 km", metavar="H",
                    help='circular parking orbit above the departure planet (default "200 km")')
     p.add_argument("--capture-altitude", default="250 km", metavar="H",
@@ -65,22 +71,32 @@ def add_parser(sub: Any) -> None:
     p.add_argument("-o", "--output", metavar="PREFIX",
                    help="write PREFIX.png, PREFIX.svg and PREFIX.csv")
     p.add_argument("--json", action="store_true", help="print the best options as JSON")
+    p.add_argument("--save", metavar="SCENE", help="write a new scene with the chosen "
+                   "transfer added as a body")
+    p.add_argument("--pick", choices=("total", "c3"), default="total",
+                   help="with --save: the least-total (default) or least-C3 transfer")
+    p.add_argument("--name", help='with --save: the body\'s name (default "FROM to TO '
+                   '(Lambert)")')
+    p.add_argument("--force", action="store_true",
+                   help="with -o or --save: replace existing files (each kept as NAME.bak)")
     p.set_defaults(run=run)
 
 
 def _planet(body: Any, flag: str) -> tuple[float, float]:
     """(GM, radius) of the body as a planet: the catalogue entry of its ephemeris target or
-    name."""
+    name, else the body's own gm (or mass) and radius from the scene."""
     from ..orbit.constants import CATALOGUE
 
     key = body.track.target if body.track is not None else body.name.strip().lower()
     entry = CATALOGUE.get(key)
-    if entry is None:
-        raise UserInputError(flag, f"{body.name!r} is not a catalogue planet (one of "
-                             f"{', '.join(CATALOGUE)}), so its parking or capture orbit is "
-                             f"unknown; give a body that follows the ephemeris or is named "
-                             f"after a planet")
-    return entry.gm_m3_s2, entry.radius_m
+    if entry is not None:
+        return entry.gm_m3_s2, entry.radius_m
+    if body.gm_m3_s2 > 0.0 and body.radius_m:
+        return body.gm_m3_s2, body.radius_m
+    raise UserInputError(flag, f"{body.name!r} is not a catalogue planet (one of "
+                         f"{', '.join(CATALOGUE)}) and has no gm and radius in the scene, so "
+                         f"its parking or capture orbit is unknown; give the body gm (or "
+                         f"mass) and radius")
 
 
 def _altitude(text: str, flag: str) -> float:
@@ -154,12 +170,17 @@ def run(args: argparse.Namespace) -> int:
         raise UserInputError("--arrive", "no cell of the grid has a Lambert solution: every "
                              "arrival must come after its departure")
     best = {"c3": g.best("c3"), "total": g.best("total")}
+    if args.save:
+        _save(args, scene, dep, arr, g, best[args.pick])
     if args.output:
-        _write(args.output, g, scene, dep.name, arr.name, best, CAUTION)
+        _write(args.output, g, scene, dep.name, arr.name, best, CAUTION, args.force, args.scene)
     out = {"from": dep.name, "to": arr.name, "grid": [n_dep, n_arr],
            "best_c3": option(g, best["c3"], scene.epoch),
            "best_total": option(g, best["total"], scene.epoch),
            "park_radius_m": park[1], "capture_radius_m": capture[1], "caution": CAUTION}
+    if args.save:
+        out["saved"] = args.save
+        out["saved_body"] = args.name or f"{dep.name} to {arr.name} (Lambert)"
     if args.json:
         sys.stdout.write(json.dumps(out, indent=1) + "\n")
         return 0
@@ -173,20 +194,65 @@ def run(args: argparse.Namespace) -> int:
                      f"km/s")
     if args.output:
         lines.append(f"wrote {args.output}.png, {args.output}.svg, {args.output}.csv")
+    if args.save:
+        lines.append(f"wrote {args.save} (added {out['saved_body']!r})")
     sys.stdout.write("\n".join(lines) + f"\n\n{CAUTION}\n")
     return 0
 
 
-def _write(prefix: str, g: Any, scene: Any, a: str, b: str, best: Any, caution: str) -> None:
+def _write(prefix: str, g: Any, scene: Any, a: str, b: str, best: Any, caution: str,
+           force: bool, scene_path: str) -> None:
     from ..export.porkchop_plot import csv_text, plot
-    from ..fileio import atomic_write_bytes, user_write_error
+    from ..fileio import claim_output, write_output
 
     title = f"{a} to {b}: departure C3, arrival v∞, time of flight ({scene.title})"
     files = {f"{prefix}.png": plot(g, scene.epoch, title, caution, "png", best),
              f"{prefix}.svg": plot(g, scene.epoch, title, caution, "svg", best),
              f"{prefix}.csv": csv_text(g, scene.epoch).encode("utf-8")}
+    for path in files:  # the output rule for all three before any is written
+        claim_output(path, force=force, inputs=[scene_path])
     for path, data in files.items():
-        try:
-            atomic_write_bytes(Path(path), data)
-        except OSError as err:
-            raise user_write_error(path, err) from None
+        write_output(Path(path), data)
+
+
+def _save(args: argparse.Namespace, scene: Any, dep: Any, arr: Any, g: Any,
+          cell: tuple[int, int] | None) -> None:
+    """A copy of the scene file with the chosen transfer appended as a [[body]]."""
+    import numpy as np
+
+    from ..fileio import claim_output, write_output
+    from ..formats.scene_text import body_toml
+    from ..mission.lambert import solve
+    from ..mission.porkchop import body_states
+    from ..orbit import elements_from_state
+    from ..scene import load_scene_text, read_scene_text
+
+    assert cell is not None
+    target = claim_output(args.save, force=args.force, inputs=[args.scene], flag="--save")
+    name = args.name or f"{dep.name} to {arr.name} (Lambert)"
+    if any(b.name == name for b in scene.bodies):
+        raise UserInputError("--name", f"the scene already has a body named {name!r}; give "
+                             f"another with --name")
+    i, j = cell
+    t_dep, t_arr = float(g.t_dep_s[i]), float(g.t_arr_s[j])
+    r1, _ = body_states(dep, np.array([t_dep]), "--depart")
+    r2, _ = body_states(arr, np.array([t_arr]), "--arrive")
+    res = solve(scene.center.gm_m3_s2, r1[0], r2[0], t_arr - t_dep)
+    el = elements_from_state(r1[0], res.v1, scene.center.gm_m3_s2)
+    depart = scene.epoch.plus_seconds(t_dep)
+    arrive = scene.epoch.plus_seconds(t_arr)
+    comments = [
+        f"Made by `perifocal porkchop` ({args.pick}): the direct Lambert transfer from "
+        f"{dep.name} to {arr.name},",
+        f"departing {depart.iso('TDB', 3)}, arriving {arrive.iso('TDB', 3)} "
+        f"({(t_arr - t_dep) / 86400.0:.3f} d); C3 {g.c3_m2_s2[i, j] / 1e6:.4f} km2/s2, "
+        f"arrival v_inf {g.vinf_arr_m_s[i, j] / 1e3:.4f} km/s.",
+        "Only the arc from departure to arrival is flown (and drawn). Two-body conic: "
+        "sanity checks only.",
+    ]
+    text = read_scene_text(args.scene)
+    block = body_toml(name, el, depart.iso("TDB", 6), comments, show={"apsides": True},
+                      flight=(depart.iso("TDB", 6), arrive.iso("TDB", 6)))
+    new_text = text + ("" if text.endswith("\n") else "\n") + "\n" + block
+    load_scene_text(new_text, source=target, base_dir=Path(args.scene).parent)
+    write_output(target, new_text.encode("utf-8"))

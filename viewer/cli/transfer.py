@@ -151,7 +151,7 @@ def _write(args: argparse.Namespace, scene: Any, plan: Any, out: dict[str, Any])
             f"{after['time_s']:.3f} s: dv {after['dv_m_s'] / 1e3:+.6f} km/s",
             f"total dv {out['dv_total_m_s'] / 1e3:.6f} km/s, time of flight "
             f"{out['time_of_flight_s'] / 3600:.6f} h. Only the half ellipse between the "
-            f"burns is flown.",
+            f"burns is flown (and drawn).",
         ]
         blocks.append(body_text(scene, leg, comments))
     new_text = text + ("" if text.endswith("\n") else "\n") + "\n" + "\n".join(blocks)

@@ -19,7 +19,8 @@ from ..scene.writer import comment_block, toml_string
 
 
 def body_toml(name: str, elements: Elements, epoch_text: str, comments: Iterable[str] = (),
-              show: dict[str, bool] | None = None) -> str:
+              show: dict[str, bool] | None = None,
+              flight: tuple[str, str] | None = None) -> str:
     """A ``[[body]]`` table for ``elements`` (SI, at ``epoch_text``) in km and deg, after
     comment lines, written by the scene writer: ellipses sized by ``a``, open conics by
     ``periapsis`` and ``e``, the place given as ``nu`` for every conic."""
@@ -35,6 +36,8 @@ def body_toml(name: str, elements: Elements, epoch_text: str, comments: Iterable
     t["epoch"] = epoch_text
     if show:
         t["show"] = dict(show)
+    if flight is not None:  # only the arc between these epochs is flown (and drawn)
+        t["flight"] = {"start": flight[0], "end": flight[1]}
     return writer.table_text("body", t, comments)
 
 

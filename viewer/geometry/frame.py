@@ -170,6 +170,21 @@ def _sector_params(body: Body, shape: ConicShape) -> list[tuple[float, float, fl
     return out
 
 
+def _flight_params(body: Body, shape: ConicShape) -> tuple[float, float]:
+    """Curve parameters (u0, u1) of the arc flown from the flight's start to its end."""
+    assert body.flight_s is not None
+    e = float(body.elements.e)
+    t0, t1 = body.flight_s
+    u0 = float(shape.param_of_true(body.elements_at(t0).nu, e))
+    u1 = float(shape.param_of_true(body.elements_at(t1).nu, e))
+    if e < 1.0:
+        period = float(body.elements.period)
+        turns = math.floor((t1 - t0) / period)
+        u1 = u0 + (u1 - u0) % (2.0 * math.pi) + 2.0 * math.pi * turns
+        u1 = min(u1, u0 + 2.0 * math.pi)
+    return u0, u1
+
+
 def _central_radius_px(scene: Scene, view: View) -> tuple[float, Floats, bool]:
     """(radius px, centre px, visible) of the central body, at least its minimum size."""
     px, front = view.project(np.zeros((1, 3)))
@@ -285,7 +300,7 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
         show = body.show
         fade = body.fade
         if not ((show.marker and fade.marker > 0) or (show.label and fade.label > 0)
-                or (show.velocity and fade.velocity > 0)):
+                or (show.velocity and fade.velocity > 0)) or not body.in_flight(t_s):
             continue
         col = body.color
         r, v = state_from_elements(body.elements_at(t_s))
@@ -407,7 +422,11 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
     sector_arcs: dict[int, list[tuple[int, float, float]]] = {}
     for k, (body, shape) in enumerate(zip(scene.bodies, shapes, strict=True)):
         if body.show.orbit and body.fade.orbit > 0:
-            u0, u1, closed = whole_orbit_range(body.elements, body.limit_radius_m)
+            if body.flight_s is not None:  # only the flown arc
+                u0, u1 = _flight_params(body, shape)
+                closed = False
+            else:
+                u0, u1, closed = whole_orbit_range(body.elements, body.limit_radius_m)
             orbit_arc[k] = (curves.add(shape, u0, u1), closed)
         if (body.show.sweep and body.sweep is not None and body.sweep.count > 0
                 and body.fade.sweep > 0):

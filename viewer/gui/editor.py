@@ -487,8 +487,7 @@ class Editor:
         if new == old:
             return False
         shift_s = new.seconds_since(old)
-        bodies = [replace(b, epoch_offset_s=b.epoch_offset_s - shift_s)
-                  for b in self.scene.bodies]
+        bodies = [b.with_epoch_moved(shift_s) for b in self.scene.bodies]
         pops = [replace(p, epoch_offset_s=p.epoch_offset_s - shift_s)
                 for p in self.scene.populations]
         scene = replace(self.scene, epoch=new, bodies=tuple(bodies), populations=tuple(pops))

@@ -290,13 +290,17 @@ def solve(mu: Any, r1: Any, r2: Any, tof: Any, revolutions: int = 0, prograde: b
                          ok=ok.reshape(shape), collinear=g["collinear"].reshape(shape))
 
 
-def max_revolutions(mu: Any, r1: Any, r2: Any, tof: Any, prograde: bool = True) -> np.ndarray:
+def max_revolutions(mu: Any, r1: Any, r2: Any, tof: Any, prograde: bool = True,
+                    limit: int | None = None) -> np.ndarray:
     """The most whole revolutions a transfer of this time can make (0 where only the direct
-    one exists), per case."""
+    one exists), per case; at most ``limit`` when given (the count of a very long flight
+    about a strong centre runs to thousands)."""
     g = _geometry(mu, r1, r2, tof, prograde)
     shape = tuple(int(n) for n in g["shape"])
     lam, T = g["lam"], g["T"]
     m_top = np.where(T > 0.0, np.floor(np.maximum(T, 0.0) / np.pi), 0.0).astype(int)
+    if limit is not None:
+        m_top = np.minimum(m_top, limit)
     result = np.zeros(lam.size, dtype=int)
     for M in range(1, int(m_top.max(initial=0)) + 1):
         cand = m_top >= M
@@ -316,7 +320,7 @@ def all_solutions(mu: float, r1: Any, r2: Any, tof: float,
     out: list[dict[str, Any]] = []
     for prograde in (True, False):
         direction = "prograde" if prograde else "retrograde"
-        top = min(int(max_revolutions(mu, r1, r2, tof, prograde)), max_revs)
+        top = int(max_revolutions(mu, r1, r2, tof, prograde, limit=max_revs))
         for M in range(top + 1):
             for right in ((False,) if M == 0 else (False, True)):
                 res = solve(mu, r1, r2, tof, M, prograde, right)

@@ -166,10 +166,12 @@ def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hoh
         el = Elements(a=float(leg.a), e=float(leg.e), i=float(now.i), raan=float(now.raan),
                       argp=math.remainder(u0 + k * math.pi - nu0, TWO_PI) % TWO_PI, nu=nu0,
                       mu=mu)
+        start = departure_s + float(burn.time_s)
         legs.append(Body(
             name=label if len(tr.legs) == 1 else f"{label} (leg {k + 1})", elements=el,
-            epoch_offset_s=departure_s + float(burn.time_s), color=color,
-            show=BodyShow(apsides=True)))
+            epoch_offset_s=start, color=color, show=BodyShow(apsides=True),
+            # Only the half ellipse between this leg's burns is flown.
+            flight_s=(start, departure_s + float(tr.burns[k + 1].time_s))))
 
     # Phasing: the target's lead over the departure body, about the departure normal.
     w = _normal(dep.elements)

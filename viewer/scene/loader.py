@@ -27,6 +27,7 @@ import numpy as np
 from ..errors import UserInputError
 from ..fileio import NotRegularFileError, read_regular_bytes
 from ..orbit import CATALOGUE, Elements, true_from_mean
+from ..orbit.constants import G_SI
 from ..units import Epoch, parse_epoch
 from . import spec
 from .model import (
@@ -222,6 +223,7 @@ class _RawBody:
     limit: float | None
     gm: float = 0.0
     track: Any = None
+    flight: tuple[float, float] | None = None
 
 
 class _Loader:
@@ -314,6 +316,7 @@ class _Loader:
         show_body = r.boolean(show, "body", "center.show")
         show_label = r.boolean(show, "label", "center.show")
         name = r.string(c, "name", "center", nonempty=True, max_len=200)
+        origin = r.choice(c, "origin", "center", spec.ORIGINS) or "body"
         if r.failed_since(m0):
             return None
         entry = CATALOGUE[preset] if preset else None
@@ -329,7 +332,7 @@ class _Loader:
                       radius_m=radius, color=color,
                       show_body=True if show_body is None else show_body,
                       show_label=True if show_label is None else show_label, preset=preset,
-                      atmosphere_m=atmosphere, soi_radius_m=soi)
+                      atmosphere_m=atmosphere, soi_radius_m=soi, origin=origin)
 
     def _nonneg(self, t: dict[str, Any], key: str, path: str,
                 positive: bool = False) -> float | None:
@@ -407,6 +410,11 @@ class _Loader:
         gm_body = r.quantity(t, "gm", path, "gm")
         if gm_body is not None and not gm_body >= 0.0:
             r.problem(f"{path}.gm", "gm must be zero or positive")
+        mass = r.number(t, "mass", path, 0.0, 1e45)
+        if mass is not None:
+            if "gm" in t:
+                r.problem(f"{path}.mass", "both gm and mass are given; give one")
+            gm_body = G_SI * mass
         follows = "ephemeris" in t or "ephemeris_body" in t
         track = self._track(t, path, name) if follows else None
         size: tuple[float, float, float | None] | None = None
@@ -414,6 +422,9 @@ class _Loader:
             gm_body = track[1] if gm_body is None else gm_body
             size = (float(track[2].a), float(track[2].e), None)
         elif not follows:
+            if "osculating_epoch" in t:
+                r.problem(f"{path}.osculating_epoch", "osculating_epoch is for a body that "
+                          'follows an ephemeris (ephemeris = "DE421"); remove it')
             size = self._size(t, path, None if mu is None else mu + (gm_body or 0.0))
         i = r.quantity(t, "i", path, "angle")
         if i is not None and not -1e-12 <= i <= math.pi * (1 + 1e-12):
@@ -482,7 +493,31 @@ class _Loader:
         return _RawBody(k, name or "", a, e, parabola_p, max(0.0, min(i or 0.0, math.pi)),
                         (raan or 0.0) % TWO_PI, (argp or 0.0) % TWO_PI, M_value, nu_value, offset,
                         t, path, color, line_width, radius, flags, sweep, limit,
-                        gm_body or 0.0, None if track is None else track[0])
+                        gm_body or 0.0, None if track is None else track[0],
+                        self._flight(t, path))
+
+    def _flight(self, t: dict[str, Any], path: str) -> tuple[float, float] | None:
+        """(start, end) scene times of a [[body]] flight table, or None."""
+        r = self.r
+        if "flight" not in t:
+            return None
+        ft = r.table(t, spec.FLIGHT, path)
+        if ft is None:
+            return None
+        where = f"{path}.flight"
+        missing = [k for k in ("start", "end") if k not in ft]
+        if missing:
+            r.problem(where, f"missing {' and '.join(missing)}: a flight needs start and end "
+                      '(e.g. flight = { start = "0 d", end = "259 d" })')
+            return None
+        start = r.time_or_epoch(ft, "start", where)
+        end = r.time_or_epoch(ft, "end", where)
+        if start is None or end is None:
+            return None
+        if not end > start:
+            r.problem(f"{where}.end", "the end of the flight must come after its start")
+            return None
+        return start, end
 
     def _track(self, t: dict[str, Any], path: str, name: str | None) -> Any:
         """(Track, GM of the body, osculating Elements at the scene epoch) of a body that
@@ -514,28 +549,36 @@ class _Loader:
         center = self.center
         if center is None:
             return None
-        if center.preset not in TARGETS:
+        if center.preset not in TARGETS and center.origin != "barycenter":
             r.problem(path, f"a body that follows {source.upper()} needs a [center] preset "
                       f"the ephemeris has (preset = one of {', '.join(p for p in CATALOGUE)})")
-        elif target == center.preset:
+        elif target == center.preset and center.origin != "barycenter":
             r.problem(f"{path}.ephemeris_body", f"{target!r} is the centre itself")
         if frame_rotation(self.frame) is None:
             r.problem("scene.frame", f"frame {self.frame!r}: a body that follows "
                       f"{source.upper()} needs frame = one of "
                       f"{', '.join(EQUATORIAL_FRAMES + ECLIPTIC_FRAMES)}")
+        osculate_s = r.time_or_epoch(t, "osculating_epoch", path)
         if r.failed_since(m0) or target is None or r.epoch is None:
             return None
         if self.kernel is None:
             self.kernel = Kernel(source)
         gm_body = self.kernel.gm_m3_s2(target)
-        track = Track(kernel=self.kernel, target=target, centre=str(center.preset),
+        centre = "barycenter" if center.origin == "barycenter" else str(center.preset)
+        track = Track(kernel=self.kernel, target=target, centre=centre,
                       frame=self.frame.upper(), epoch_jd=(r.epoch.jd1, r.epoch.jd2),
-                      mu=center.gm_m3_s2 + gm_body)
+                      mu=center.gm_m3_s2 + gm_body, osculate_s=osculate_s)
         try:
             osc = track.elements_at(0.0)
         except UserInputError as err:
             r.problem("scene.epoch", f"{err.problems[0]} (body {name!r} follows it)")
             return None
+        if osculate_s is not None:
+            try:
+                track.elements_at(osculate_s)
+            except UserInputError as err:
+                r.problem(f"{path}.osculating_epoch", err.problems[0])
+                return None
         return track, gm_body, osc
 
     def _size(self, t: dict[str, Any], path: str,
@@ -662,7 +705,8 @@ class _Loader:
         return Body(name=b.name, elements=el, epoch_offset_s=b.epoch_offset_s, color=b.color,
                     line_width_px=2.0 if b.line_width is None else b.line_width, show=show,
                     sweep=sweep, limit_radius_m=limit, radius_m=b.radius,
-                    warnings=tuple(warnings), gm_m3_s2=b.gm, track=b.track)
+                    warnings=tuple(warnings), gm_m3_s2=b.gm, track=b.track,
+                    flight_s=b.flight)
 
     def _sweep_values(self, t: dict[str, Any], path: str) -> dict[str, Any] | None:
         """The sweep table's own values (None if absent or wrong); defaults come later."""

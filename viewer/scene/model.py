@@ -111,20 +111,41 @@ class Body:
     #: Set when the body follows an ephemeris: its position at any time comes from there,
     #: and ``elements`` is the osculating conic at the scene epoch.
     track: Track | None = None
+    #: A trajectory flown only between two scene times (s): its orbit is drawn from the
+    #: first to the second, and its marker and label only in between.
+    flight_s: tuple[float, float] | None = None
+
+    def with_epoch_moved(self, shift_s: float) -> Body:
+        """This body, unchanged in time, for a scene epoch moved ``shift_s`` seconds later:
+        every scene time it holds (its epoch, flight, ephemeris anchor) is re-counted."""
+        flight = None if self.flight_s is None else (self.flight_s[0] - shift_s,
+                                                     self.flight_s[1] - shift_s)
+        track = None if self.track is None else self.track.with_epoch_moved(shift_s)
+        return replace(self, epoch_offset_s=self.epoch_offset_s - shift_s, flight_s=flight,
+                       track=track)
+
+    def in_flight(self, t_s: float) -> bool:
+        """False outside the body's flight (always True for a body without one)."""
+        return self.flight_s is None or self.flight_s[0] <= t_s <= self.flight_s[1]
 
     def elements_at(self, t_s: float) -> Elements:
         """The body's elements (its true anomaly) at scene time t_s; for a body that
         follows an ephemeris, the osculating conic there."""
         if self.track is not None:
+            # ``elements`` is always the osculating conic at ``epoch_offset_s`` (as loaded,
+            # and as ``osculating`` and ``with_epoch_moved`` keep it): no second look-up.
+            if t_s == self.epoch_offset_s:
+                return self.elements
             return self.track.elements_at(t_s)
         return self.elements.after(t_s - self.epoch_offset_s)
 
     def osculating(self, t_s: float) -> Body:
-        """This body with ``elements`` the osculating conic at scene time t_s (itself when
-        it does not follow an ephemeris)."""
+        """This body with ``elements`` the osculating conic at scene time t_s, or at its
+        chosen ``osculating_epoch`` (itself when it does not follow an ephemeris)."""
         if self.track is None:
             return self
-        return replace(self, elements=self.track.elements_at(t_s), epoch_offset_s=t_s)
+        at = t_s if self.track.osculate_s is None else self.track.osculate_s
+        return replace(self, elements=self.track.elements_at(at), epoch_offset_s=at)
 
 
 @dataclass(frozen=True)
@@ -156,6 +177,9 @@ class Center:
     preset: str | None = None
     atmosphere_m: float | None = None
     soi_radius_m: float | None = None
+    #: Where the positions of ephemeris bodies are counted from: "body" (the centre's own
+    #: position: heliocentric for the Sun) or "barycenter" (the solar-system barycentre).
+    origin: str = "body"
 
 
 @dataclass(frozen=True)

@@ -257,6 +257,8 @@ def dump_scene(scene: Scene) -> str:
         if v is not None:
             ct[key] = writer.length(v, "km")
     ct["color"] = writer.color(c.color)
+    if c.origin != "body":
+        ct["origin"] = c.origin
     if not (c.show_body and c.show_label):
         ct["show"] = {"body": c.show_body, "label": c.show_label}
     doc["center"] = ct

@@ -70,7 +70,9 @@ _RULES: dict[str, dict[str, Any]] = {
         + [{"not": {"required": ["periapsis", "apoapsis", "e"]}}],
         "dependentRequired": {"apoapsis": ["periapsis"]},
         "dependentSchemas": {"periapsis": {"anyOf": [{"required": ["e"]},
-                                                     {"required": ["apoapsis"]}]}},
+                                                     {"required": ["apoapsis"]}]},
+                             "osculating_epoch": {"anyOf": [{"required": ["ephemeris"]},
+                                                            {"required": ["ephemeris_body"]}]}},
     },
     "population": {
         "required": ["name"],

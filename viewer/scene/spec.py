@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from ..ephemeris import EPHEMERIDES, TARGETS
+from ..ephemeris import EPHEMERIDES, ORIGINS, TARGETS
 from ..orbit.constants import CATALOGUE
 from .marks import MARKS
 from .marks import NAMES as MARK_NAMES
@@ -103,6 +103,8 @@ CENTER = Key("center", "table", "the central body at the occupied focus", requir
     Key("atmosphere", "length", "height of the top of the atmosphere above the radius",
         "none"),
     Key("soi_radius", "length", "radius of the sphere of influence", "none"),
+    Key("origin", "choice", "bodies that follow an ephemeris: positions from the centre "
+        "body or from the solar-system barycentre", "body", ORIGINS),
     Key("color", "color", "colour of the disc", "#ffd27f"),
     Key("show", "table", "what to draw", keys=(
         Key("body", "bool", "the central body's disc", "true"),
@@ -121,6 +123,11 @@ SWEEP = Key("sweep", "table", "equal-time sectors from the occupied focus", keys
     Key("color", "color", "fill colour", "the body's colour"),
     Key("opacity", "number", "fill opacity, 0 to 1", "0.45"),
     Key("show_area", "bool", "print each sector's area beside it", "false"),
+))
+
+FLIGHT = Key("flight", "table", "a trajectory flown only between two times", keys=(
+    Key("start", "time_or_epoch", "the departure", required=True),
+    Key("end", "time_or_epoch", "the arrival, after the departure", required=True),
 ))
 
 SIZE_KEYS = ("a", "period", "periapsis", "apoapsis")
@@ -148,12 +155,16 @@ BODY = Key("body", "tables", "one orbiting body per [[body]] table", keys=(
     Key("line_width", "number", "line width in pixels at 1080 px image height", "2"),
     Key("gm", "gm", "the body's own GM: its two-body motion uses GM_centre + gm",
         "0, or the ephemeris' value for a body that follows one"),
+    Key("mass", "number", "the body's mass in kg, instead of gm (gm = G mass)", "none"),
     Key("ephemeris", "choice", "the body follows this ephemeris (then it has no orbit keys)",
         "none", EPHEMERIDES),
     Key("ephemeris_body", "choice", "which body of the ephemeris it is",
         "the body's name in lower case", TARGETS),
+    Key("osculating_epoch", "time_or_epoch", "a body that follows an ephemeris: draw the "
+        "osculating conic of this time", "the displayed time"),
     SHOW,
     SWEEP,
+    FLIGHT,
 ))
 
 CAMERA = Key("camera", "table", "how the scene is looked at", keys=(

@@ -145,6 +145,8 @@ def body_table(scene: Scene, body: Body) -> dict[str, Any]:
         t["ephemeris"] = body.track.source
         if body.name.strip().lower() != body.track.target:
             t["ephemeris_body"] = body.track.target
+        if body.track.osculate_s is not None:
+            t["osculating_epoch"] = epoch(scene.epoch.plus_seconds(body.track.osculate_s))
     else:
         if e < 1.0:
             t["a"] = length(float(el.a), lu)
@@ -167,6 +169,9 @@ def body_table(scene: Scene, body: Body) -> dict[str, Any]:
     show = show_table(body.show, body.sweep is not None)
     if show:
         t["show"] = show
+    if body.flight_s is not None:
+        t["flight"] = {"start": epoch(scene.epoch.plus_seconds(body.flight_s[0])),
+                       "end": epoch(scene.epoch.plus_seconds(body.flight_s[1]))}
     if body.sweep is not None:
         t["sweep"] = sweep_table(scene, body)
     return t
