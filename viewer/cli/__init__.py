@@ -25,6 +25,7 @@ COMMANDS: dict[str, str] = {
     "open": "open",
     "check": "check",
     "render": "render",
+    "missing": "missing",
     "convert": "convert",
     "timing": "timing",
     "transfer": "transfer",
