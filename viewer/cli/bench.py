@@ -12,6 +12,7 @@ from typing import Any
 PARTS: dict[str, str] = {
     "kepler": "viewer.orbit.bench:bench_kepler",
     "scene": "viewer.scene.bench:bench_scene",
+    "start": "viewer.scene.bench:bench_cold_start",
     "render": "viewer.render.bench:bench_all",
     "export": "viewer.export.bench:bench_export",
     "window": "viewer.gui.bench:bench_window",
@@ -21,6 +22,7 @@ EXAMPLES = """examples:
   perifocal bench            # every part
   perifocal bench kepler     # 1e6 Kepler solves beside scipy.optimize.newton
   perifocal bench scene      # loading 1,000 bodies and 100,000-row populations
+  perifocal bench start      # perifocal check in a fresh process, beside importing numpy
   perifocal bench render     # demo frame beside matplotlib; 100k bodies; memory
   perifocal bench export     # PNG sequence beside matplotlib, MP4 rate, 4K dome master
   perifocal bench window     # the viewer at 1920x1080 (starts Xvfb if there is no display)
