@@ -230,7 +230,8 @@ def test_workers_with_another_version_are_refused(cluster: object, scene: Path, 
                  cluster.scheduler_address, "-o", f"{out}/"])  # type: ignore[attr-defined]
     err = capsys.readouterr().err
     assert code == 2
-    assert "this client 0.0.0-elsewhere; install the same version everywhere" in err
+    assert "this client Perifocal 0.0.0-elsewhere, isal" in err
+    assert "install the same versions everywhere" in err
     assert not out.exists()
 
 

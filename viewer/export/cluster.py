@@ -113,8 +113,20 @@ def _import_distributed() -> Any:
     return distributed
 
 
+def software() -> str:
+    """The versions that decide a frame's bytes besides the scene: Perifocal's, and its
+    PNG compressor's (another isal version may write other, equally valid, bytes)."""
+    from importlib.metadata import PackageNotFoundError, version
+
+    try:
+        isal = version("isal")
+    except PackageNotFoundError:
+        isal = "missing"
+    return f"Perifocal {__version__}, isal {isal}"
+
+
 def _worker_version() -> str:
-    return __version__
+    return software()
 
 
 def _probe_folder(folder: str) -> str | None:
@@ -187,13 +199,14 @@ def prepare_workers(client: Any, folder: str | None) -> int:
         raise UserInputError("--scheduler", f"a worker cannot run Perifocal "
                              f"({type(err).__name__}: {err}); install perifocal on every "
                              "worker") from None
+    mine = software()
     _refuse({w: (f"cannot run Perifocal ({v})" if isinstance(v, BaseException) else
-                 None if v == __version__ else
-                 f"has Perifocal {v}, this client {__version__}; install the same version "
-                 "everywhere") for w, v in versions.items()}, "cannot render this show")
+                 None if v == mine else
+                 f"has {v}, this client {mine}; install the same versions everywhere")
+             for w, v in versions.items()}, "cannot render this show")
     from . import cluster_worker
 
-    client.register_plugin(cluster_worker.RenderSlot(__version__), name=PLUGIN_NAME)
+    client.register_plugin(cluster_worker.RenderSlot(mine), name=PLUGIN_NAME)
     _refuse(client.run(cluster_worker.slot_problem), "have no OpenGL")
     if folder is not None:
         _refuse(client.run(_probe_folder, folder), f"cannot write the output folder {folder}")

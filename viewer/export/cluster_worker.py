@@ -15,10 +15,9 @@ from typing import Any
 
 from distributed import WorkerPlugin, get_worker
 
-from .. import __version__
 from ..errors import UserInputError
 from ..fileio import atomic_write_bytes, describe_os_error
-from .cluster import PLUGIN_NAME, Job, Show
+from .cluster import PLUGIN_NAME, Job, Show, software
 from .encode import encode_still, image_is_complete
 from .frames import frame_path
 
@@ -30,7 +29,7 @@ class RenderSlot(WorkerPlugin):
     with no OpenGL, keeps the reason in ``problem`` and refuses every chunk with it.
     """
 
-    def __init__(self, version: str = __version__) -> None:
+    def __init__(self, version: str) -> None:
         self.version = version
         self.problem: str | None = None
 
@@ -40,9 +39,9 @@ class RenderSlot(WorkerPlugin):
         self._show: Any = None
         self._renderer: Any = None
         self._ctx: Any = None
-        if self.version != __version__:
-            self.problem = (f"this worker has Perifocal {__version__}, the client "
-                            f"{self.version}; install the same version everywhere")
+        if self.version != software():
+            self.problem = (f"this worker has {software()}, the client {self.version}; "
+                            "install the same versions everywhere")
             return
         self.problem = self._thread.submit(self._open).result()
 
