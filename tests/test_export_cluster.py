@@ -254,3 +254,22 @@ def test_missing_lists_absent_and_broken_frames_as_ranges(
 def test_frame_ranges_are_half_open_runs() -> None:
     assert frame_ranges([9, 3, 4, 5, 11]) == [range(3, 6), range(9, 10), range(11, 12)]
     assert frame_ranges([]) == []
+
+
+def test_workers_without_opengl_are_refused(scene: Path, tmp_path: Path,
+                                            capsys: pytest.CaptureFixture[str],
+                                            monkeypatch: pytest.MonkeyPatch) -> None:
+    # A worker process whose Mesa cannot find its drivers has no OpenGL (eglInitialize
+    # fails), as on a node without the GL packages.
+    monkeypatch.setenv("LIBGL_DRIVERS_PATH", str(tmp_path / "no-drivers-here"))
+    out = tmp_path / "never"
+    with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=True,
+                                  dashboard_address=":0", silence_logs=40) as no_gl:
+        code = main(["render", str(scene), "--scheduler", no_gl.scheduler_address,
+                     "-o", f"{out}/"])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert "1 of 1 workers have no OpenGL" in err
+    assert "install libegl1 and libgl1-mesa-dri" in err
+    assert "Traceback" not in err
+    assert not out.exists()
