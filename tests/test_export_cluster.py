@@ -273,3 +273,15 @@ def test_workers_without_opengl_are_refused(scene: Path, tmp_path: Path,
     assert "install libegl1 and libgl1-mesa-dri" in err
     assert "Traceback" not in err
     assert not out.exists()
+
+
+def test_a_dome_master_sequence_on_the_cluster_matches_a_local_one(
+        cluster: object, scene: Path, tmp_path: Path) -> None:
+    # The dome's reprojection runs in each worker's own GL context, kept across chunks.
+    flags = ["--dome", "--size", "96x96", "--frames", "4:12"]
+    assert main(["render", str(scene), *flags, "-o", f"{tmp_path / 'here'}/"]) == 0
+    assert main(["render", str(scene), *flags, "--chunk", "3", "--scheduler",
+                 cluster.scheduler_address,  # type: ignore[attr-defined]
+                 "-o", f"{tmp_path / 'there'}/"]) == 0
+    assert digest(tmp_path / "there") == digest(tmp_path / "here")
+    assert len(digest(tmp_path / "here")) == 8
