@@ -131,6 +131,21 @@ def test_eccentric_anomaly_for_many_turns_meets_the_contract() -> None:
         assert abs(got - float(want)) <= allowed, (m, x)
 
 
+def test_a_large_array_solved_in_blocks_on_threads_matches_mpmath() -> None:
+    # 200,000 values: more than one block, so the blocks are solved on several threads.
+    # A sample of them against mpmath, every one against the contract's residual.
+    n = 200_000
+    M = rng.uniform(-20.0, 20.0, n)
+    e = np.concatenate([rng.uniform(0, 1, n // 2), 1 - 10 ** rng.uniform(-12, -1, n // 2)])
+    E = eccentric_anomaly(M, e)
+    assert E.shape == (n,)
+    assert np.max(kepler_residual(E, M, e)) <= CONTRACT_RESIDUAL
+    for k in rng.choice(n, 60, replace=False):
+        condition = 1.0 / float(1 - e[k] * mp.cos(_mp_eccentric(M[k], e[k])))
+        allowed = E_VS_MPMATH + 4 * EPS * abs(M[k]) * condition
+        assert abs(E[k] - float(_mp_eccentric(M[k], e[k]))) <= allowed, (M[k], e[k])
+
+
 @settings(max_examples=150, deadline=None)
 @given(M=st.floats(-1e3, 1e3), e=st.floats(0.0, 1.0, exclude_max=True))
 def test_eccentric_anomaly_stays_in_the_turn_of_m_with_contract_residual(M: float,

@@ -19,3 +19,8 @@ class UserInputError(Exception):
         self.source = source
         self.problems = [problems] if isinstance(problems, str) else list(problems)
         super().__init__(f"{source}: " + "; ".join(self.problems))
+
+    def __reduce__(self) -> tuple[type, tuple[str, list[str]]]:
+        # Pickled as a plain UserInputError with its source and problems (subclasses take
+        # other arguments), so an error raised in a cluster worker reads the same here.
+        return (UserInputError, (self.source, self.problems))

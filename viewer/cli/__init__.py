@@ -13,7 +13,6 @@ from __future__ import annotations
 import argparse
 import importlib
 import sys
-import traceback
 from collections.abc import Sequence
 from typing import Any
 
@@ -27,6 +26,7 @@ COMMANDS: dict[str, str] = {
     "open": "open",
     "check": "check",
     "render": "render",
+    "missing": "missing",
     "convert": "convert",
     "timing": "timing",
     "transfer": "transfer",
@@ -58,7 +58,9 @@ class _Parser(argparse.ArgumentParser):
         raise SystemExit(2)
 
 
-def build_parser() -> argparse.ArgumentParser:
+def build_parser(command: str | None = None) -> argparse.ArgumentParser:
+    """The parser of every command; given a known ``command``, of that one only, so a
+    command imports no other command's module (``perifocal check`` starts faster)."""
     parser = _Parser(
         prog="perifocal",
         description="Orbital elements in, correct orbit pictures out: check, render, edit.",
@@ -68,8 +70,8 @@ def build_parser() -> argparse.ArgumentParser:
     )
     parser.add_argument("--version", action="version", version=f"perifocal {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
-    for module in COMMANDS.values():
-        importlib.import_module(f"{__name__}.{module}").add_parser(sub)
+    for name in [command] if command in COMMANDS else list(COMMANDS):
+        importlib.import_module(f"{__name__}.{COMMANDS[name]}").add_parser(sub)
     return parser
 
 
@@ -79,7 +81,8 @@ def report_input_error(err: UserInputError) -> None:
 
 
 def main(argv: Sequence[str] | None = None) -> int:
-    parser = build_parser()
+    argv = sys.argv[1:] if argv is None else list(argv)
+    parser = build_parser(argv[0] if argv else None)
     args = parser.parse_args(argv)
     if args.command is None:
         parser.print_help()
@@ -95,6 +98,8 @@ def main(argv: Sequence[str] | None = None) -> int:
     except BrokenPipeError:
         return 0
     except Exception:  # an internal error: show everything, say how to report it
+        import traceback
+
         traceback.print_exc()
         sys.stderr.write(REPORT + "\n")
         return 1

@@ -11,6 +11,7 @@ PARTS: dict[str, str] = {
     "kepler": "viewer.orbit.bench:bench_kepler",
     "porkchop": "viewer.mission.bench:bench_porkchop",
     "scene": "viewer.scene.bench:bench_scene",
+    "start": "viewer.scene.bench:bench_cold_start",
     "render": "viewer.render.bench:bench_all",
     "export": "viewer.export.bench:bench_export",
     "window": "viewer.gui.bench:bench_window",
@@ -21,6 +22,7 @@ EXAMPLES = """examples:
   perifocal bench kepler     # 1e6 Kepler solves beside scipy.optimize.newton
   perifocal bench porkchop   # a 200 x 200 Earth-Mars grid beside a per-cell scipy loop
   perifocal bench scene      # loading 1,000 bodies and 100,000-row populations
+  perifocal bench start      # perifocal check in a fresh process, beside importing numpy
   perifocal bench render     # demo frame beside matplotlib; 100k bodies; memory; real sky
   perifocal bench export     # PNG sequence beside matplotlib, MP4 rate, 4K dome master
   perifocal bench window     # the viewer at 1920x1080 (starts Xvfb if there is no display)

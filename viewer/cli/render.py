@@ -17,6 +17,7 @@ from pathlib import Path
 from typing import Any
 
 from ..errors import UserInputError
+from . import cluster_options
 
 EXAMPLES = """examples:
   perifocal render scenes/demo.toml -o demo.png
@@ -30,6 +31,7 @@ EXAMPLES = """examples:
   perifocal render scenes/demo.toml --dome --size 4096x4096 -o dome/
   perifocal render scenes/demo.toml --dome 200 --tilt 20 --at "30 d" -o dome.png
   perifocal render scenes/demo.toml --panorama -o pano.png
+  perifocal render scenes/demo.toml --scheduler tcp://10.0.0.5:8786 -o /shared/frames/
 
 --at is an offset from the scene epoch ("90 d", "-15 d"; a bare number is in the scene's
 time unit) or an epoch ("2030-06-01T00:00:00 TDB"); the default is the timeline start.
@@ -85,6 +87,7 @@ def add_parser(sub: Any) -> None:
                    "NAME.bak)")
     p.add_argument("--resume", action="store_true",
                    help="sequence: skip frames whose files are already complete")
+    cluster_options.add_arguments(p)
     p.set_defaults(run=run)
 
 
@@ -208,6 +211,14 @@ def run(args: argparse.Namespace) -> int:
         from ..export.encode import check_video_size
 
         check_video_size(*out_size)
+    options = {"transparent": args.transparent, "bits": args.bits} if fmt == "png" else {}
+    # Everything a sequence's frames depend on, recorded in its folder (resume checks it).
+    settings = {"size": list(out_size), "format": fmt, **options,
+                "projection": repr(spec), "scene_sha256": _digest(args.scene)}
+    address = cluster_options.cluster_address(args, kind)
+    if address is not None:
+        return cluster_options.run_on_cluster(args, address, scene, kind, fmt, spec, out_size,
+                                              settings)
     if fmt == "svg":
         from ..export.svg import write_svg
 
@@ -228,9 +239,6 @@ def run(args: argparse.Namespace) -> int:
 
         todo = parse_frame_range(args.frames, scene.timeline.frame_count)
         if kind == "sequence":
-            options = {"transparent": args.transparent, "bits": args.bits} if fmt == "png" else {}
-            settings = {"size": list(out_size), "format": fmt, **options,
-                        "projection": repr(spec), "scene_sha256": _digest(args.scene)}
             result = render_sequence(todo, frames.frame, Path(args.output), fmt,
                                      resume=args.resume, size=out_size, settings=settings,
                                      **options)

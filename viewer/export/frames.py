@@ -78,7 +78,7 @@ def prepare_folder(folder: Path) -> None:
         raise UserInputError(str(folder), "the output folder is not writable")
 
 
-def _settings_check(folder: Path, settings: Mapping[str, object], resume: bool) -> None:
+def record_settings(folder: Path, settings: Mapping[str, object], resume: bool) -> None:
     """With ``resume``, refuse a folder whose frames were made with other settings (its
     SETTINGS_NAME file says so); then record the current ones there."""
     record = folder / SETTINGS_NAME
@@ -128,7 +128,7 @@ def render_sequence(frames: range, render: RenderFn, folder: Path, fmt: str = "p
     """
     prepare_folder(folder)
     if settings is not None:
-        _settings_check(folder, settings, resume)
+        record_settings(folder, settings, resume)
     if resume:
         _remove_stale_temporaries(folder, frames, fmt)
     bits = int(options.get("bits", 8))  # type: ignore[call-overload]

@@ -109,3 +109,47 @@ def bench_scene(n_bodies: int = 1000, n_rows: int = 100_000, repeat: int = 5) ->
     return {"title": "scene files: loading and validation (median of "
             f"{repeat} runs)", "rows": rows, "verdicts": verdicts, "timings_s": timings,
             "counts": counts}
+
+
+COLD_START_BUDGET_S = 0.3
+
+
+def _child_s(argv: list[str], repeat: int) -> tuple[float, float]:
+    """Median wall time and median CPU time (user + system) of a fresh process."""
+    import os
+    import subprocess
+    import sys
+
+    walls, cpus = [], []
+    for _ in range(repeat):
+        before = os.times()
+        t0 = time.perf_counter()
+        subprocess.run([sys.executable, *argv], check=True, stdout=subprocess.DEVNULL)
+        walls.append(time.perf_counter() - t0)
+        after = os.times()
+        cpus.append((after.children_user - before.children_user)
+                    + (after.children_system - before.children_system))
+    return statistics.median(walls), statistics.median(cpus)
+
+
+def bench_cold_start(repeat: int = 9) -> dict[str, Any]:
+    """``perifocal check`` on a bundled scene in a fresh process, beside a fresh process
+    that only imports numpy (the floor any numpy program pays)."""
+    from importlib.resources import files
+
+    scene = str(files("viewer") / "scenes" / "demo.toml")
+    wall, cpu = _child_s(["-m", "viewer.cli", "check", scene], repeat)
+    floor_wall, floor_cpu = _child_s(["-c", "import numpy"], repeat)
+    rows = [("perifocal check scenes/demo.toml, fresh process", wall * 1e3, "ms",
+             f"CPU {cpu * 1e3:.0f} ms (user + system)"),
+            ("python -c 'import numpy' (baseline: the floor)", floor_wall * 1e3, "ms",
+             f"CPU {floor_cpu * 1e3:.0f} ms"),
+            ("check above the floor", (wall - floor_wall) * 1e3, "ms",
+             f"CPU {(cpu - floor_cpu) * 1e3:.0f} ms")]
+    verdicts = [f"cold start <= {COLD_START_BUDGET_S} s: "
+                f"{'met' if wall <= COLD_START_BUDGET_S else 'NOT met'} (wall); "
+                f"{'met' if cpu <= COLD_START_BUDGET_S else 'NOT met'} (CPU, what a "
+                "loaded machine cannot inflate)"]
+    return {"title": f"cold start, median of {repeat} fresh processes", "rows": rows,
+            "verdicts": verdicts, "timings_s": {"check": wall, "check_cpu": cpu,
+                                                "numpy": floor_wall, "numpy_cpu": floor_cpu}}
