@@ -66,5 +66,6 @@ def run_on_cluster(args: argparse.Namespace, address: str, scene: Any, kind: str
                                return_frames=args.return_frames, fps=scene.timeline.fps,
                                quality=args.quality, **options)
     print(f"wrote {args.output} ({result.rendered} frames rendered on the cluster"
-          + (f", {result.skipped} already complete" if result.skipped else "") + ")")
+          + (f", {result.skipped} already complete" if result.skipped else "")
+          + (f"; all {len(todo)} frames checked whole" if kind == "sequence" else "") + ")")
     return 0
