@@ -94,12 +94,14 @@ def frames_of(folder: Path) -> dict[str, str]:
     return {k: v for k, v in digest(folder).items() if k.startswith("frame_")}
 
 
-def test_a_cluster_render_is_byte_identical_to_a_local_one(cluster: object, scene: Path,
-                                                           local: Path, tmp_path: Path) -> None:
+def test_a_cluster_render_is_byte_identical_to_a_local_one(
+        cluster: object, scene: Path, local: Path, tmp_path: Path,
+        capsys: pytest.CaptureFixture[str]) -> None:
     address = cluster.scheduler_address  # type: ignore[attr-defined]
     shared = tmp_path / "shared"
     assert main(["render", str(scene), "--scheduler", address, "--chunk", "3",
                  "-o", f"{shared}/"]) == 0
+    assert f"all {FRAMES} frames checked whole" in capsys.readouterr().out
     assert digest(shared) == digest(local)
     assert len(frames_of(local)) == FRAMES
     # With no shared storage the client writes the frames the workers send back.

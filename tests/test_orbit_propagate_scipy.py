@@ -105,6 +105,27 @@ def test_propagate_many_bodies_at_many_times_agrees_with_dop853() -> None:
     _assert_agree(r, v, r_ref, v_ref)
 
 
+def test_a_near_rectilinear_ellipse_where_newton_diverges_is_propagated() -> None:
+    # e = 0.9977, periapsis 43 km from the centre (a point mass), 17 periapsis passes:
+    # Newton's iteration on the universal variable diverges here (found by the property
+    # test of energy conservation); the Laguerre-Conway fallback must converge. Checked
+    # against the conservation of energy and angular momentum (two-body physics) and
+    # against DOP853; the integrator keeps only about 1e-8 through such periapsis passes.
+    r0 = np.array([32647288.0, 0.0, 0.0])
+    v0 = np.array([1844.2956126903193, 0.0, 180.10699342678902])
+    dt = 434078.75
+    r, v = propagate(r0, v0, MU_EARTH, dt)
+
+    def energy(r: np.ndarray, v: np.ndarray) -> float:
+        return float(v @ v / 2 - MU_EARTH / np.linalg.norm(r))
+
+    assert abs(energy(r, v) - energy(r0, v0)) <= 1e-12 * abs(energy(r0, v0))
+    h0 = np.cross(r0, v0)
+    assert np.linalg.norm(np.cross(r, v) - h0) <= 1e-12 * np.linalg.norm(h0)
+    r_ref, v_ref = _integrate(r0, v0, MU_EARTH, np.array([dt]))
+    _assert_agree(r, v, r_ref[0, 0], v_ref[0, 0], rel=1e-6)
+
+
 def test_propagate_shapes_follow_the_contract() -> None:
     # cli.md: (3,) + scalar -> (3,); (N, 3) + scalar -> (N, 3); (3,) + (T,) -> (T, 3);
     # (N, 3) + (T,) -> (T, N, 3); each entry equal to the one-body, one-time answer.

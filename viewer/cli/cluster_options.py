@@ -67,5 +67,6 @@ def run_on_cluster(args: argparse.Namespace, address: str, scene: Any, kind: str
                                quality=args.quality,
                                settings=settings if kind == "sequence" else None, **options)
     print(f"wrote {args.output} ({result.rendered} frames rendered on the cluster"
-          + (f", {result.skipped} already complete" if result.skipped else "") + ")")
+          + (f", {result.skipped} already complete" if result.skipped else "")
+          + (f"; all {len(todo)} frames checked whole" if kind == "sequence" else "") + ")")
     return 0

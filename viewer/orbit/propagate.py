@@ -63,6 +63,41 @@ def _dot(a: Floats, b: Floats) -> Floats:
     return np.einsum("...i,...i->...", a, b)
 
 
+def _kepler_universal(chi: Floats, r0n: Floats, rv: Floats, alpha: Floats, dt: Floats,
+                      sqmu: float) -> tuple[Floats, Floats, Floats, Floats, Floats]:
+    """psi, c2, c3, the radius r (= dG/dchi) and f = sqrt(mu) dt - G(chi) at ``chi``."""
+    psi = chi * chi * alpha
+    c2, c3 = stumpff_c2_c3(psi)
+    r = chi * chi * c2 + rv / sqmu * chi * (1.0 - psi * c3) + r0n * (1.0 - psi * c2)
+    f = sqmu * dt - chi**3 * c3 - rv / sqmu * chi * chi * c2 - r0n * chi * (1.0 - psi * c3)
+    return psi, c2, c3, r, f
+
+
+def _laguerre_conway(chi: Floats, r0n: Floats, rv: Floats, alpha: Floats, dt: Floats,
+                     sqmu: float) -> Floats:
+    """The universal variable by Laguerre's method (n = 5), for the states where Newton's
+    method did not converge (it can diverge on near-rectilinear ellipses, e -> 1, whose
+    radius, the derivative, is tiny at periapsis).
+
+    B. A. Conway, "An improved algorithm due to Laguerre for the solution of Kepler's
+    equation", Celestial Mechanics 39 (1986) 199-211 ("from memory"): with
+    G(chi) = chi^3 c3 + rv/sqrt(mu) chi^2 c2 + r0 chi (1 - psi c3) - sqrt(mu) dt,
+    G' = r and G'' = rv/sqrt(mu) (1 - psi c2) + (1 - alpha r0) chi (1 - psi c3), the
+    step is -n G / (G' + sqrt(|(n - 1)^2 G'^2 - n (n - 1) G G''|)).
+    """
+    n = 5.0
+    todo = np.ones(chi.shape, dtype=bool)
+    for _ in range(200):
+        psi, c2, c3, r, f = _kepler_universal(chi, r0n, rv, alpha, dt, sqmu)
+        d2 = rv / sqmu * (1.0 - psi * c2) + (1.0 - alpha * r0n) * chi * (1.0 - psi * c3)
+        step = n * f / (r + np.sqrt(np.abs((n - 1.0) ** 2 * r * r + n * (n - 1.0) * f * d2)))
+        chi = np.where(todo, chi + step, chi)
+        todo = todo & (np.abs(step) > 1e-14 * np.abs(chi) + 1e-12)
+        if not np.any(todo):
+            return chi
+    raise OrbitError("universal-variable iteration did not converge")
+
+
 def _propagate_flat(r0: Floats, v0: Floats, mu: float, dt: Floats) -> tuple[Floats, Floats]:
     """r0, v0 of shape (K, 3) and dt of shape (K,), one time per state."""
     sqmu = np.sqrt(mu)
@@ -106,6 +141,7 @@ def _propagate_flat(r0: Floats, v0: Floats, mu: float, dt: Floats) -> tuple[Floa
     reach = sqmu * dt / q * (1.0 + 1e-9)
     lo, hi = np.minimum(reach, 0.0) - 1e-12, np.maximum(reach, 0.0) + 1e-12
     chi = np.clip(chi, lo, hi)
+    start = chi.copy()  # where Laguerre-Conway starts, should bracketed Newton not settle
     todo = np.ones(dt.shape, dtype=bool)
     for _ in range(200):
         psi = chi * chi * alpha
@@ -122,7 +158,8 @@ def _propagate_flat(r0: Floats, v0: Floats, mu: float, dt: Floats) -> tuple[Floa
         if not np.any(todo):
             break
     else:
-        raise OrbitError("universal-variable iteration did not converge")
+        chi[todo] = _laguerre_conway(start[todo], r0n[todo], rv[todo], alpha[todo], dt[todo],
+                                     sqmu)
     psi = chi * chi * alpha
     c2, c3 = stumpff_c2_c3(psi)
     r = chi * chi * c2 + rv / sqmu * chi * (1.0 - psi * c3) + r0n * (1.0 - psi * c2)
