@@ -7,7 +7,8 @@ any change to the renderer or the scenes:
 Each still is the scene at its timeline start through its own camera, at 1600x900
 (labels and lines scale with the height), drawn headlessly by the same renderer as the
 viewer. Two more show other ways of looking at the demo: a perspective view from low
-over the reference plane, and an edge-on view.
+over the reference plane, and an edge-on view; and ``demo-dome.png`` is a 1024 px dome
+master of the demo's show 14 s in, with its caption and clock, as a planetarium gets it.
 """
 
 from __future__ import annotations
@@ -58,7 +59,27 @@ def main(argv: list[str]) -> int:
                 target = OUT / f"{out_name}.png"
                 atomic_write_bytes(target, png_bytes(rgba))
                 print(f"wrote {target.relative_to(OUT.parent.parent)}")
+        if not wanted or "demo" in wanted or "demo-dome" in wanted:
+            _dome_master(renderer, load_scene(_scenes()["demo"]))
     return 0
+
+
+def _dome_master(renderer, scene) -> None:  # type: ignore[no-untyped-def]
+    """The demo's dome master 14 s into its show (a caption on), through ShowFrames."""
+    from viewer.export.encode import png_bytes
+    from viewer.export.immersive import Immersive
+    from viewer.export.show import ShowFrames
+    from viewer.fileio import atomic_write_bytes
+
+    size = (1024, 1024)
+    frames = ShowFrames(renderer, scene, size, Immersive("dome", size))
+    try:
+        rgba = frames.frame(int(14 * scene.timeline.fps))
+    finally:
+        frames.close()
+    target = OUT / "demo-dome.png"
+    atomic_write_bytes(target, png_bytes(rgba))
+    print(f"wrote {target.relative_to(OUT.parent.parent)}")
 
 
 if __name__ == "__main__":

@@ -130,6 +130,8 @@ def test_sixteen_bit_transparent_sequence(scene: Path, tmp_path: Path) -> None:
         (["--panorama", "--size", "300x200", "-o", "p.png"], "--size", "2:1"),
         (["--dome", "--panorama", "-o", "p.png"], "--dome/--panorama", "choose one"),
         (["--tilt", "10", "-o", "p.png"], "--tilt", "add --dome"),
+        (["--dome", "--tilt", "-50", "-o", "d.png"], "--tilt", "0 to 45 deg"),
+        (["--dome", "--tilt", "60", "-o", "d.png"], "--tilt", "0 to 45 deg"),
         (["--resume", "-o", "x.png"], "--resume", "applies to a frame sequence"),
         (["--dome", "-o", "d.svg"], "-o", "flat view"),
     ],

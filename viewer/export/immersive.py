@@ -4,16 +4,25 @@ The eye is the camera's eye (``target + distance * d``, also for orthographic ca
 Each needed cube face is drawn by ``Renderer.draw`` as a 90 deg square perspective view
 from that eye into a texture; ``shaders/reproject.frag`` then maps every output pixel's
 direction (the definitions of ``projection.py``) to the face that sees it, averaging an
-n x n grid of sub-pixel samples so lines stay crisp at 4K and 8K. Line widths, markers
-and labels are sized for the output's height, not the faces'.
+n x n grid of sub-pixel samples so lines stay crisp at 4K and 8K. Line widths and
+markers are sized as angles on the sky (the scene's [dome] table), not in face pixels.
 
-Labels are screen-space marks of each face: one that straddles a face edge is cut there.
+Labels, captions and the clock are not drawn on the faces: they are placed again in the
+output's pixels and drawn after the reprojection (``immersive_text.py``), so none is cut
+or doubled at a face seam.
+
+Composition (docs/export.md, "Composing for the dome"): the camera's ``dome_distance``
+sets the eye, ``dome_elevation`` puts the target that far above the audience's horizon
+straight ahead at the front, and ``dome_tilt`` (or ``--tilt``) is the dome's own tilt
+toward the front; together they turn the master's zenith by
+``dome_elevation + dome_tilt - 90 deg`` toward the front from the target.
 """
 
 from __future__ import annotations
 
 import functools
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass, replace
 from typing import Any
 
@@ -22,9 +31,19 @@ from numpy.typing import NDArray
 
 from ..errors import UserInputError
 from ..geometry.camera import View, view_for
+from ..geometry.labels import place_labels
 from ..render.renderer import Renderer
 from ..render.shaders import load_program
-from ..scene.model import Camera, Scene
+from ..scene.model import Camera, DomeSettings, Scene
+from ..scene.timeline import OverlayText
+from .dome_grid import dome_grid
+from .immersive_text import (
+    OutputMap,
+    body_label_px,
+    caption_requests,
+    label_scale,
+    output_requests,
+)
 from .projection import CUBE_FACES, dome_directions, panorama_directions
 
 UInt8s = NDArray[np.uint8]
@@ -42,6 +61,11 @@ class Immersive:
     fov_deg: float = 180.0
     tilt_deg: float = 0.0
     grid: int = 2
+    #: The dome's tilt toward the front (deg), overriding the camera's ``dome_tilt``;
+    #: None keeps the camera's. ``tilt_deg`` is the turn of the zenith the renderer uses.
+    dome_tilt_deg: float | None = None
+    #: Draw the dome grid (dome_grid.py) even if the scene's [dome] grid is off.
+    dome_grid: bool = False
 
     def __post_init__(self) -> None:
         w, h = self.size_px
@@ -59,6 +83,19 @@ class Immersive:
                 raise UserInputError("--size", f"a panorama is 2:1; got {w}x{h}")
         else:
             raise ValueError(self.kind)
+
+    def framed(self, camera: Camera) -> Immersive:
+        """This request with the zenith turn of ``camera``'s dome framing added:
+        ``tilt_deg`` + dome_elevation + dome tilt - 90 deg (dome masters only)."""
+        if self.kind != "dome":
+            return self
+        tilt = math.degrees(camera.dome_tilt_rad) if self.dome_tilt_deg is None \
+            else self.dome_tilt_deg
+        turn = self.tilt_deg + math.degrees(camera.dome_elevation_rad) + tilt - 90.0
+        return replace(self, tilt_deg=turn, dome_tilt_deg=0.0)
+
+    def output_map(self) -> OutputMap:
+        return OutputMap(self.kind, self.size_px, self.fov_deg, self.tilt_deg)
 
     def face_px(self) -> int:
         """Face size so a face pixel is no larger than an output pixel where they meet."""
@@ -84,12 +121,24 @@ def needed_faces(spec: Immersive) -> tuple[str, ...]:
     return tuple(name for i, name in enumerate(FACE_NAMES) if i in hit)
 
 
-def face_views(base: View, spec: Immersive) -> dict[str, View]:
+#: Face pixels per radian, as a fraction of the face size, that angle sizes are set for:
+#: a 90 deg face has size/2 at its centre and twice that at its edges.
+FACE_PX_PER_RAD = 0.7
+
+
+def style_height(spec: Immersive, dome: DomeSettings) -> float:
+    """The faces' style height (px): a line of width 2 is ``dome.line_width`` wide."""
+    face_px = dome.line_width_rad * dome.line_scale * FACE_PX_PER_RAD * spec.face_px()
+    return 1080.0 * face_px / 2.0
+
+
+def face_views(base: View, spec: Immersive, dome: DomeSettings | None = None
+               ) -> dict[str, View]:
     """One perspective View per needed face, from the base view's eye."""
     r, u, f = base.basis[0], base.basis[1], -base.basis[2]
     eye = base.eye_m
     size = spec.face_px()
-    style = spec.size_px[1]
+    style = style_height(spec, dome or DomeSettings())
     views = {}
     for name in needed_faces(spec):
         (fx, fy, fz), (ux, uy, uz) = CUBE_FACES[name]
@@ -99,8 +148,22 @@ def face_views(base: View, spec: Immersive) -> dict[str, View]:
         views[name] = replace(
             base, size_px=(size, size), projection="perspective",
             origin_m=eye + base.distance_m * F, basis=np.vstack([R, U, -F]),
-            fov_rad=math.pi / 2, style_height_px=style)
+            fov_rad=math.pi / 2, style_height_px=style)  # type: ignore[arg-type]
     return views
+
+
+#: The reference-plane grid's opacity on dome masters and panoramas, times the flat one's:
+#: a faint line vanishes on a projected dome (common practice, no source).
+GRID_EMPHASIS = 2.2
+
+
+def emphasised_grid(grid: NDArray[np.float64]) -> NDArray[np.float64]:
+    """Grid stroke vertices with their opacity raised by GRID_EMPHASIS (at most 1)."""
+    if len(grid) == 0:
+        return grid
+    out = grid.copy()
+    out[:, -1] = np.minimum(1.0, out[:, -1] * GRID_EMPHASIS)
+    return out
 
 
 class ImmersiveRenderer:
@@ -125,18 +188,30 @@ class ImmersiveRenderer:
         return self._faces[size]
 
     def render(self, scene: Scene, t_s: float, spec: Immersive, camera: Camera | None = None,
-               transparent: bool = False, out: UInt8s | None = None) -> UInt8s:
-        """The dome master or panorama of ``scene`` at scene time ``t_s`` as RGBA uint8."""
-        base = view_for(scene, t_s, spec.size_px, camera)
-        views = face_views(base, spec)
+               transparent: bool = False, out: UInt8s | None = None,
+               overlay: Sequence[OverlayText] = ()) -> UInt8s:
+        """The dome master or panorama of ``scene`` at scene time ``t_s`` as RGBA uint8,
+        with its labels, and ``overlay`` (captions, the clock) placed by the output's rules."""
+        cam = scene.camera if camera is None else camera
+        spec = spec.framed(cam)
+        omap = spec.output_map()
+        source = str(scene.source) if scene.source else "scene"
+        captions = caption_requests(overlay, scene.dome, omap, self.renderer.measure, source)
+        base = view_for(scene, t_s, spec.size_px,
+                        replace(cam, distance_m=cam.immersive_distance_m))
+        views = face_views(base, spec, scene.dome)
         prog = self.program
         size = spec.face_px()
         atlas, atlas_fbo = self._atlas(size)
+        face_text = []
         for i, name in enumerate(FACE_NAMES):
             view = views.get(name)
             if view is None:
                 continue
             geom = self.renderer.geometry(scene, t_s, view, transparent)
+            face_text.append((view, geom.label_requests, geom.label_obstacles))
+            geom.labels = []
+            geom.grid = emphasised_grid(geom.grid)
             self.renderer.draw(geom, atlas_fbo, top_row_first=False,
                                origin_px=((i % 3) * size, (i // 3) * size))
         atlas.use(location=0)
@@ -162,6 +237,14 @@ class ImmersiveRenderer:
         self.ctx.disable(self.renderer._mgl.BLEND)
         self.vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
         self.ctx.enable(self.renderer._mgl.BLEND)
+        grid_strokes, grid_labels = (dome_grid(omap) if spec.dome_grid or scene.dome.grid
+                                     else (None, []))
+        if face_text:
+            k = label_scale(scene.dome, omap, body_label_px(face_text[0][0]))
+            requests, boxes = output_requests(face_text, base, omap, k)
+            placed = place_labels(captions + grid_labels + requests, self.renderer.measure,
+                                  spec.size_px, boxes, omap.outside)
+            self.renderer.draw_labels(placed, fbo, spec.size_px, strokes=grid_strokes)
         return self.renderer.read(fbo, spec.size_px, transparent, out)
 
     def release(self) -> None:

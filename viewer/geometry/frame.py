@@ -109,6 +109,10 @@ class FrameGeometry:
     populations: list[Population] = field(default_factory=list)
     t_s: float = 0.0
     vector: VectorParts | None = None
+    #: Every label wanted, before placement, and the boxes labels keep clear of (markers):
+    #: the dome and the panorama place them again in their own pixels.
+    label_requests: list[LabelRequest] = field(default_factory=list)
+    label_obstacles: list[tuple[float, float, float, float]] = field(default_factory=list)
 
 
 def _rgba(c: RGB, a: float = 1.0) -> RGBA:
@@ -337,7 +341,8 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     return FrameGeometry(
         view=view, background=background, stars=static.stars, grid=static.grid,
         fills=static.fills, glows=static.glows, strokes=strokes, markers=marker_rows,
-        labels=placed, populations=list(scene.populations), t_s=t_s, vector=vector)
+        labels=placed, populations=list(scene.populations), t_s=t_s, vector=vector,
+        label_requests=labels, label_obstacles=obstacles)
 
 
 #: Margin between overlay text and the picture's edge, px at 1080 px image height.

@@ -33,7 +33,7 @@ from typing import Any
 from ..errors import UserInputError
 from ..fileio import describe_os_error
 from .loader import MAX_FILE_BYTES, load_scene_text, read_scene_text
-from .model import BodyShow, Camera, RenderSettings, Scene
+from .model import BodyShow, Camera, DomeSettings, RenderSettings, Scene
 
 _SEGMENT = re.compile(r'([A-Za-z0-9_-]+)(?:\[(?:(\d+)|(\+)|"((?:[^"\\]|\\.)*)")\])?')
 
@@ -442,6 +442,7 @@ def _dump_views(doc: Any, scene: Scene, lu: str, lf: float) -> None:
     ct["distance"] = _q(cam.distance_m, lu, lf)
     if cam.fov_rad != d.fov_rad:
         ct["fov"] = f"{math.degrees(cam.fov_rad)!r} deg"
+    _dump_dome_framing(ct, cam, d, lu, lf)
     doc["camera"] = ct
     rs = scene.render
     rt = tomlkit.table()
@@ -461,6 +462,27 @@ def _dump_views(doc: Any, scene: Scene, lu: str, lf: float) -> None:
         tt["clock"] = tl.clock
     _dump_show(tt, tl, lu, lf)
     doc["timeline"] = tt
+    if scene.dome != DomeSettings():
+        dt = tomlkit.table()
+        dd = DomeSettings()
+        for name in ("line_width", "label_size", "caption_size"):
+            v = getattr(scene.dome, name + "_rad")
+            if v != getattr(dd, name + "_rad"):
+                dt[name] = f"{v!r} rad"
+        for name in ("line_scale", "label_scale", "grid"):
+            if getattr(scene.dome, name) != getattr(dd, name):
+                dt[name] = getattr(scene.dome, name)
+        doc["dome"] = dt
+
+
+def _dump_dome_framing(t: Any, cam: Any, default: Any, lu: str, lf: float) -> None:
+    """dome_distance, dome_elevation, dome_tilt of a camera or a keyframe, when set."""
+    if cam.dome_distance_m is not None:
+        t["dome_distance"] = _q(cam.dome_distance_m, lu, lf)
+    for name in ("dome_elevation", "dome_tilt"):
+        v = getattr(cam, name + "_rad")
+        if v is not None and (default is None or v != getattr(default, name + "_rad")):
+            t[name] = f"{v!r} rad"
 
 
 def _dump_show(tt: Any, tl: Any, lu: str, lf: float) -> None:
@@ -486,6 +508,7 @@ def _dump_show(tt: Any, tl: Any, lu: str, lf: float) -> None:
             for name, field in (("width", "width_m"), ("distance", "distance_m")):
                 if getattr(key, field) is not None:
                     t[name] = _q(getattr(key, field), lu, lf)
+            _dump_dome_framing(t, key, None, lu, lf)
             aot.append(t)
         tt["camera"] = aot
     if tl.fades:
