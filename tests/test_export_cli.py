@@ -154,3 +154,18 @@ def test_an_unwritable_output_folder_is_a_clear_error(scene: Path,
                                                       capsys: pytest.CaptureFixture[str]) -> None:
     assert main(["render", str(scene), "-o", "/proc/perifocal-no/frames/"]) == 2
     assert "cannot create the output folder" in capsys.readouterr().err
+
+
+def test_a_master_too_large_for_memory_is_refused_before_anything_is_written(
+        scene: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str],
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    import viewer.export.immersive as immersive
+
+    monkeypatch.setattr(immersive, "available_memory_bytes", lambda: 2**30)  # 1 GiB free
+    out = tmp_path / "dome.png"
+    assert main(["render", str(scene), "--dome", "--size", "8192x8192", "--bits", "16",
+                 "-o", str(out)]) == 2
+    err = capsys.readouterr().err
+    assert err.splitlines()[0] == "perifocal: error in --size"
+    assert "GiB of memory" in err and "fits here now" in err
+    assert not out.exists() and [p.name for p in tmp_path.iterdir()] == [scene.name]

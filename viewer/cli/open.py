@@ -14,6 +14,7 @@ EXAMPLES = """examples:
   perifocal open scenes/demo.toml
   perifocal open my-orbit.toml --size 1920x1080
   perifocal open scenes/demo.toml --screenshot shot.png --quit-after 5
+  perifocal open scenes/demo.toml --view dome --screenshot dome.png --quit-after 3
 
 In the window: select a body on the left, type new values with their units on the right
 ("400 km", "2.5 h", "12 deg") and press Enter; choose what is kept fixed with the lock.
@@ -57,6 +58,9 @@ def add_parser(sub: Any) -> None:
                    help="window size in pixels (default 1600x900)")
     p.add_argument("--screenshot", metavar="PNG",
                    help="with --quit-after: save the whole window as PNG, then exit")
+    p.add_argument("--view", choices=("flat", "dome", "panorama"), default="flat",
+                   help="open in this view: the flat picture, or the dome master or "
+                   "panorama as the export makes it (key V switches)")
     p.add_argument("--quit-after", type=_count, metavar="N",
                    help="draw N frames, then exit 0 (for tests and the docs' screenshots)")
     # For tests and the docs' screenshot script: write the panels' input rectangles and
@@ -81,7 +85,8 @@ def run(args: argparse.Namespace) -> int:
     from ..gui.window import ViewerWindow
 
     try:
-        window = ViewerWindow(editor, size=args.size, ui_report=args.ui_report)
+        window = ViewerWindow(editor, size=args.size, ui_report=args.ui_report,
+                              view=args.view)
     except Exception as err:  # no X server, no GL visual: one line, exit 2
         if type(err).__module__.startswith(("pyglet", "moderngl")) or "display" in str(err):
             raise UserInputError("display", f"cannot open a window: {err}") from None

@@ -210,6 +210,8 @@ def run(args: argparse.Namespace) -> int:
 
     scene = load_scene(args.scene)
     spec = immersive_spec(args, scene, size)
+    if spec is not None:
+        spec.check_memory(args.bits)
     if spec is not None and fmt == "svg":
         raise UserInputError("-o", "an SVG diagram is a flat view; dome masters and "
                              "panoramas are written as .png or .jpg")

@@ -48,8 +48,28 @@ from .projection import CUBE_FACES, dome_directions, panorama_directions
 
 UInt8s = NDArray[np.uint8]
 FACE_NAMES = tuple(CUBE_FACES)
-#: Largest face the renderer is asked for (llvmpipe's texture limit is 16384).
-MAX_FACE_PX = 8192
+#: Largest face the renderer is asked for: the atlas holds three faces across, and
+#: llvmpipe's texture limit is 16384 px (the faces of masters above about 10,900 px are
+#: then a little coarser than the output).
+MAX_FACE_PX = 16384 // 3
+#: The program itself (Python, numpy, Mesa), bytes.
+BASE_BYTES = 256 * 2**20
+#: Share of the machine's free memory a render may plan to use.
+MEMORY_SHARE = 0.8
+
+
+def available_memory_bytes() -> int:
+    """Memory the system reports free for new work (MemAvailable), in bytes."""
+    try:
+        with open("/proc/meminfo") as f:
+            for line in f:
+                if line.startswith("MemAvailable:"):
+                    return int(line.split()[1]) * 1024
+    except OSError:
+        pass
+    import os
+
+    return int(os.sysconf("SC_AVPHYS_PAGES") * os.sysconf("SC_PAGE_SIZE"))
 
 
 @dataclass(frozen=True)
@@ -103,6 +123,31 @@ class Immersive:
         per_rad = h / math.radians(self.fov_deg) if self.kind == "dome" else w / (2 * math.pi)
         return min(MAX_FACE_PX, max(16, int(math.ceil(per_rad * math.pi / 2))))
 
+    def memory_bytes(self, bits: int = 8) -> int:
+        """What one frame holds at once: the faces' atlas, the output framebuffer, the
+        frame read back, and the 16-bit copy and PNG rows when ``bits`` is 16."""
+        w, h = self.size_px
+        f = self.face_px()
+        out = w * h * 4
+        per_png = out * 4 if bits == 16 else out * 3 // 2
+        return 6 * f * f * 4 + 2 * out + per_png + BASE_BYTES
+
+    def check_memory(self, bits: int = 8, available: int | None = None) -> None:
+        """Refuse (UserInputError on --size) a master this machine cannot hold."""
+        have = available_memory_bytes() if available is None else available
+        need = self.memory_bytes(bits)
+        if need > MEMORY_SHARE * have:
+            side = self.size_px[1]
+            while side > 16 and replace(self, size_px=(
+                    side if self.kind == "dome" else 2 * side, side)).memory_bytes(bits) \
+                    > MEMORY_SHARE * have:
+                side = side * 3 // 4
+            w = side if self.kind == "dome" else 2 * side
+            raise UserInputError("--size", f"a {self.size_px[0]}x{self.size_px[1]} {self.kind} "
+                                 f"needs about {need / 2**30:.1f} GiB of memory and "
+                                 f"{have / 2**30:.1f} GiB is free; at most about {w}x{side} "
+                                 "fits here now")
+
     def directions(self, n: int = 1024) -> NDArray[np.float64]:
         """A grid of this output's camera-basis directions (to find the needed faces),
         reaching 1 % past the dome's edge so sub-pixel samples there are covered."""
@@ -110,6 +155,19 @@ class Immersive:
             d, inside = dome_directions(n, min(360.0, self.fov_deg * 1.01), self.tilt_deg)
             return d[inside]
         return panorama_directions(2 * n, n).reshape(-1, 3)
+
+
+#: Largest preview the window draws (px high).
+PREVIEW_MAX_PX = 1024
+
+
+def preview_size(kind: str, screen_px: tuple[int, int]) -> tuple[int, int]:
+    """The window preview's master size: the largest dome (H x H) or panorama (2H x H)
+    that fits the screen, at most PREVIEW_MAX_PX high and with an even height."""
+    fw, fh = screen_px
+    h = min(fh, PREVIEW_MAX_PX, fw if kind == "dome" else fw // 2)
+    h = max(16, h - h % 2)
+    return (h, h) if kind == "dome" else (2 * h, h)
 
 
 @functools.lru_cache(maxsize=16)
@@ -169,13 +227,24 @@ def emphasised_grid(grid: NDArray[np.float64]) -> NDArray[np.float64]:
 class ImmersiveRenderer:
     """Dome masters and panoramas through one Renderer; GL objects kept between frames."""
 
-    def __init__(self, renderer: Renderer) -> None:
+    def __init__(self, renderer: Renderer, uniform_grid: bool = False) -> None:
+        #: The baseline of the benchmark: the sample grid as a uniform loop bound.
+        self.uniform_grid = uniform_grid
         self.renderer = renderer
         self.ctx = renderer.ctx
-        self.program = load_program(self.ctx, "reproject")
-        self.vao = self.ctx.vertex_array(self.program, [])
+        self._programs: dict[int, tuple[Any, Any]] = {}
         self._faces: dict[int, tuple[Any, Any]] = {}
         self._out: dict[tuple[int, int], Any] = {}
+
+    def _program(self, grid: int) -> tuple[Any, Any]:
+        """The reprojection program and its vertex array for n x n samples (kept)."""
+        if grid not in self._programs:
+            defines = {"UNIFORM_GRID": 1} if self.uniform_grid else {"GRID": int(grid)}
+            prog = load_program(self.ctx, "reproject", defines=defines)
+            if self.uniform_grid:
+                prog["u_grid"].value = int(grid)
+            self._programs[grid] = (prog, self.ctx.vertex_array(prog, []))
+        return self._programs[grid]
 
     def _atlas(self, size: int) -> tuple[Any, Any]:
         """The faces' texture: six tiles of size x size, 3 across, 2 down (kept)."""
@@ -200,7 +269,7 @@ class ImmersiveRenderer:
         base = view_for(scene, t_s, spec.size_px,
                         replace(cam, distance_m=cam.immersive_distance_m))
         views = face_views(base, spec, scene.dome)
-        prog = self.program
+        prog, vao = self._program(spec.grid)
         size = spec.face_px()
         atlas, atlas_fbo = self._atlas(size)
         face_text = []
@@ -229,13 +298,12 @@ class ImmersiveRenderer:
         prog["u_half_fov"].value = math.radians(spec.fov_deg) / 2
         tilt = math.radians(spec.tilt_deg)
         prog["u_tilt_cs"].value = (math.cos(tilt), math.sin(tilt))
-        prog["u_grid"].value = spec.grid
         prog["u_outside"].value = (0.0, 0.0, 0.0, 0.0 if transparent else 1.0)
         fbo = self.renderer.target(spec.size_px)
         fbo.use()
         self.ctx.viewport = (0, 0, *spec.size_px)
         self.ctx.disable(self.renderer._mgl.BLEND)
-        self.vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
+        vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
         self.ctx.enable(self.renderer._mgl.BLEND)
         grid_strokes, grid_labels = (dome_grid(omap) if spec.dome_grid or scene.dome.grid
                                      else (None, []))
@@ -252,5 +320,7 @@ class ImmersiveRenderer:
             fbo.release()
             tex.release()
         self._faces.clear()
-        self.vao.release()
-        self.program.release()
+        for prog, vao in self._programs.values():
+            vao.release()
+            prog.release()
+        self._programs.clear()
