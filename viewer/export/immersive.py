@@ -45,6 +45,7 @@ from .immersive_text import (
     output_requests,
 )
 from .projection import CUBE_FACES, dome_directions, panorama_directions
+from .projection import tilt as turned_toward_front
 
 UInt8s = NDArray[np.uint8]
 FACE_NAMES = tuple(CUBE_FACES)
@@ -148,12 +149,19 @@ class Immersive:
                                  f"{have / 2**30:.1f} GiB is free; at most about {w}x{side} "
                                  "fits here now")
 
-    def directions(self, n: int = 1024) -> NDArray[np.float64]:
+    def directions(self, n: int = 128) -> NDArray[np.float64]:
         """A grid of this output's camera-basis directions (to find the needed faces),
-        reaching 1 % past the dome's edge so sub-pixel samples there are covered."""
+        reaching 1 % past the dome's edge so sub-pixel samples there are covered, and
+        the edge itself sampled finely: a face seen only in a sliver of the dome must
+        cross its edge (a face spans 90 deg, far more than the grid's step)."""
         if self.kind == "dome":
-            d, inside = dome_directions(n, min(360.0, self.fov_deg * 1.01), self.tilt_deg)
-            return d[inside]
+            fov = min(360.0, self.fov_deg * 1.01)
+            d, inside = dome_directions(n, fov, self.tilt_deg)
+            phi = np.linspace(0.0, 2.0 * np.pi, 8 * n, endpoint=False)
+            theta = np.radians(fov) / 2.0
+            rim = np.stack([np.sin(theta) * np.cos(phi), np.sin(theta) * np.sin(phi),
+                            np.full_like(phi, np.cos(theta))], axis=-1)
+            return np.vstack([d[inside], turned_toward_front(rim, self.tilt_deg)])
         return panorama_directions(2 * n, n).reshape(-1, 3)
 
 
