@@ -285,9 +285,8 @@ class ImmersiveRenderer:
             view = views.get(name)
             if view is None:
                 continue
-            geom = self.renderer.geometry(scene, t_s, view, transparent)
+            geom = self.renderer.geometry(scene, t_s, view, transparent, place=False)
             face_text.append((view, geom.label_requests, geom.label_obstacles))
-            geom.labels = []
             geom.grid = emphasised_grid(geom.grid)
             self.renderer.draw(geom, atlas_fbo, top_row_first=False,
                                origin_px=((i % 3) * size, (i // 3) * size))

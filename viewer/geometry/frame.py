@@ -267,7 +267,7 @@ def _view_key(view: View) -> tuple[object, ...]:
 def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
                 transparent: bool = False, starfield: Starfield | None = None,
                 cache: StaticCache | None = None,
-                overlay: Sequence[OverlayText] = ()) -> FrameGeometry:
+                overlay: Sequence[OverlayText] = (), place: bool = True) -> FrameGeometry:
     """The geometry of ``scene`` at scene time ``t_s`` (s) seen through ``view``.
 
     ``measure`` sizes label text (the renderer's font); ``starfield`` may be passed to
@@ -275,7 +275,9 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     (per-body constants, and everything but the bodies' positions while the scene and
     the view stay the same). Both are deterministic: the result is the same with or
     without them. ``overlay`` is text fixed on the picture (captions, the clock: see
-    viewer.scene.timeline.overlay_at), placed before every other label.
+    viewer.scene.timeline.overlay_at), placed before every other label. ``place`` False
+    leaves the labels unplaced (``labels`` empty, ``label_requests`` filled): the dome and
+    the panorama place them in their own pixels.
     """
     w, h = view.size_px
     hs = view.style_scale
@@ -333,7 +335,7 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
         x0, y0 = labels[-1].at_px  # type: ignore[misc]
         tw, asc, desc = measure(text.text, text.size_px * hs)
         obstacles.append((x0, y0 - asc, x0 + tw, y0 + desc))
-    placed = place_labels(labels, measure, (w, h), obstacles)
+    placed = place_labels(labels, measure, (w, h), obstacles) if place else []
     sv = static.vector
     vector = VectorParts(sv.grid, PolylineBatch(sv.lines.points + lines.points,
                                                 sv.lines.closed + lines.closed,

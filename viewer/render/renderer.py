@@ -146,10 +146,11 @@ class Renderer:
         return self.fonts.measure(text, size_px)
 
     def geometry(self, scene: Scene, t_s: float, view: View,
-                 transparent: bool = False, overlay: Sequence[OverlayText] = ()) -> FrameGeometry:
+                 transparent: bool = False, overlay: Sequence[OverlayText] = (),
+                 place: bool = True) -> FrameGeometry:
         """The frame's geometry (viewer.geometry.frame.build_frame with this font)."""
         return build_frame(scene, t_s, view, self.measure, transparent, self.starfield,
-                           self.static, overlay)
+                           self.static, overlay, place)
 
     # --- drawing ------------------------------------------------------------------------
 
