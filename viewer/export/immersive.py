@@ -269,6 +269,14 @@ class ImmersiveRenderer:
                overlay: Sequence[OverlayText] = ()) -> UInt8s:
         """The dome master or panorama of ``scene`` at scene time ``t_s`` as RGBA uint8,
         with its labels, and ``overlay`` (captions, the clock) placed by the output's rules."""
+        fbo = self.draw(scene, t_s, spec, camera, transparent, overlay)
+        return self.renderer.read(fbo, spec.size_px, transparent, out)
+
+    def draw(self, scene: Scene, t_s: float, spec: Immersive, camera: Camera | None = None,
+             transparent: bool = False, overlay: Sequence[OverlayText] = ()) -> Any:
+        """Draw what ``render`` returns into the renderer's offscreen framebuffer of the
+        output's size (top row first) and return that framebuffer (the window's preview
+        shows it without reading it back)."""
         cam = scene.camera if camera is None else camera
         spec = spec.framed(cam)
         omap = spec.output_map()
@@ -320,7 +328,7 @@ class ImmersiveRenderer:
             placed = place_labels(captions + grid_labels + requests, self.renderer.measure,
                                   spec.size_px, boxes, omap.outside)
             self.renderer.draw_labels(placed, fbo, spec.size_px, strokes=grid_strokes)
-        return self.renderer.read(fbo, spec.size_px, transparent, out)
+        return fbo
 
     def release(self) -> None:
         for tex, fbo in self._faces.values():

@@ -107,7 +107,6 @@ class ViewerWindow:
         #: "flat", or "dome"/"panorama": the picture is the master the export would make.
         self.view_mode = view
         self._immersive: Any = None
-        self.preview: np.ndarray | None = None
         self.preview_rect: tuple[int, int, int, int] | None = None
         self._closed = False
         self.frames_drawn = 0
@@ -374,16 +373,18 @@ class ViewerWindow:
         from pyglet import gl
 
         from ..export.immersive import Immersive, ImmersiveRenderer, preview_size
-        from ..export.show import ShowFrames
+        from ..scene.timeline import overlay_at, scene_at_show_time, show_time_of
 
         if self._immersive is None:
             self._immersive = ImmersiveRenderer(self.renderer)
         ax, ay, aw, ah = self._scene_area()
         size = preview_size(self.view_mode, (aw, ah))
         spec = Immersive(self.view_mode, size, grid=2 if size[1] < 4096 else 1)
-        frames = ShowFrames(self.renderer, self.editor.scene, size)
-        frames.spec, frames.immersive = spec, self._immersive
-        self.preview = frames.at(self.session.clock.t_s)
+        # As ShowFrames.at makes the exported frame, without reading it back.
+        scene, t_s = self.editor.scene, self.session.clock.t_s
+        show = show_time_of(scene, t_s)
+        fbo = self._immersive.draw(scene_at_show_time(scene, show, t_s), t_s, spec,
+                                   overlay=overlay_at(scene, show, t_s))
         self.ctx.screen.use()
         self.ctx.clear(0.0, 0.0, 0.0, 1.0)
         # The master is drawn top row first: blit it flipped, centred in the area (GL
@@ -392,7 +393,7 @@ class ViewerWindow:
         y0 = fh - (ay + (ah + size[1]) // 2)
         #: Where the preview is on the window: (x, y from the top, width, height) px.
         self.preview_rect = (x0, fh - y0 - size[1], size[0], size[1])
-        gl.glBindFramebuffer(gl.GL_READ_FRAMEBUFFER, self.renderer.target(size).glo)
+        gl.glBindFramebuffer(gl.GL_READ_FRAMEBUFFER, fbo.glo)
         gl.glBindFramebuffer(gl.GL_DRAW_FRAMEBUFFER, 0)
         gl.glBlitFramebuffer(0, 0, size[0], size[1], x0, y0 + size[1], x0 + size[0], y0,
                              gl.GL_COLOR_BUFFER_BIT, gl.GL_NEAREST)
