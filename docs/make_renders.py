@@ -11,6 +11,9 @@ over the reference plane, and an edge-on view. ``solar-system.png`` is the real 
 2026-01-01 (every planet from DE421). ``porkchop-earth-mars-2026.png`` and ``.svg`` are
 the 2026 Earth-Mars season, made by ``perifocal porkchop`` on the bundled solar system;
 ``earth-mars-2026-transfer.png`` its least-total transfer halfway through its flight.
+``demo-dome.png`` is a 1024 px dome master of the demo's show 14 s in, with its caption
+and clock, as a planetarium gets it; ``presentation.png`` is the window in presentation
+mode (every panel hidden).
 """
 
 from __future__ import annotations
@@ -63,6 +66,8 @@ def main(argv: list[str]) -> int:
                 print(f"wrote {target.relative_to(OUT.parent.parent)}")
         if not wanted or "porkchop" in wanted:
             _porkchop(_scenes()["solar-system"], renderer)
+        if not wanted or "demo" in wanted or "demo-dome" in wanted:
+            _dome_master(renderer, load_scene(_scenes()["demo"]))
     return 0
 
 
@@ -98,6 +103,24 @@ def _porkchop(scene_path: Path, renderer) -> None:  # type: ignore[no-untyped-de
         target = OUT / "earth-mars-2026-transfer.png"
         atomic_write_bytes(target, png_bytes(rgba))
         print(f"wrote {target.relative_to(OUT.parent.parent)}")
+
+
+def _dome_master(renderer, scene) -> None:  # type: ignore[no-untyped-def]
+    """The demo's dome master 14 s into its show (a caption on), through ShowFrames."""
+    from viewer.export.encode import png_bytes
+    from viewer.export.immersive import Immersive
+    from viewer.export.show import ShowFrames
+    from viewer.fileio import atomic_write_bytes
+
+    size = (1024, 1024)
+    frames = ShowFrames(renderer, scene, size, Immersive("dome", size))
+    try:
+        rgba = frames.frame(int(14 * scene.timeline.fps))
+    finally:
+        frames.close()
+    target = OUT / "demo-dome.png"
+    atomic_write_bytes(target, png_bytes(rgba))
+    print(f"wrote {target.relative_to(OUT.parent.parent)}")
 
 
 if __name__ == "__main__":

@@ -8,7 +8,17 @@ uniform int u_mode;            // 0 dome, 1 panorama
 uniform vec2 u_out_size;       // output pixels (W, H)
 uniform float u_half_fov;      // dome: FOV / 2, radians
 uniform vec2 u_tilt_cs;        // dome: (cos, sin) of the tilt toward the front
-uniform int u_grid;            // n: n*n samples per output pixel
+// GRID: n, n*n samples per output pixel, a compile-time constant (the loops unroll:
+// llvmpipe runs a loop with a uniform bound about three times slower).
+// With UNIFORM_GRID the bound is the uniform u_grid instead (the earlier path, kept as
+// the baseline of `perifocal bench export`).
+#ifdef UNIFORM_GRID
+uniform int u_grid;
+#define GRID u_grid
+#endif
+#ifndef GRID
+#define GRID 2
+#endif
 uniform vec3 u_face_fwd[6];
 uniform vec3 u_face_right[6];
 uniform vec3 u_face_up[6];
@@ -62,9 +72,9 @@ vec4 sample_at(vec2 xy, out bool inside) {
 void main() {
     // gl_FragCoord.y counts from the first row in memory, which is the image's top row.
     vec4 sum = vec4(0.0);
-    float n = float(u_grid);
-    for (int i = 0; i < u_grid; ++i) {
-        for (int j = 0; j < u_grid; ++j) {
+    float n = float(GRID);
+    for (int i = 0; i < GRID; ++i) {
+        for (int j = 0; j < GRID; ++j) {
             vec2 px = floor(gl_FragCoord.xy) + (vec2(float(i), float(j)) + 0.5) / n;
             vec2 xy = vec2(2.0 * px.x / u_out_size.x - 1.0, 1.0 - 2.0 * px.y / u_out_size.y);
             bool inside;

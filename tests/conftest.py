@@ -34,3 +34,19 @@ def display(tmp_path):  # type: ignore[no-untyped-def]
         yield d
     finally:
         d.close()
+
+
+@pytest.fixture(scope="module")
+def immersive() -> Iterator[object]:
+    """An ImmersiveRenderer (dome masters, panoramas) on a headless context of its own."""
+    from viewer.export.immersive import ImmersiveRenderer
+    from viewer.render.context import headless_context
+    from viewer.render.renderer import Renderer
+
+    ctx = headless_context()
+    r = Renderer(ctx)
+    im = ImmersiveRenderer(r)
+    yield im
+    im.release()
+    r.release()
+    ctx.release()

@@ -132,6 +132,8 @@ def test_sixteen_bit_transparent_sequence(scene: Path, tmp_path: Path) -> None:
         (["--panorama", "--size", "300x200", "-o", "p.png"], "--size", "2:1"),
         (["--dome", "--panorama", "-o", "p.png"], "--dome/--panorama", "choose one"),
         (["--tilt", "10", "-o", "p.png"], "--tilt", "add --dome"),
+        (["--dome", "--tilt", "-50", "-o", "d.png"], "--tilt", "0 to 45 deg"),
+        (["--dome", "--tilt", "60", "-o", "d.png"], "--tilt", "0 to 45 deg"),
         (["--resume", "-o", "x.png"], "--resume", "applies to a frame sequence"),
         (["--dome", "-o", "d.svg"], "-o", "flat view"),
     ],
@@ -196,3 +198,18 @@ def test_resume_removes_the_temporary_file_of_a_killed_frame(scene: Path, tmp_pa
     other.write_bytes(b"\x89PNG")
     assert main(["render", str(scene), "--frames", "0:6", "--resume", "-o", f"{out}/"]) == 0
     assert not stale.exists() and other.exists()
+
+
+def test_a_master_too_large_for_memory_is_refused_before_anything_is_written(
+        scene: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str],
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    import viewer.export.immersive as immersive
+
+    monkeypatch.setattr(immersive, "available_memory_bytes", lambda: 2**30)  # 1 GiB free
+    out = tmp_path / "dome.png"
+    assert main(["render", str(scene), "--dome", "--size", "8192x8192", "--bits", "16",
+                 "-o", str(out)]) == 2
+    err = capsys.readouterr().err
+    assert err.splitlines()[0] == "perifocal: error in --size"
+    assert "GiB of memory" in err and "fits here now" in err
+    assert not out.exists() and [p.name for p in tmp_path.iterdir()] == [scene.name]

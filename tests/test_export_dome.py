@@ -14,7 +14,7 @@ from dataclasses import replace
 import numpy as np
 import pytest
 
-from viewer.export.immersive import Immersive, ImmersiveRenderer
+from viewer.export.immersive import Immersive
 from viewer.export.projection import dome_pixel, panorama_pixel
 from viewer.geometry.camera import view_for
 from viewer.orbit import AU_M, state_from_elements
@@ -24,20 +24,6 @@ from viewer.scene.model import Body, BodyShow, Camera
 pytestmark = pytest.mark.gl
 
 PIXEL = 1.0
-
-
-@pytest.fixture(scope="module")
-def immersive():
-    from viewer.render.context import headless_context
-    from viewer.render.renderer import Renderer
-
-    ctx = headless_context()
-    r = Renderer(ctx)
-    im = ImmersiveRenderer(r)
-    yield im
-    im.release()
-    r.release()
-    ctx.release()
 
 
 def marker_only(nu_deg: float, a_au: float = 1.0, i_deg: float = 20.0) -> Body:

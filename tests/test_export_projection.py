@@ -81,3 +81,16 @@ def test_panorama_centre_looks_at_the_target_and_edges_wrap() -> None:
     cols, rows = np.meshgrid(np.arange(w), np.arange(h))
     np.testing.assert_allclose(px[..., 0], cols, atol=1e-6)
     np.testing.assert_allclose(px[..., 1], rows, atol=1e-6)
+
+
+@pytest.mark.parametrize(("fov", "tilt_deg"), [(180.0, 0.0), (180.0, -55.0), (200.0, 17.0),
+                                               (150.0, -80.0), (360.0, 0.0), (250.0, 44.0)])
+def test_the_faces_drawn_are_exactly_those_a_fine_grid_of_the_dome_sees(fov, tilt_deg) -> None:
+    from viewer.export.immersive import Immersive, needed_faces
+    from viewer.export.projection import CUBE_FACES
+
+    names = list(CUBE_FACES)
+    fwd = np.array([CUBE_FACES[k][0] for k in names])
+    d, inside = dome_directions(1024, min(360.0, fov * 1.01), tilt_deg)
+    seen = {names[i] for i in np.unique(np.argmax(d[inside] @ fwd.T, axis=1))}
+    assert set(needed_faces(Immersive("dome", (256, 256), fov, tilt_deg))) == seen

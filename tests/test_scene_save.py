@@ -153,6 +153,7 @@ def test_a_dumped_scene_loads_back_to_the_same_orbits(name):
     assert again.camera == scene.camera
     assert again.render == scene.render
     assert again.timeline == scene.timeline
+    assert again.dome == scene.dome
 
 
 # --- failures at each step of a save ----------------------------------------------------

@@ -178,3 +178,32 @@ def test_open_without_a_display_says_so_in_one_line(tmp_path: Path) -> None:
                          text=True, timeout=60)
     assert run.returncode == 2
     assert "no display" in run.stderr and "Traceback" not in run.stderr
+
+
+@pytest.mark.parametrize(("view", "flag"), [("dome", "--dome"), ("panorama", "--panorama")])
+def test_the_dome_and_panorama_previews_are_the_exported_masters(
+        display: Display, tmp_path: Path, view: str, flag: str) -> None:
+    from PIL import Image
+
+    scene = str(ROOT / "scenes" / "demo.toml")
+    shot = tmp_path / f"{view}-window.png"
+    report = tmp_path / "ui.json"
+    run = subprocess.run([*PERIFOCAL, "open", scene, "--size", "1600x900", "--view", view,
+                          "--screenshot", str(shot), "--quit-after", "3",
+                          "--ui-report", str(report)],
+                         env=display.env, capture_output=True, text=True, timeout=180)
+    assert run.returncode == 0, run.stderr
+    ui = read_report(report)
+    assert ui is not None and ui["view"] == view and ui["message"] == "", ui
+    x, y, w, h = ui["preview_rect"]
+    assert w == (h if view == "dome" else 2 * h) and h >= 300  # the area between panels
+    window = np.asarray(Image.open(shot).convert("RGB")).astype(int)
+    assert window.shape == (900, 1600, 3)  # the whole window, panels included
+    a = window[y:y + h, x:x + w]
+    master = tmp_path / f"{view}-master.png"
+    run = subprocess.run([*PERIFOCAL, "render", scene, flag, "--size", f"{w}x{h}",
+                          "-o", str(master)], capture_output=True, text=True, timeout=180)
+    assert run.returncode == 0, run.stderr
+    b = np.asarray(Image.open(master).convert("RGB")).astype(int)
+    assert np.abs(a - b).max() <= 1       # the same frame, the same time, the same text
+    assert (b.max(axis=2) > 60).sum() > 2000  # and it is not an empty picture

@@ -24,7 +24,7 @@ EXAMPLES = """examples:
   perifocal bench scene      # loading 1,000 bodies and 100,000-row populations
   perifocal bench start      # perifocal check in a fresh process, beside importing numpy
   perifocal bench render     # demo frame beside matplotlib; 100k bodies; memory; real sky
-  perifocal bench export     # PNG sequence beside matplotlib, MP4 rate, 4K dome master
+  perifocal bench export     # PNG sequence beside matplotlib, MP4 rate, 4K and 8K domes
   perifocal bench window     # the viewer at 1920x1080 (starts Xvfb if there is no display)
   perifocal bench kepler --json
 

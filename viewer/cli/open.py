@@ -17,6 +17,7 @@ EXAMPLES = """examples:
   perifocal open scenes/demo.toml --screenshot shot.png --quit-after 5
   in front of an audience: full screen on the second screen, panels hidden, larger text:
     perifocal open scenes/demo.toml --fullscreen --screen 1 --present --ui-scale 1.5
+  perifocal open scenes/demo.toml --view dome --screenshot dome.png --quit-after 3
 
 In the window: select a body on the left, type new values with their units on the right
 ("400 km", "2.5 h", "12 deg") and press Enter; choose what is kept fixed with the lock.
@@ -87,6 +88,9 @@ def add_parser(sub: Any) -> None:
                    help="with --quit-after: save the whole window as PNG, then exit")
     p.add_argument("--force", action="store_true",
                    help="--screenshot: replace an existing file (the old one is kept as NAME.bak)")
+    p.add_argument("--view", choices=("flat", "dome", "panorama"), default="flat",
+                   help="open in this view: the flat picture, or the dome master or "
+                   "panorama as the export makes it (key V switches)")
     p.add_argument("--quit-after", type=_count, metavar="N",
                    help="draw N frames, then exit 0 (for tests and the docs' screenshots)")
     p.add_argument("--ui-scale", type=_scale, metavar="S",
@@ -129,7 +133,7 @@ def run(args: argparse.Namespace) -> int:
     try:
         window = ViewerWindow(editor, size=args.size, ui_report=args.ui_report, ui_scale=scale,
                               screen=args.screen, fullscreen=args.fullscreen,
-                              presenting=args.present)
+                              presenting=args.present, view=args.view)
     except ValueError as err:  # a screen that does not exist
         raise UserInputError("--screen", str(err)) from None
     except Exception as err:  # no X server, no GL visual: one line, exit 2

@@ -30,6 +30,7 @@ EXAMPLES = """examples:
   perifocal render scenes/demo.toml -o show.mp4 --quality final
   perifocal render scenes/demo.toml --dome --size 4096x4096 -o dome/
   perifocal render scenes/demo.toml --dome 200 --tilt 20 --at "30 d" -o dome.png
+  perifocal render scenes/demo.toml --dome --dome-grid --tilt 15 -o check.png
   perifocal render scenes/demo.toml --panorama -o pano.png
   perifocal render scenes/demo.toml --scheduler tcp://10.0.0.5:8786 -o /shared/frames/
 
@@ -75,8 +76,12 @@ def add_parser(sub: Any) -> None:
                    help="video: draft (fastest), preview (default) or final (best, slow)")
     p.add_argument("--dome", nargs="?", type=float, const=180.0, metavar="FOV",
                    help="a square angular-fisheye dome master; FOV in deg (default 180)")
-    p.add_argument("--tilt", type=float, default=0.0, metavar="DEG",
-                   help="dome: turn the zenith toward the front by DEG")
+    p.add_argument("--tilt", type=float, default=None, metavar="DEG",
+                   help="dome: the dome's tilt toward the front, 0 to 45 deg: turns the "
+                   "zenith toward the front by DEG (default: the camera's dome_tilt, 0)")
+    p.add_argument("--dome-grid", action="store_true",
+                   help="dome: draw the dome grid (elevation rings, azimuth spokes, the front "
+                   "marked) to check orientation on your dome")
     p.add_argument("--panorama", action="store_true",
                    help="a 2:1 equirectangular 360-degree panorama")
     p.add_argument("--supersample", type=int, choices=(1, 2, 3, 4), metavar="N",
@@ -160,8 +165,11 @@ def output_kind(path: str) -> str:
 def immersive_spec(args: argparse.Namespace, scene: Any, size: tuple[int, int] | None) -> Any:
     """The dome/panorama request, with the default sizes (HxH, 2HxH), or None."""
     if args.dome is None and not args.panorama:
-        if args.tilt:
+        if args.tilt is not None:
             raise UserInputError("--tilt", "--tilt applies to a dome master: add --dome")
+        if args.dome_grid:
+            raise UserInputError("--dome-grid", "--dome-grid applies to a dome master: add "
+                                 "--dome")
         return None
     if args.dome is not None and args.panorama:
         raise UserInputError("--dome/--panorama", "choose one: a dome master or a panorama")
@@ -172,7 +180,11 @@ def immersive_spec(args: argparse.Namespace, scene: Any, size: tuple[int, int] |
     size = size or ((h, h) if kind == "dome" else (2 * h, h))
     grid = args.supersample or (2 if size[1] < 4096 else 1)
     if kind == "dome":
-        return Immersive("dome", size, args.dome, args.tilt, grid)
+        if args.tilt is not None and not 0.0 <= args.tilt <= 45.0:
+            raise UserInputError("--tilt", f"the dome's tilt toward the front is 0 to 45 deg, "
+                                 f"got {args.tilt:g}")
+        return Immersive("dome", size, args.dome, 0.0, grid, dome_tilt_deg=args.tilt,
+                         dome_grid=args.dome_grid)
     return Immersive("panorama", size, grid=grid)
 
 
@@ -203,6 +215,8 @@ def run(args: argparse.Namespace) -> int:
     if kind != "sequence":
         claim_output(args.output, force=args.force, inputs=[args.scene])
     spec = immersive_spec(args, scene, size)
+    if spec is not None:
+        spec.check_memory(args.bits)
     if spec is not None and fmt == "svg":
         raise UserInputError("-o", "an SVG diagram is a flat view; dome masters and "
                              "panoramas are written as .png or .jpg")

@@ -4,16 +4,25 @@ The eye is the camera's eye (``target + distance * d``, also for orthographic ca
 Each needed cube face is drawn by ``Renderer.draw`` as a 90 deg square perspective view
 from that eye into a texture; ``shaders/reproject.frag`` then maps every output pixel's
 direction (the definitions of ``projection.py``) to the face that sees it, averaging an
-n x n grid of sub-pixel samples so lines stay crisp at 4K and 8K. Line widths, markers
-and labels are sized for the output's height, not the faces'.
+n x n grid of sub-pixel samples so lines stay crisp at 4K and 8K. Line widths and
+markers are sized as angles on the sky (the scene's [dome] table), not in face pixels.
 
-Labels are screen-space marks of each face: one that straddles a face edge is cut there.
+Labels, captions and the clock are not drawn on the faces: they are placed again in the
+output's pixels and drawn after the reprojection (``immersive_text.py``), so none is cut
+or doubled at a face seam.
+
+Composition (docs/export.md, "Composing for the dome"): the camera's ``dome_distance``
+sets the eye, ``dome_elevation`` puts the target that far above the audience's horizon
+straight ahead at the front, and ``dome_tilt`` (or ``--tilt``) is the dome's own tilt
+toward the front; together they turn the master's zenith by
+``dome_elevation + dome_tilt - 90 deg`` toward the front from the target.
 """
 
 from __future__ import annotations
 
 import functools
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass, replace
 from typing import Any
 
@@ -22,15 +31,46 @@ from numpy.typing import NDArray
 
 from ..errors import UserInputError
 from ..geometry.camera import View, view_for
+from ..geometry.labels import place_labels
 from ..render.renderer import Renderer
 from ..render.shaders import load_program
-from ..scene.model import Camera, Scene
+from ..scene.model import Camera, DomeSettings, Scene
+from ..scene.timeline import OverlayText
+from .dome_grid import dome_grid
+from .immersive_text import (
+    OutputMap,
+    body_label_px,
+    caption_requests,
+    label_scale,
+    output_requests,
+)
 from .projection import CUBE_FACES, dome_directions, panorama_directions
+from .projection import tilt as turned_toward_front
 
 UInt8s = NDArray[np.uint8]
 FACE_NAMES = tuple(CUBE_FACES)
-#: Largest face the renderer is asked for (llvmpipe's texture limit is 16384).
-MAX_FACE_PX = 8192
+#: Largest face the renderer is asked for: the atlas holds three faces across, and
+#: llvmpipe's texture limit is 16384 px (the faces of masters above about 10,900 px are
+#: then a little coarser than the output).
+MAX_FACE_PX = 16384 // 3
+#: The program itself (Python, numpy, Mesa), bytes.
+BASE_BYTES = 256 * 2**20
+#: Share of the machine's free memory a render may plan to use.
+MEMORY_SHARE = 0.8
+
+
+def available_memory_bytes() -> int:
+    """Memory the system reports free for new work (MemAvailable), in bytes."""
+    try:
+        with open("/proc/meminfo") as f:
+            for line in f:
+                if line.startswith("MemAvailable:"):
+                    return int(line.split()[1]) * 1024
+    except OSError:
+        pass
+    import os
+
+    return int(os.sysconf("SC_AVPHYS_PAGES") * os.sysconf("SC_PAGE_SIZE"))
 
 
 @dataclass(frozen=True)
@@ -42,6 +82,11 @@ class Immersive:
     fov_deg: float = 180.0
     tilt_deg: float = 0.0
     grid: int = 2
+    #: The dome's tilt toward the front (deg), overriding the camera's ``dome_tilt``;
+    #: None keeps the camera's. ``tilt_deg`` is the turn of the zenith the renderer uses.
+    dome_tilt_deg: float | None = None
+    #: Draw the dome grid (dome_grid.py) even if the scene's [dome] grid is off.
+    dome_grid: bool = False
 
     def __post_init__(self) -> None:
         w, h = self.size_px
@@ -60,19 +105,77 @@ class Immersive:
         else:
             raise ValueError(self.kind)
 
+    def framed(self, camera: Camera) -> Immersive:
+        """This request with the zenith turn of ``camera``'s dome framing added:
+        ``tilt_deg`` + dome_elevation + dome tilt - 90 deg (dome masters only)."""
+        if self.kind != "dome":
+            return self
+        tilt = math.degrees(camera.dome_tilt_rad) if self.dome_tilt_deg is None \
+            else self.dome_tilt_deg
+        turn = self.tilt_deg + math.degrees(camera.dome_elevation_rad) + tilt - 90.0
+        return replace(self, tilt_deg=turn, dome_tilt_deg=0.0)
+
+    def output_map(self) -> OutputMap:
+        return OutputMap(self.kind, self.size_px, self.fov_deg, self.tilt_deg)
+
     def face_px(self) -> int:
         """Face size so a face pixel is no larger than an output pixel where they meet."""
         w, h = self.size_px
         per_rad = h / math.radians(self.fov_deg) if self.kind == "dome" else w / (2 * math.pi)
         return min(MAX_FACE_PX, max(16, int(math.ceil(per_rad * math.pi / 2))))
 
-    def directions(self, n: int = 1024) -> NDArray[np.float64]:
+    def memory_bytes(self, bits: int = 8) -> int:
+        """What one frame holds at once: the faces' atlas, the output framebuffer, the
+        frame read back, and the 16-bit copy and PNG rows when ``bits`` is 16."""
+        w, h = self.size_px
+        f = self.face_px()
+        out = w * h * 4
+        per_png = out * 4 if bits == 16 else out * 3 // 2
+        return 6 * f * f * 4 + 2 * out + per_png + BASE_BYTES
+
+    def check_memory(self, bits: int = 8, available: int | None = None) -> None:
+        """Refuse (UserInputError on --size) a master this machine cannot hold."""
+        have = available_memory_bytes() if available is None else available
+        need = self.memory_bytes(bits)
+        if need > MEMORY_SHARE * have:
+            side = self.size_px[1]
+            while side > 16 and replace(self, size_px=(
+                    side if self.kind == "dome" else 2 * side, side)).memory_bytes(bits) \
+                    > MEMORY_SHARE * have:
+                side = side * 3 // 4
+            w = side if self.kind == "dome" else 2 * side
+            raise UserInputError("--size", f"a {self.size_px[0]}x{self.size_px[1]} {self.kind} "
+                                 f"needs about {need / 2**30:.1f} GiB of memory and "
+                                 f"{have / 2**30:.1f} GiB is free; at most about {w}x{side} "
+                                 "fits here now")
+
+    def directions(self, n: int = 128) -> NDArray[np.float64]:
         """A grid of this output's camera-basis directions (to find the needed faces),
-        reaching 1 % past the dome's edge so sub-pixel samples there are covered."""
+        reaching 1 % past the dome's edge so sub-pixel samples there are covered, and
+        the edge itself sampled finely: a face seen only in a sliver of the dome must
+        cross its edge (a face spans 90 deg, far more than the grid's step)."""
         if self.kind == "dome":
-            d, inside = dome_directions(n, min(360.0, self.fov_deg * 1.01), self.tilt_deg)
-            return d[inside]
+            fov = min(360.0, self.fov_deg * 1.01)
+            d, inside = dome_directions(n, fov, self.tilt_deg)
+            phi = np.linspace(0.0, 2.0 * np.pi, 8 * n, endpoint=False)
+            theta = np.radians(fov) / 2.0
+            rim = np.stack([np.sin(theta) * np.cos(phi), np.sin(theta) * np.sin(phi),
+                            np.full_like(phi, np.cos(theta))], axis=-1)
+            return np.vstack([d[inside], turned_toward_front(rim, self.tilt_deg)])
         return panorama_directions(2 * n, n).reshape(-1, 3)
+
+
+#: Largest preview the window draws (px high).
+PREVIEW_MAX_PX = 1024
+
+
+def preview_size(kind: str, screen_px: tuple[int, int]) -> tuple[int, int]:
+    """The window preview's master size: the largest dome (H x H) or panorama (2H x H)
+    that fits the screen, at most PREVIEW_MAX_PX high and with an even height."""
+    fw, fh = screen_px
+    h = min(fh, PREVIEW_MAX_PX, fw if kind == "dome" else fw // 2)
+    h = max(16, h - h % 2)
+    return (h, h) if kind == "dome" else (2 * h, h)
 
 
 @functools.lru_cache(maxsize=16)
@@ -84,12 +187,24 @@ def needed_faces(spec: Immersive) -> tuple[str, ...]:
     return tuple(name for i, name in enumerate(FACE_NAMES) if i in hit)
 
 
-def face_views(base: View, spec: Immersive) -> dict[str, View]:
+#: Face pixels per radian, as a fraction of the face size, that angle sizes are set for:
+#: a 90 deg face has size/2 at its centre and twice that at its edges.
+FACE_PX_PER_RAD = 0.7
+
+
+def style_height(spec: Immersive, dome: DomeSettings) -> float:
+    """The faces' style height (px): a line of width 2 is ``dome.line_width`` wide."""
+    face_px = dome.line_width_rad * dome.line_scale * FACE_PX_PER_RAD * spec.face_px()
+    return 1080.0 * face_px / 2.0
+
+
+def face_views(base: View, spec: Immersive, dome: DomeSettings | None = None
+               ) -> dict[str, View]:
     """One perspective View per needed face, from the base view's eye."""
     r, u, f = base.basis[0], base.basis[1], -base.basis[2]
     eye = base.eye_m
     size = spec.face_px()
-    style = spec.size_px[1]
+    style = style_height(spec, dome or DomeSettings())
     views = {}
     for name in needed_faces(spec):
         (fx, fy, fz), (ux, uy, uz) = CUBE_FACES[name]
@@ -99,20 +214,45 @@ def face_views(base: View, spec: Immersive) -> dict[str, View]:
         views[name] = replace(
             base, size_px=(size, size), projection="perspective",
             origin_m=eye + base.distance_m * F, basis=np.vstack([R, U, -F]),
-            fov_rad=math.pi / 2, style_height_px=style)
+            fov_rad=math.pi / 2, style_height_px=style)  # type: ignore[arg-type]
     return views
+
+
+#: The reference-plane grid's opacity on dome masters and panoramas, times the flat one's:
+#: a faint line vanishes on a projected dome (common practice, no source).
+GRID_EMPHASIS = 2.2
+
+
+def emphasised_grid(grid: NDArray[np.float64]) -> NDArray[np.float64]:
+    """Grid stroke vertices with their opacity raised by GRID_EMPHASIS (at most 1)."""
+    if len(grid) == 0:
+        return grid
+    out = grid.copy()
+    out[:, -1] = np.minimum(1.0, out[:, -1] * GRID_EMPHASIS)
+    return out
 
 
 class ImmersiveRenderer:
     """Dome masters and panoramas through one Renderer; GL objects kept between frames."""
 
-    def __init__(self, renderer: Renderer) -> None:
+    def __init__(self, renderer: Renderer, uniform_grid: bool = False) -> None:
+        #: The baseline of the benchmark: the sample grid as a uniform loop bound.
+        self.uniform_grid = uniform_grid
         self.renderer = renderer
         self.ctx = renderer.ctx
-        self.program = load_program(self.ctx, "reproject")
-        self.vao = self.ctx.vertex_array(self.program, [])
+        self._programs: dict[int, tuple[Any, Any]] = {}
         self._faces: dict[int, tuple[Any, Any]] = {}
         self._out: dict[tuple[int, int], Any] = {}
+
+    def _program(self, grid: int) -> tuple[Any, Any]:
+        """The reprojection program and its vertex array for n x n samples (kept)."""
+        if grid not in self._programs:
+            defines = {"UNIFORM_GRID": 1} if self.uniform_grid else {"GRID": int(grid)}
+            prog = load_program(self.ctx, "reproject", defines=defines)
+            if self.uniform_grid:
+                prog["u_grid"].value = int(grid)
+            self._programs[grid] = (prog, self.ctx.vertex_array(prog, []))
+        return self._programs[grid]
 
     def _atlas(self, size: int) -> tuple[Any, Any]:
         """The faces' texture: six tiles of size x size, 3 across, 2 down (kept)."""
@@ -125,18 +265,37 @@ class ImmersiveRenderer:
         return self._faces[size]
 
     def render(self, scene: Scene, t_s: float, spec: Immersive, camera: Camera | None = None,
-               transparent: bool = False, out: UInt8s | None = None) -> UInt8s:
-        """The dome master or panorama of ``scene`` at scene time ``t_s`` as RGBA uint8."""
-        base = view_for(scene, t_s, spec.size_px, camera)
-        views = face_views(base, spec)
-        prog = self.program
+               transparent: bool = False, out: UInt8s | None = None,
+               overlay: Sequence[OverlayText] = ()) -> UInt8s:
+        """The dome master or panorama of ``scene`` at scene time ``t_s`` as RGBA uint8,
+        with its labels, and ``overlay`` (captions, the clock) placed by the output's rules."""
+        fbo = self.draw(scene, t_s, spec, camera, transparent, overlay)
+        return self.renderer.read(fbo, spec.size_px, transparent, out)
+
+    def draw(self, scene: Scene, t_s: float, spec: Immersive, camera: Camera | None = None,
+             transparent: bool = False, overlay: Sequence[OverlayText] = ()) -> Any:
+        """Draw what ``render`` returns into the renderer's offscreen framebuffer of the
+        output's size (top row first) and return that framebuffer (the window's preview
+        shows it without reading it back)."""
+        cam = scene.camera if camera is None else camera
+        spec = spec.framed(cam)
+        omap = spec.output_map()
+        source = str(scene.source) if scene.source else "scene"
+        captions = caption_requests(overlay, scene.dome, omap, self.renderer.measure, source)
+        base = view_for(scene, t_s, spec.size_px,
+                        replace(cam, distance_m=cam.immersive_distance_m))
+        views = face_views(base, spec, scene.dome)
+        prog, vao = self._program(spec.grid)
         size = spec.face_px()
         atlas, atlas_fbo = self._atlas(size)
+        face_text = []
         for i, name in enumerate(FACE_NAMES):
             view = views.get(name)
             if view is None:
                 continue
-            geom = self.renderer.geometry(scene, t_s, view, transparent)
+            geom = self.renderer.geometry(scene, t_s, view, transparent, place=False)
+            face_text.append((view, geom.label_requests, geom.label_obstacles))
+            geom.grid = emphasised_grid(geom.grid)
             self.renderer.draw(geom, atlas_fbo, top_row_first=False,
                                origin_px=((i % 3) * size, (i // 3) * size))
         atlas.use(location=0)
@@ -154,20 +313,29 @@ class ImmersiveRenderer:
         prog["u_half_fov"].value = math.radians(spec.fov_deg) / 2
         tilt = math.radians(spec.tilt_deg)
         prog["u_tilt_cs"].value = (math.cos(tilt), math.sin(tilt))
-        prog["u_grid"].value = spec.grid
         prog["u_outside"].value = (0.0, 0.0, 0.0, 0.0 if transparent else 1.0)
         fbo = self.renderer.target(spec.size_px)
         fbo.use()
         self.ctx.viewport = (0, 0, *spec.size_px)
         self.ctx.disable(self.renderer._mgl.BLEND)
-        self.vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
+        vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
         self.ctx.enable(self.renderer._mgl.BLEND)
-        return self.renderer.read(fbo, spec.size_px, transparent, out)
+        grid_strokes, grid_labels = (dome_grid(omap) if spec.dome_grid or scene.dome.grid
+                                     else (None, []))
+        if face_text:
+            k = label_scale(scene.dome, omap, body_label_px(face_text[0][0]))
+            requests, boxes = output_requests(face_text, base, omap, k)
+            placed = place_labels(captions + grid_labels + requests, self.renderer.measure,
+                                  spec.size_px, boxes, omap.outside)
+            self.renderer.draw_labels(placed, fbo, spec.size_px, strokes=grid_strokes)
+        return fbo
 
     def release(self) -> None:
         for tex, fbo in self._faces.values():
             fbo.release()
             tex.release()
         self._faces.clear()
-        self.vao.release()
-        self.program.release()
+        for prog, vao in self._programs.values():
+            vao.release()
+            prog.release()
+        self._programs.clear()

@@ -41,7 +41,8 @@ class ShowFrames:
         show = show_time_of(self.scene, t_s) if show_s is None else show_s
         scene = scene_at_show_time(self.scene, show, t_s)
         if self.immersive is not None:
-            return self.immersive.render(scene, t_s, self.spec, transparent=self.transparent)
+            return self.immersive.render(scene, t_s, self.spec, transparent=self.transparent,
+                                         overlay=overlay_at(self.scene, show, t_s))
         return self.renderer.render(scene, t_s, self.size_px, transparent=self.transparent,
                                     overlay=overlay_at(self.scene, show, t_s))
 

@@ -110,6 +110,10 @@ class FrameGeometry:
     populations: list[Population] = field(default_factory=list)
     t_s: float = 0.0
     vector: VectorParts | None = None
+    #: Every label wanted, before placement, and the boxes labels keep clear of (markers):
+    #: the dome and the panorama place them again in their own pixels.
+    label_requests: list[LabelRequest] = field(default_factory=list)
+    label_obstacles: list[tuple[float, float, float, float]] = field(default_factory=list)
 
 
 def _rgba(c: RGB, a: float = 1.0) -> RGBA:
@@ -264,7 +268,7 @@ def _view_key(view: View) -> tuple[object, ...]:
 def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
                 transparent: bool = False, starfield: Starfield | None = None,
                 cache: StaticCache | None = None,
-                overlay: Sequence[OverlayText] = ()) -> FrameGeometry:
+                overlay: Sequence[OverlayText] = (), place: bool = True) -> FrameGeometry:
     """The geometry of ``scene`` at scene time ``t_s`` (s) seen through ``view``.
 
     ``measure`` sizes label text (the renderer's font); ``starfield`` may be passed to
@@ -273,7 +277,9 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     the view stay the same). Both are deterministic: the result is the same with or
     without them. ``overlay`` is text fixed on the picture (captions, the clock: see
     viewer.scene.timeline.overlay_at), placed before every other label. A body that
-    follows an ephemeris is drawn on its osculating conic at ``t_s``.
+    follows an ephemeris is drawn on its osculating conic at ``t_s``. ``place`` False
+    leaves the labels unplaced (``labels`` empty, ``label_requests`` filled): the dome and
+    the panorama place them in their own pixels.
     """
     scene = scene.osculating(t_s)
     w, h = view.size_px
@@ -332,7 +338,7 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
         x0, y0 = labels[-1].at_px  # type: ignore[misc]
         tw, asc, desc = measure(text.text, text.size_px * hs)
         obstacles.append((x0, y0 - asc, x0 + tw, y0 + desc))
-    placed = place_labels(labels, measure, (w, h), obstacles)
+    placed = place_labels(labels, measure, (w, h), obstacles) if place else []
     sv = static.vector
     vector = VectorParts(sv.grid, PolylineBatch(sv.lines.points + lines.points,
                                                 sv.lines.closed + lines.closed,
@@ -340,7 +346,8 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     return FrameGeometry(
         view=view, background=background, stars=static.stars, grid=static.grid,
         fills=static.fills, glows=static.glows, strokes=strokes, markers=marker_rows,
-        labels=placed, populations=list(scene.populations), t_s=t_s, vector=vector)
+        labels=placed, populations=list(scene.populations), t_s=t_s, vector=vector,
+        label_requests=labels, label_obstacles=obstacles)
 
 
 #: Margin between overlay text and the picture's edge, px at 1080 px image height.

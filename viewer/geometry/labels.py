@@ -79,11 +79,18 @@ def _outside_area(cand: NDArray[np.float64], size: tuple[int, int]) -> NDArray[n
 
 
 def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tuple[int, int],
-                 obstacles: Sequence[Box] = ()) -> list[PlacedLabel]:
+                 obstacles: Sequence[Box] = (),
+                 outside: Callable[[NDArray[np.float64]], NDArray[np.float64]] | None = None
+                 ) -> list[PlacedLabel]:
     """Place ``requests`` (any order; sorted by priority, stably) in an image of ``size_px``.
 
-    ``obstacles`` are boxes (markers) no label should cover.
+    ``obstacles`` are boxes (markers) no label should cover. ``outside`` gives, for
+    candidate boxes (C, 4), the area of each that falls off the picture (default: off
+    the image rectangle; a dome master passes the area off its circle).
     """
+    if outside is None:
+        def outside(cand: NDArray[np.float64]) -> NDArray[np.float64]:
+            return _outside_area(cand, size_px)
     placed: list[PlacedLabel] = []
     boxes: list[Box] = []
     order = sorted(range(len(requests)), key=lambda k: requests[k].priority)
@@ -109,14 +116,14 @@ def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tu
         cand = np.stack([x - _PAD_PX, top - _PAD_PX, x + width + _PAD_PX,
                          top + text_h + _PAD_PX], axis=1)
         taken = np.array(boxes + list(obstacles), dtype=np.float64).reshape(-1, 4)
-        score = _overlaps(cand, taken).sum(axis=1) + 4.0 * _outside_area(cand, size_px)
+        score = _overlaps(cand, taken).sum(axis=1) + 4.0 * outside(cand)
         clear = np.flatnonzero(score == 0.0)
         pick = int(clear[0]) if clear.size else int(np.argmin(score))
         if score[pick] > 0.0 and not req.required:
             continue
         box_a = cand[pick]
         area = (box_a[2] - box_a[0]) * (box_a[3] - box_a[1])
-        if _outside_area(box_a[None, :], size_px)[0] >= area:
+        if outside(box_a[None, :])[0] >= area:
             continue  # wholly off the image: nothing to show
         placed.append(PlacedLabel(req.text, float(x[pick]), float(top[pick] + ascent),
                                   req.size_px, req.rgba))

@@ -146,6 +146,11 @@ def _overlay_on(name: str) -> When:
     return on
 
 
+def _next_view(s: Any) -> None:
+    order = ("flat", "dome", "panorama")
+    s.view_mode = order[(order.index(s.view_mode) + 1) % len(order)]
+
+
 def _fit(s: Any) -> None:
     s.fit_wanted = True
 
@@ -188,6 +193,7 @@ ACTIONS: tuple[Action, ...] = (
     Action("centre", "Centre on the central body", (C("C"),), _centre, "View"),
     Action("plots", "Plots: distance and speed, third law", (C("G"),), _toggle("show_plots"),
            "View", _always, _flag("show_plots")),
+    Action("view", "Next view: flat, dome master, panorama", (C("V"),), _next_view, "View"),
     Action("fit", "Fit the whole scene in view", (C("HOME", shift=True),), _fit, "View"),
     Action("presentation", "Presentation: hide every panel", (C("F10"),),
            _toggle("presenting"), "View", _always, _flag("presenting")),

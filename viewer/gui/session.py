@@ -49,6 +49,8 @@ class Session:
     overlays: dict[str, bool] = field(default_factory=dict)
     #: Set by the "fit" action: the window frames the whole scene on its next frame.
     fit_wanted: bool = False
+    #: What the picture shows: "flat", or the "dome" master or "panorama" as exported.
+    view_mode: str = "flat"
     message: str = ""
     quit_now: bool = False
     #: While the unsaved-changes prompt is up: what follows it ("quit" or "open").

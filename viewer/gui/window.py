@@ -51,7 +51,7 @@ class ViewerWindow:
     def __init__(self, editor: Editor, size: tuple[int, int] = (1600, 900),
                  visible: bool = True, ui_report: str | Path | None = None,
                  ui_scale: float = 1.0, screen: int | None = None, fullscreen: bool = False,
-                 presenting: bool = False) -> None:
+                 presenting: bool = False, view: str = "flat") -> None:
         import moderngl
         import pyglet
         from imgui_bundle import imgui, implot
@@ -112,6 +112,10 @@ class ViewerWindow:
         self._last_camera: Any = None
         self._last_layout: dict[str, Any] = {}
         self._drag_view: Any = None
+        #: "flat", or "dome"/"panorama": the picture is the master the export would make.
+        self.session.view_mode = view
+        self._immersive: Any = None
+        self.preview_rect: tuple[int, int, int, int] | None = None
         self._closed = False
         self.frames_drawn = 0
         self.frame_times_s: list[float] = []
@@ -276,7 +280,8 @@ class ViewerWindow:
 
     def _view_settings(self) -> Any:
         s = self.session
-        return (s.presenting, s.fullscreen, tuple(sorted(s.overlays.items())), s.fit_wanted)
+        return (s.presenting, s.fullscreen, tuple(sorted(s.overlays.items())), s.fit_wanted,
+                s.view_mode)
 
     def _apply_view_settings(self) -> None:
         """Full screen (on the chosen screen) and "fit" as the session asks."""
@@ -313,9 +318,13 @@ class ViewerWindow:
         drawn = False
         if self.renderer is not None:
             try:
-                drawn_scene = scene_with_overlays(self.editor.scene, self.session.overlays)
-                geom = self.renderer.geometry(drawn_scene, self.session.clock.t_s, self._view())
-                self.renderer.draw(geom, self.ctx.screen)
+                if self.session.view_mode == "flat":
+                    drawn_scene = scene_with_overlays(self.editor.scene, self.session.overlays)
+                    geom = self.renderer.geometry(drawn_scene, self.session.clock.t_s,
+                                                  self._view())
+                    self.renderer.draw(geom, self.ctx.screen)
+                else:
+                    self._draw_immersive(fw, fh)
                 drawn = True
             except Exception as err:  # keep the editor usable; say what went wrong
                 self.session.message = f"the scene cannot be drawn: {err}"
@@ -339,6 +348,38 @@ class ViewerWindow:
         if self.ui_report is not None:
             self._write_report()
 
+    def _draw_immersive(self, fw: int, fh: int) -> None:
+        """The dome master or panorama of the scene as the export makes it (the show's
+        camera, fades, captions and clock), at most 1024 px high, centred in the picture
+        area between the panels."""
+        from pyglet import gl
+
+        from ..export.immersive import Immersive, ImmersiveRenderer, preview_size
+        from ..scene.timeline import overlay_at, scene_at_show_time, show_time_of
+
+        if self._immersive is None:
+            self._immersive = ImmersiveRenderer(self.renderer)
+        ax, ay, aw, ah = self._scene_area()
+        size = preview_size(self.session.view_mode, (aw, ah))
+        spec = Immersive(self.session.view_mode, size, grid=2 if size[1] < 4096 else 1)
+        # As ShowFrames.at makes the exported frame, without reading it back.
+        scene, t_s = self.editor.scene, self.session.clock.t_s
+        show = show_time_of(scene, t_s)
+        fbo = self._immersive.draw(scene_at_show_time(scene, show, t_s), t_s, spec,
+                                   overlay=overlay_at(scene, show, t_s))
+        self.ctx.screen.use()
+        self.ctx.clear(0.0, 0.0, 0.0, 1.0)
+        # The master is drawn top row first: blit it flipped, centred in the area (GL
+        # counts rows from the bottom of the screen).
+        x0 = ax + (aw - size[0]) // 2
+        y0 = fh - (ay + (ah + size[1]) // 2)
+        #: Where the preview is on the window: (x, y from the top, width, height) px.
+        self.preview_rect = (x0, fh - y0 - size[1], size[0], size[1])
+        gl.glBindFramebuffer(gl.GL_READ_FRAMEBUFFER, fbo.glo)
+        gl.glBindFramebuffer(gl.GL_DRAW_FRAMEBUFFER, 0)
+        gl.glBlitFramebuffer(0, 0, size[0], size[1], x0, y0 + size[1], x0 + size[0], y0,
+                             gl.GL_COLOR_BUFFER_BIT, gl.GL_NEAREST)
+
     def _write_report(self) -> None:
         assert self.ui_report is not None
         r = dict(self.panels.report)
@@ -351,6 +392,8 @@ class ViewerWindow:
         r["prompt"] = "unsaved" if self.session.unsaved_for else ""
         r["bodies"] = [b.name for b in self.editor.scene.bodies]
         r["scene"] = str(self.editor.path) if self.editor.path else ""
+        r["view"] = self.session.view_mode
+        r["preview_rect"] = self.preview_rect if self.session.view_mode != "flat" else None
         tmp = self.ui_report.with_name(self.ui_report.name + ".tmp")
         tmp.write_text(json.dumps(r), encoding="utf-8")
         os.replace(tmp, self.ui_report)
@@ -449,6 +492,8 @@ class ViewerWindow:
         from imgui_bundle import implot
 
         self.panel_renderer.release()
+        if self._immersive is not None:
+            self._immersive.release()
         if self.renderer is not None:
             self.renderer.release()
         implot.destroy_context(self.implot_ctx)

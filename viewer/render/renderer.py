@@ -29,6 +29,7 @@ from numpy.typing import NDArray
 from ..geometry.camera import View, view_for
 from ..geometry.fills import FILL_FLOATS
 from ..geometry.frame import MARKER_FLOATS, FrameGeometry, StaticCache, build_frame
+from ..geometry.labels import PlacedLabel
 from ..geometry.population import (
     PopulationConstants,
     composite_population,
@@ -145,10 +146,11 @@ class Renderer:
         return self.fonts.measure(text, size_px)
 
     def geometry(self, scene: Scene, t_s: float, view: View,
-                 transparent: bool = False, overlay: Sequence[OverlayText] = ()) -> FrameGeometry:
+                 transparent: bool = False, overlay: Sequence[OverlayText] = (),
+                 place: bool = True) -> FrameGeometry:
         """The frame's geometry (viewer.geometry.frame.build_frame with this font)."""
         return build_frame(scene, t_s, view, self.measure, transparent, self.starfield,
-                           self.static, overlay)
+                           self.static, overlay, place)
 
     # --- drawing ------------------------------------------------------------------------
 
@@ -190,7 +192,26 @@ class Renderer:
         self._instances(self.s_glow, geom.glows)
         self._triangles(self.s_lines, geom.strokes, STROKE_FLOATS)
         self._instances(self.s_markers, geom.markers)
-        self._labels(geom)
+        self._labels(geom.labels)
+
+    def draw_labels(self, labels: Sequence[PlacedLabel], framebuffer: Any,
+                    size_px: tuple[int, int], top_row_first: bool = True,
+                    strokes: NDArray[np.float64] | None = None) -> None:
+        """Draw stroke vertices, then placed labels (pixels of ``size_px``, y down), over
+        what ``framebuffer`` holds: the dome master's and the panorama's text and the
+        dome grid, drawn after the reprojection."""
+        ctx = self.ctx
+        framebuffer.use()
+        ctx.viewport = (0, 0, *size_px)
+        for prog in (self.p_text, self.p_stroke):
+            prog["u_size_px"].value = (float(size_px[0]), float(size_px[1]))
+            prog["u_y_sign"].value = -1.0 if top_row_first else 1.0
+        ctx.enable(self._mgl.BLEND)
+        ctx.blend_func = self._mgl.ONE, self._mgl.ONE_MINUS_SRC_ALPHA
+        ctx.blend_equation = self._mgl.FUNC_ADD
+        if strokes is not None:
+            self._triangles(self.s_lines, strokes, STROKE_FLOATS)
+        self._labels(labels)
 
     def _backdrop(self, geom: FrameGeometry, framebuffer: Any, top_row_first: bool,
                   origin_px: tuple[int, int]) -> None:
@@ -308,11 +329,11 @@ class Renderer:
         gpu.anomaly.release()
         gpu.pixels.release()
 
-    def _labels(self, geom: FrameGeometry) -> None:
-        if not geom.labels:
+    def _labels(self, labels: Sequence[PlacedLabel]) -> None:
+        if not labels:
             return
         by_size: dict[int, list[Any]] = {}
-        for lab in geom.labels:
+        for lab in labels:
             by_size.setdefault(max(6, int(round(lab.size_px))), []).append(lab)
         self.p_text["u_halo"].value = HALO_RGBA
         for size in sorted(by_size):

@@ -24,12 +24,22 @@ def shader_source(filename: str) -> str:
         raise ShaderError(f"shader file shaders/{filename} not found ({err})") from err
 
 
+def with_defines(source: str, defines: dict[str, int] | None) -> str:
+    """``source`` with ``#define NAME value`` lines after its ``#version`` line."""
+    if not defines:
+        return source
+    first, _, rest = source.partition("\n")
+    lines = "".join(f"#define {k} {v}\n" for k, v in sorted(defines.items()))
+    return f"{first}\n{lines}{rest}"
+
+
 def load_program(ctx: Any, vertex: str, fragment: str | None = None,
-                 varyings: tuple[str, ...] = ()) -> Any:
+                 varyings: tuple[str, ...] = (), defines: dict[str, int] | None = None) -> Any:
     """Compile ``shaders/<vertex>.vert`` with ``shaders/<fragment or vertex>.frag``.
 
     With ``varyings`` the program is a transform-feedback one: a vertex stage only,
-    whose named outputs are captured into a buffer.
+    whose named outputs are captured into a buffer. ``defines`` are compile-time
+    constants given to the fragment stage (``#define NAME value``).
     """
     vs_name = f"{vertex}.vert"
     vs = shader_source(vs_name)
@@ -39,7 +49,7 @@ def load_program(ctx: Any, vertex: str, fragment: str | None = None,
         except Exception as err:
             raise ShaderError(f"shaders/{vs_name}: {err}") from err
     fs_name = f"{fragment or vertex}.frag"
-    fs = shader_source(fs_name)
+    fs = with_defines(shader_source(fs_name), defines)
     try:
         return ctx.program(vertex_shader=vs, fragment_shader=fs)
     except Exception as err:  # moderngl.Error carries the compiler log

@@ -18,7 +18,7 @@ import math
 import re
 import tomllib
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any
 
@@ -38,6 +38,7 @@ from .model import (
     CameraKey,
     Caption,
     Center,
+    DomeSettings,
     Fade,
     Population,
     RenderSettings,
@@ -255,13 +256,14 @@ class _Loader:
         render = self._render()
         camera = self._camera(bodies, populations, center, render)
         timeline = self._timeline()
+        dome = self._dome()
         if r.problems or center is None or bodies is None:
             return None
         return Scene(title=title, epoch=epoch, frame=frame, center=center, bodies=bodies,
                      camera=camera, render=render, timeline=timeline,
                      populations=populations, source=source, length_unit=r.units["length"],
                      time_unit=r.units["time"], angle_unit=r.units["angle"],
-                     warnings=tuple(self.warnings))
+                     warnings=tuple(self.warnings), dome=dome)
 
     # [scene] -------------------------------------------------------------------------
 
@@ -937,11 +939,48 @@ class _Loader:
             aspect = render.size_px[0] / render.size_px[1]
             width = width or 2.2 * extent * max(1.0, aspect)
             distance = distance or 1.2 * extent / math.tan(fov / 2.0)
+        dome = self._dome_framing(t, "camera")
         return Camera(projection=projection, look=look,
                       elevation_rad=d.elevation_rad if elevation is None else elevation,
                       azimuth_rad=(azimuth or 0.0) % TWO_PI, target=target,
                       width_m=width or d.width_m, distance_m=distance or d.distance_m,
-                      fov_rad=fov)
+                      fov_rad=fov, dome_distance_m=dome["dome_distance_m"],
+                      dome_elevation_rad=d.dome_elevation_rad
+                      if dome["dome_elevation_rad"] is None else dome["dome_elevation_rad"],
+                      dome_tilt_rad=dome["dome_tilt_rad"] or 0.0)
+
+    def _dome_framing(self, t: dict[str, Any], path: str) -> dict[str, float | None]:
+        """dome_distance, dome_elevation (0 to 90 deg) and dome_tilt (0 to 45 deg)."""
+        r = self.r
+        out: dict[str, float | None] = {
+            "dome_distance_m": self._positive(t, "dome_distance", path)}
+        for key, hi_deg in (("dome_elevation", 90.0), ("dome_tilt", 45.0)):
+            v = r.quantity(t, key, path, "angle")
+            if v is not None and not -1e-12 <= v <= math.radians(hi_deg) + 1e-12:
+                r.problem(f"{path}.{key}", f"{key} is 0 to {hi_deg:g} deg")
+                v = None
+            out[key + "_rad"] = v
+        return out
+
+    def _dome(self) -> DomeSettings:
+        """[dome]: sizes as angles, their scales, and the dome grid."""
+        r = self.r
+        t = r.table(self.data, spec.DOME, "") or {}
+        d = DomeSettings()
+        values: dict[str, Any] = {}
+        for key, hi_deg in (("line_width", 5.0), ("label_size", 20.0), ("caption_size", 20.0)):
+            v = r.quantity(t, key, "dome", "angle")
+            if v is not None and not 0.0 < v <= math.radians(hi_deg):
+                r.problem(f"dome.{key}", f"{key} is an angle above 0 and at most {hi_deg:g} deg")
+                v = None
+            if v is not None:
+                values[key + "_rad"] = v
+        for key in ("line_scale", "label_scale"):
+            v = r.number(t, key, "dome", 0.1, 10.0)
+            if v is not None:
+                values[key] = float(v)
+        grid = r.boolean(t, "grid", "dome")
+        return replace(d, **values, grid=d.grid if grid is None else grid)
 
     def _positive(self, t: dict[str, Any], key: str, path: str) -> float | None:
         x = self.r.quantity(t, key, path, "length")
@@ -1053,7 +1092,8 @@ class _Loader:
                 look=look, elevation_rad=elevation, azimuth_rad=azimuth,
                 target=self._target(item, None) if "target" in item else None,
                 width_m=self._positive(item, "width", path),
-                distance_m=self._positive(item, "distance", path), fov_rad=fov))
+                distance_m=self._positive(item, "distance", path), fov_rad=fov,
+                **self._dome_framing(item, path)))
         times = [k.at_s for k in keys]
         if times != sorted(times) or len(set(times)) != len(times):
             r.problem("timeline.camera", "camera keyframes must be in order of increasing "

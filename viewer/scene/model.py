@@ -200,6 +200,31 @@ class Camera:
     width_m: float = 4.0 * 149_597_870_700.0
     distance_m: float = 6.0 * 149_597_870_700.0
     fov_rad: float = float(np.radians(45.0))
+    #: Dome and panorama framing (docs/export.md, "Composing for the dome"): the eye's
+    #: distance from the target (None: ``distance_m``), the target's elevation above the
+    #: audience's horizon (pi/2: the zenith) and the dome's tilt toward the front.
+    dome_distance_m: float | None = None
+    dome_elevation_rad: float = float(np.pi / 2)
+    dome_tilt_rad: float = 0.0
+
+    @property
+    def immersive_distance_m(self) -> float:
+        """The eye's distance from the target for dome masters and panoramas."""
+        return self.distance_m if self.dome_distance_m is None else self.dome_distance_m
+
+
+@dataclass(frozen=True)
+class DomeSettings:
+    """Sizes of dome masters and panoramas as angles (rad) on the sky: ``line_width`` of a
+    line of width 2 (the default), ``label_size`` and ``caption_size`` text heights;
+    ``line_scale`` and ``label_scale`` multiply them; ``grid`` draws the dome grid."""
+
+    line_width_rad: float = float(np.radians(0.3))
+    label_size_rad: float = float(np.radians(2.5))
+    caption_size_rad: float = float(np.radians(4.0))
+    line_scale: float = 1.0
+    label_scale: float = 1.0
+    grid: bool = False
 
 
 @dataclass(frozen=True)
@@ -229,6 +254,9 @@ class CameraKey:
     width_m: float | None = None
     distance_m: float | None = None
     fov_rad: float | None = None
+    dome_distance_m: float | None = None
+    dome_elevation_rad: float | None = None
+    dome_tilt_rad: float | None = None
 
 
 @dataclass(frozen=True)
@@ -300,6 +328,7 @@ class Scene:
     timeline: Timeline = field(default_factory=Timeline)
     populations: tuple[Population, ...] = ()
     source: Path | None = None
+    dome: DomeSettings = field(default_factory=DomeSettings)
     length_unit: str = "au"
     time_unit: str = "d"
     angle_unit: str = "deg"

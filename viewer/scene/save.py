@@ -31,7 +31,7 @@ from ..fileio import WriteError
 from ..fileio import write_atomic as _write_atomic
 from . import writer
 from .loader import MAX_FILE_BYTES, load_scene_text, read_scene_text
-from .model import Camera, RenderSettings, Scene
+from .model import Camera, DomeSettings, RenderSettings, Scene
 
 _SEGMENT = re.compile(r'([A-Za-z0-9_-]+)(?:\[(?:(\d+)|(\+)|"((?:[^"\\]|\\.)*)")\])?')
 
@@ -317,6 +317,7 @@ def _dump_views(doc: Any, scene: Scene, lu: str) -> None:
     ct["distance"] = writer.length(cam.distance_m, lu)
     if cam.fov_rad != d.fov_rad:
         ct["fov"] = writer.angle(cam.fov_rad)
+    _dump_dome_framing(ct, cam, d, lu)
     doc["camera"] = ct
     rs = scene.render
     rt = tomlkit.table()
@@ -336,6 +337,27 @@ def _dump_views(doc: Any, scene: Scene, lu: str) -> None:
         tt["clock"] = tl.clock
     _dump_show(tt, tl, lu)
     doc["timeline"] = tt
+    if scene.dome != DomeSettings():
+        dt = tomlkit.table()
+        dd = DomeSettings()
+        for name in ("line_width", "label_size", "caption_size"):
+            v = getattr(scene.dome, name + "_rad")
+            if v != getattr(dd, name + "_rad"):
+                dt[name] = writer.angle(v)
+        for name in ("line_scale", "label_scale", "grid"):
+            if getattr(scene.dome, name) != getattr(dd, name):
+                dt[name] = getattr(scene.dome, name)
+        doc["dome"] = dt
+
+
+def _dump_dome_framing(t: Any, cam: Any, default: Any, lu: str) -> None:
+    """dome_distance, dome_elevation, dome_tilt of a camera or a keyframe, when set."""
+    if cam.dome_distance_m is not None:
+        t["dome_distance"] = writer.length(cam.dome_distance_m, lu)
+    for name in ("dome_elevation", "dome_tilt"):
+        v = getattr(cam, name + "_rad")
+        if v is not None and (default is None or v != getattr(default, name + "_rad")):
+            t[name] = writer.angle(v)
 
 
 def _dump_show(tt: Any, tl: Any, lu: str) -> None:
@@ -361,6 +383,7 @@ def _dump_show(tt: Any, tl: Any, lu: str) -> None:
             for name, field in (("width", "width_m"), ("distance", "distance_m")):
                 if getattr(key, field) is not None:
                     t[name] = writer.length(getattr(key, field), lu)
+            _dump_dome_framing(t, key, None, lu)
             aot.append(t)
         tt["camera"] = aot
     if tl.fades:

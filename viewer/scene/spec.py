@@ -182,6 +182,26 @@ CAMERA = Key("camera", "table", "how the scene is looked at", keys=(
         "fits every orbit"),
     Key("fov", "angle", "perspective: vertical field of view, above 0 and below 180 deg",
         "45 deg"),
+    Key("dome_distance", "length", "dome and panorama: eye distance from the target",
+        "distance"),
+    Key("dome_elevation", "angle", "dome: the target's elevation above the audience's "
+        "horizon, straight ahead at the front, 0 to 90 deg", "90 deg (the zenith)"),
+    Key("dome_tilt", "angle", "dome: the dome's tilt toward the front, 0 to 45 deg",
+        "0 deg"),
+))
+
+DOME = Key("dome", "table", "sizes on dome masters and panoramas, as angles on the sky",
+           keys=(
+    Key("line_width", "angle", "width of a line of line_width 2 (every line and marker "
+        "scales with it), above 0 and at most 5 deg", "0.3 deg"),
+    Key("label_size", "angle", "text height of labels, above 0 and at most 20 deg",
+        "2.5 deg"),
+    Key("caption_size", "angle", "text height of a caption of size 30 (others in "
+        "proportion), above 0 and at most 20 deg", "4 deg"),
+    Key("line_scale", "number", "multiplies every line width and marker, 0.1 to 10", "1"),
+    Key("label_scale", "number", "multiplies every label and caption, 0.1 to 10", "1"),
+    Key("grid", "bool", "the dome grid: elevation rings, azimuth spokes, labelled, the "
+        "front marked", "false"),
 ))
 
 RENDER = Key("render", "table", "image settings", keys=(
@@ -263,7 +283,7 @@ POPULATION = Key("population", "tables", "many small bodies from a table file, a
 ))
 
 TOP = Key("", "table", "a scene file", keys=(
-    SCENE, CENTER, BODY, CAMERA, RENDER, TIMELINE, POPULATION,
+    SCENE, CENTER, BODY, CAMERA, RENDER, TIMELINE, POPULATION, DOME,
 ))
 
 #: Names people write for a key of the format, and the key they mean (for hints).

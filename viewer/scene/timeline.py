@@ -5,7 +5,8 @@ Camera keyframes (``[[timeline.camera]]``) each give the camera keys that change
 time; a key a keyframe leaves out keeps its value from the keyframe before (the first
 keyframe starts from ``[camera]``). Between keyframes each value eases from one to the
 next: elevation, azimuth (the short way round) and fov linearly in the eased fraction,
-width and distance geometrically (a zoom feels even), the target's position linearly
+width, distance and dome_distance geometrically (a zoom feels even), dome_elevation and
+dome_tilt linearly, the target's position linearly
 (a body target is followed as it moves); the projection switches at the keyframe.
 Before the first keyframe the camera is the first keyframe's, after the last the last's.
 """
@@ -48,7 +49,8 @@ def _angles(cam: Camera) -> tuple[float, float]:
 def _apply(cam: Camera, key: CameraKey) -> Camera:
     changes = {name: getattr(key, name) for name in
                ("projection", "look", "elevation_rad", "azimuth_rad", "target", "width_m",
-                "distance_m", "fov_rad") if getattr(key, name) is not None}
+                "distance_m", "fov_rad", "dome_distance_m", "dome_elevation_rad",
+                "dome_tilt_rad") if getattr(key, name) is not None}
     return replace(cam, **changes)
 
 
@@ -102,7 +104,12 @@ def camera_at(scene: Scene, show_s: float, t_s: float | None = None) -> Camera:
         target=target,  # type: ignore[arg-type]
         width_m=a.width_m * (b.width_m / a.width_m) ** u,
         distance_m=a.distance_m * (b.distance_m / a.distance_m) ** u,
-        fov_rad=a.fov_rad + u * (b.fov_rad - a.fov_rad))
+        fov_rad=a.fov_rad + u * (b.fov_rad - a.fov_rad),
+        dome_distance_m=None if a.dome_distance_m is None and b.dome_distance_m is None
+        else a.immersive_distance_m * (b.immersive_distance_m / a.immersive_distance_m) ** u,
+        dome_elevation_rad=a.dome_elevation_rad
+        + u * (b.dome_elevation_rad - a.dome_elevation_rad),
+        dome_tilt_rad=a.dome_tilt_rad + u * (b.dome_tilt_rad - a.dome_tilt_rad))
 
 
 def _fade_value(f: Fade, show_s: float) -> float:
@@ -193,6 +200,8 @@ class OverlayText:
     position: str
     size_px: float
     rgba: tuple[float, float, float, float]
+    #: "caption" or "clock" (a dome master places the clock by a rule of its own).
+    kind: str = "caption"
 
 
 CLOCK_SIZE_PX = 22.0
@@ -205,5 +214,5 @@ def overlay_at(scene: Scene, show_s: float, t_s: float) -> tuple[OverlayText, ..
                        (*s.caption.color, s.opacity)) for s in captions_at(scene, show_s)]
     clock = clock_text(scene, t_s)
     if clock is not None:
-        out.append(OverlayText(clock, "top-left", CLOCK_SIZE_PX, CLOCK_RGBA))
+        out.append(OverlayText(clock, "top-left", CLOCK_SIZE_PX, CLOCK_RGBA, "clock"))
     return tuple(out)
