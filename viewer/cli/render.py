@@ -220,7 +220,8 @@ def run(args: argparse.Namespace) -> int:
     if spec is not None and fmt == "svg":
         raise UserInputError("-o", "an SVG diagram is a flat view; dome masters and "
                              "panoramas are written as .png or .jpg")
-    out_size = spec.size_px if spec is not None else (size or tuple(scene.render.size_px))
+    out_size: tuple[int, int] = (spec.size_px if spec is not None
+                                 else (size or scene.render.size_px))
     if kind == "video":
         from ..export.encode import check_video_size
 

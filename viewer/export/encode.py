@@ -227,7 +227,7 @@ class VideoWriter:
             if self._broken:
                 continue
             try:
-                stdin.write(memoryview(frame))
+                stdin.write(frame.data)
             except (BrokenPipeError, OSError):
                 self._broken = True  # ffmpeg has stopped; close() reports its reason
 

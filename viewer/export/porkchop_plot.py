@@ -43,11 +43,12 @@ def plot(grid: Any, epoch0: Any, title: str, caution: str, fmt: str,
     import matplotlib
 
     matplotlib.use("Agg")
+    import matplotlib.dates as mdates
     from matplotlib.figure import Figure
 
     dep = _datetimes(epoch0, grid.t_dep_s)
     arr = _datetimes(epoch0, grid.t_arr_s)
-    X, Y = np.meshgrid(matplotlib.dates.date2num(dep), matplotlib.dates.date2num(arr),
+    X, Y = np.meshgrid(np.asarray(mdates.date2num(dep)), np.asarray(mdates.date2num(arr)),
                        indexing="ij")
     c3 = grid.c3_m2_s2 / 1e6
     vinf = grid.vinf_arr_m_s / 1e3

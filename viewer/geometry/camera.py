@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, replace
+from typing import Any
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -118,7 +119,7 @@ class View:
         w, h = self.size_px
         out = np.empty(cam.shape[:-1] + (2,))
         if self.perspective:
-            s = self.focal_px / -cam[..., 2]
+            s: Any = self.focal_px / -cam[..., 2]
             out[..., 0] = 0.5 * w + cam[..., 0] * s
             out[..., 1] = 0.5 * h - cam[..., 1] * s
         else:

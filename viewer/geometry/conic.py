@@ -187,7 +187,8 @@ class Tessellation:
         return self.u[self.starts[k]:self.starts[k + 1]]
 
 
-def _visible(view: View, ca: Floats, cb: Floats, cm: Floats, margin_px: float) -> Floats:
+def _visible(view: View, ca: Floats, cb: Floats, cm: Floats,
+             margin_px: float) -> NDArray[np.bool_]:
     """Whether an interval's arc may touch the (margin-expanded) image, in camera space.
 
     A sphere around the chord midpoint holding the whole arc is tested against the
@@ -214,7 +215,8 @@ def _visible(view: View, ca: Floats, cb: Floats, cm: Floats, margin_px: float) -
     return ok
 
 
-def _deviation_px(view: View, ca: Floats, cb: Floats, cm: Floats) -> tuple[Floats, Floats]:
+def _deviation_px(view: View, ca: Floats, cb: Floats, cm: Floats
+                  ) -> tuple[Floats, NDArray[np.bool_]]:
     """(distance of the arc midpoint from the chord in pixels, all three points in front)."""
     front = view.in_front(ca) & view.in_front(cb) & view.in_front(cm)
     pa = view.camera_to_px(np.where(front[:, None], ca, [0.0, 0.0, -1.0]))

@@ -17,6 +17,7 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 from numpy.typing import NDArray
@@ -235,7 +236,7 @@ class StaticCache:
         return entry
 
 
-def _static(cache: StaticCache | None, body: Body, key: str, make):  # type: ignore[no-untyped-def]
+def _static(cache: StaticCache | None, body: Body, key: str, make: Any) -> Any:
     if cache is None:
         return make()
     entry = cache.of(body)
@@ -526,11 +527,11 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
         if show.nodes and fade.nodes > 0:
             nodes = marks.nodes_m(el, limit)
             if nodes is not None:
-                asc, desc = nodes
-                lines.add(np.stack([desc, asc]),
+                node_a, node_d = nodes
+                lines.add(np.stack([node_d, node_a]),
                           StrokeStyle(_rgba(_mix(col, NODE_RGB, 0.6), 0.7 * fade.nodes),
                                       AXIS_PX, dash_px=(2.0, 4.0)))
-                for p, shape_id in ((asc, DISC), (desc, RING)):
+                for p, shape_id in ((node_a, DISC), (node_d, RING)):
                     q, f = px_of(p)
                     if f:
                         markers.add(q, NODE_PX * hs, shape_id, _mix(col, NODE_RGB, 0.6),
@@ -538,10 +539,10 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                         obstacle(q, NODE_PX * hs)
         if show.foci and fade.foci > 0:
             occ, emp = marks.foci_m(el)
-            for p, shape_id in ((occ, RING), (emp, CROSSHAIR)):
-                if p is None:
+            for focus_m, shape_id in ((occ, RING), (emp, CROSSHAIR)):
+                if focus_m is None:
                     continue
-                q, f = px_of(p)
+                q, f = px_of(focus_m)
                 if f:
                     markers.add(q, FOCUS_RING_PX * hs, shape_id,
                                 FOCUS_RGB if shape_id == RING else _lighten(col, 0.35),
@@ -549,10 +550,10 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                     obstacle(q, FOCUS_RING_PX * hs)
         if show.apsides and fade.apsides > 0:
             peri, apo = marks.apsides_m(el)
-            for p, text in ((peri, "periapsis"), (apo, "apoapsis")):
-                if p is None:
+            for apsis_m, text in ((peri, "periapsis"), (apo, "apoapsis")):
+                if apsis_m is None:
                     continue
-                q, f = px_of(p)
+                q, f = px_of(apsis_m)
                 if f:
                     markers.add(q, APSIS_PX * hs, DIAMOND, _lighten(col, 0.2), fade.apsides)
                     obstacle(q, APSIS_PX * hs)

@@ -109,11 +109,11 @@ def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tu
         text_h = ascent + descent
         gap = req.clearance_px + (0.25 + 1.1 * _RING_OF) * req.size_px
         # The text box's near edge sits ``gap`` from the anchor in each direction.
-        x = np.where(_DX > 0, ax + gap, np.where(_DX < 0, ax - gap - width, ax - 0.5 * width))
+        xs = np.where(_DX > 0, ax + gap, np.where(_DX < 0, ax - gap - width, ax - 0.5 * width))
         lift = gap * np.where(_DX != 0, 0.7, 1.0)
         top = np.where(_DY < 0, ay - lift - text_h,
                        np.where(_DY > 0, ay + lift, ay - 0.5 * text_h))
-        cand = np.stack([x - _PAD_PX, top - _PAD_PX, x + width + _PAD_PX,
+        cand = np.stack([xs - _PAD_PX, top - _PAD_PX, xs + width + _PAD_PX,
                          top + text_h + _PAD_PX], axis=1)
         taken = np.array(boxes + list(obstacles), dtype=np.float64).reshape(-1, 4)
         score = _overlaps(cand, taken).sum(axis=1) + 4.0 * outside(cand)
@@ -125,7 +125,7 @@ def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tu
         area = (box_a[2] - box_a[0]) * (box_a[3] - box_a[1])
         if outside(box_a[None, :])[0] >= area:
             continue  # wholly off the image: nothing to show
-        placed.append(PlacedLabel(req.text, float(x[pick]), float(top[pick] + ascent),
+        placed.append(PlacedLabel(req.text, float(xs[pick]), float(top[pick] + ascent),
                                   req.size_px, req.rgba))
         boxes.append(tuple(float(v) for v in box_a))  # type: ignore[arg-type]
     return placed

@@ -124,4 +124,4 @@ def grid_radii_m(view: View, unit_m: float, extent_m: float) -> tuple[Floats, fl
         r_lo, r_hi = max(step, d - half_diag), d + half_diag
     k0 = max(1, math.ceil(r_lo / step))
     k1 = min(math.floor(r_hi / step), k0 + 59)
-    return np.arange(k0, k1 + 1) * step, step
+    return np.arange(k0, k1 + 1, dtype=np.float64) * step, step

@@ -33,7 +33,7 @@ def scene_with_overlays(scene: Scene, switches: dict[str, bool]) -> Scene:
     marks = {k: v for k, v in switches.items() if OVERLAYS[k][1] == "show"}
     out = scene
     if render:
-        out = replace(out, render=replace(out.render, **render))
+        out = replace(out, render=replace(out.render, **render))  # type: ignore[arg-type]
     if marks:
         bodies = []
         for b in out.bodies:

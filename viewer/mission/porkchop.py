@@ -46,7 +46,7 @@ class Grid:
         if not np.isfinite(values).any():
             return None
         k = int(np.nanargmin(values))
-        return divmod(k, values.shape[1])  # type: ignore[return-value]
+        return divmod(k, values.shape[1])
 
 
 def body_states(body: Any, t_s: np.ndarray, what: str = "the scene time"

@@ -69,11 +69,11 @@ class GlyphAtlas:
             x0, y0, x1, y1 = self.font.getbbox(ch, anchor="ls")
             w = max(x1 - x0, 0) + 2 * _PAD
             h = max(y1 - y0, 0) + 2 * _PAD
-            img = Image.new("L", (w, h), 0)
-            ImageDraw.Draw(img).text((_PAD - x0, _PAD - y0), ch, font=self.font, fill=255,
+            glyph = Image.new("L", (w, h), 0)
+            ImageDraw.Draw(glyph).text((_PAD - x0, _PAD - y0), ch, font=self.font, fill=255,
                                      anchor="ls")
-            halo = img.filter(ImageFilter.MaxFilter(3)).filter(ImageFilter.GaussianBlur(1.0))
-            bitmaps.append((ch, np.asarray(img), np.asarray(halo), x0 - _PAD, y0 - _PAD,
+            halo_img = glyph.filter(ImageFilter.MaxFilter(3)).filter(ImageFilter.GaussianBlur(1.0))
+            bitmaps.append((ch, np.asarray(glyph), np.asarray(halo_img), x0 - _PAD, y0 - _PAD,
                             float(self.font.getlength(ch))))
         # Shelf packing, in character order (deterministic).
         x = y = row_h = 0
