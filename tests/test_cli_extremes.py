@@ -179,3 +179,14 @@ def test_render_dome_options(scene: Path, dome: str, tilt: str) -> None:
     code, _, err = run(["render", str(scene), "--dome", dome, "--tilt", tilt,
                         "-o", str(scene.parent / "d.png")])
     assert code == 2 and "Traceback" not in err, err
+
+
+@pytest.mark.parametrize("flag, bad", [("--size", "nanxnan"), ("--size", "0x0"),
+                                       ("--size", "-1e3x10"), ("--size", "1e300x1"),
+                                       ("--quit-after", "-1"), ("--quit-after", "nan"),
+                                       ("--quit-after", "1e300"), ("--quit-after", "inf")])
+def test_open_refuses_extreme_window_options_before_any_window(
+        scene: Path, flag: str, bad: str, monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.delenv("DISPLAY", raising=False)
+    code, _, err = run(["open", str(scene), flag, bad])
+    assert code == 2 and "Traceback" not in err and flag in err, err
