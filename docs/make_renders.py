@@ -18,6 +18,7 @@ mode (every panel hidden).
 
 from __future__ import annotations
 
+import contextlib
 import sys
 from dataclasses import replace
 from importlib import resources
@@ -68,7 +69,31 @@ def main(argv: list[str]) -> int:
             _porkchop(_scenes()["solar-system"], renderer)
         if not wanted or "demo" in wanted or "demo-dome" in wanted:
             _dome_master(renderer, load_scene(_scenes()["demo"]))
+    if not wanted or "presentation" in wanted:
+        _presentation(_scenes()["demo"])
     return 0
+
+
+def _presentation(scene_path: Path) -> None:
+    """The window in presentation mode (every panel hidden), on a private Xvfb server."""
+    import os
+    import subprocess
+    import sys
+
+    from viewer.gui.bench import _start_xvfb
+
+    proc, display = _start_xvfb()
+    target = OUT / "presentation.png"
+    try:
+        subprocess.run([sys.executable, "-m", "viewer.cli", "open", str(scene_path), "--present",
+                        "--size", "1600x900", "--screenshot", str(target), "--force",
+                        "--quit-after", "4"], env={**os.environ, "DISPLAY": display},
+                       check=True, timeout=120)
+    finally:
+        proc.terminate()
+    with contextlib.suppress(OSError):  # the output rule kept the previous one
+        target.with_name(target.name + ".bak").unlink()
+    print(f"wrote {target.relative_to(OUT.parent.parent)}")
 
 
 def _porkchop(scene_path: Path, renderer) -> None:  # type: ignore[no-untyped-def]
