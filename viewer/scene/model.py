@@ -309,9 +309,20 @@ class Timeline:
     def frame_count(self) -> int:
         return int(round(self.duration_s * self.fps))
 
+    def scene_time_at(self, show_s: Any) -> Any:
+        """Scene time (s) at ``show_s`` seconds into the show (scalar or array). The one
+        map from show time to scene time: frames, the window's show clock and stills at a
+        show time all go through it."""
+        return self.start_s + np.asarray(show_s, dtype=np.float64) * self.rate
+
+    def show_time_at(self, t_s: float) -> float:
+        """Seconds into the show at scene time ``t_s`` (the inverse of ``scene_time_at``),
+        0 before the start."""
+        return max(0.0, (float(t_s) - self.start_s) / self.rate)
+
     def time_of_frame(self, k: Any) -> Any:
         """Scene time (s) of frame k (scalar or array)."""
-        return self.start_s + np.asarray(k, dtype=np.float64) * (self.rate / self.fps)
+        return self.scene_time_at(self.show_time_of_frame(k))
 
 
 @dataclass(frozen=True)

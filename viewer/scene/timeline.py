@@ -89,7 +89,7 @@ def camera_at(scene: Scene, show_s: float, t_s: float | None = None) -> Camera:
     u = ease((show_s - t0) / (t1 - t0), kind)
     if a == b:
         return a
-    t = scene.timeline.start_s + show_s * scene.timeline.rate if t_s is None else t_s
+    t = float(scene.timeline.scene_time_at(show_s)) if t_s is None else t_s
     el0, az0 = _angles(a)
     el1, az1 = _angles(b)
     daz = (az1 - az0 + math.pi) % TWO_PI - math.pi
@@ -169,8 +169,7 @@ MARKS = NAMES
 
 def show_time_of(scene: Scene, t_s: float) -> float:
     """Seconds into the show at scene time t_s (0 before the start)."""
-    tl = scene.timeline
-    return max(0.0, (t_s - tl.start_s) / tl.rate)
+    return scene.timeline.show_time_at(t_s)
 
 
 def scene_at_show_time(scene: Scene, show_s: float, t_s: float | None = None) -> Scene:
