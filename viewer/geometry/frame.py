@@ -201,14 +201,24 @@ def _central_radius_px(scene: Scene, view: View) -> tuple[float, Floats, bool]:
     return max(r_true, r_min), px[0], bool(front[0])
 
 
+def _motion_key(body: Body) -> tuple[object, ...]:
+    """What a body's cached values depend on: its elements and sectors (compared by
+    identity: both are frozen, and an edit makes new ones), its epoch and its flight.
+    Not its fades, show switches or colour, so a show that fades a body's marks from
+    frame to frame (a new Body each frame) keeps its conic and its sectors."""
+    return (body.elements, body.sweep, body.epoch_offset_s, body.flight_s,
+            body.limit_radius_m)
+
+
 class StaticCache:
-    """What a frame needs that depends only on a body, not on time or view: its conic's
-    constants, its sectors' anomaly bounds and areas. Keyed by the (frozen) Body object
-    itself, so an edited scene (a new Body) never sees stale values; a cache changes
-    only how fast a frame is made, never what it holds."""
+    """What a frame needs that depends only on a body's motion, not on the view: its
+    conic's constants, its sectors' anomaly bounds and areas, and its state at the last
+    time asked (the faces of a dome master share it). Keyed by what those depend on
+    (``_motion_key``), so an edited scene (new elements) never sees stale values; a
+    cache changes only how fast a frame is made, never what it holds."""
 
     def __init__(self, limit: int = 512) -> None:
-        self._items: dict[int, tuple[Body, dict[str, object]]] = {}
+        self._items: dict[int, tuple[tuple[object, ...], dict[str, object]]] = {}
         self._frames: dict[tuple[object, ...], tuple[tuple[object, ...], _StaticPart]] = {}
         self._limit = limit
 
@@ -226,14 +236,32 @@ class StaticCache:
         self._frames[key] = (owners, part)
 
     def of(self, body: Body) -> dict[str, object]:
-        hit = self._items.get(id(body))
-        if hit is not None and hit[0] is body:
+        key = _motion_key(body)
+        hit = self._items.get(id(body.elements))
+        if hit is not None and len(hit[0]) == len(key) and all(
+                a is b or (isinstance(a, float | tuple) and a == b)
+                for a, b in zip(hit[0], key, strict=True)):
             return hit[1]
         if len(self._items) >= self._limit:
             self._items.clear()
         entry: dict[str, object] = {}
-        self._items[id(body)] = (body, entry)
+        self._items[id(body.elements)] = (key, entry)
         return entry
+
+    def state(self, body: Body, t_s: float) -> tuple[Floats, Floats]:
+        """The body's position and velocity (m, m/s) at scene time ``t_s``."""
+        entry = self.of(body)
+        kept = entry.get("state")
+        if kept is not None and kept[0] == t_s:  # type: ignore[index]
+            return kept[1], kept[2]  # type: ignore[index,return-value]
+        r, v = _state_at(body, t_s)
+        entry["state"] = (t_s, r, v)
+        return r, v
+
+
+def _state_at(body: Body, t_s: float) -> tuple[Floats, Floats]:
+    r, v = state_from_elements(body.elements_at(t_s))
+    return np.asarray(r, dtype=np.float64), np.asarray(v, dtype=np.float64)
 
 
 def _static(cache: StaticCache | None, body: Body, key: str, make: Any) -> Any:
@@ -310,8 +338,7 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
                 or (show.velocity and fade.velocity > 0)) or not body.in_flight(t_s):
             continue
         col = body.color
-        r, v = state_from_elements(body.elements_at(t_s))
-        r = np.asarray(r, dtype=np.float64)
+        r, v = cache.state(body, t_s) if cache is not None else _state_at(body, t_s)
         q, f = _seen_px(view, r, occluder)
         if not f:
             continue

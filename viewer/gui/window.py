@@ -306,6 +306,10 @@ class ViewerWindow:
         # What this frame shows; an edit made by the panels below changes the revision
         # again, so the loop draws the next frame at once (the edit is seen next frame).
         self._last_revision = self.editor.revision
+        #: True while the picture moves (time playing, the camera turned since the last
+        #: frame): the dome preview then samples once per pixel, and the settled frame
+        #: after the move as the export does.
+        moving = self.session.clock.playing or self.session.camera is not self._last_camera
         self._last_camera = self.session.camera
         self._job_state = self.session.job.state if self.session.job is not None else ""
         if self.session.editor is not self._shown_editor:  # File > Open showed another scene
@@ -324,7 +328,7 @@ class ViewerWindow:
                                                   self._view())
                     self.renderer.draw(geom, self.ctx.screen)
                 else:
-                    self._draw_immersive(fw, fh)
+                    self._draw_immersive(fw, fh, moving)
                 drawn = True
             except Exception as err:  # keep the editor usable; say what went wrong
                 self.session.message = f"the scene cannot be drawn: {err}"
@@ -348,10 +352,11 @@ class ViewerWindow:
         if self.ui_report is not None:
             self._write_report()
 
-    def _draw_immersive(self, fw: int, fh: int) -> None:
+    def _draw_immersive(self, fw: int, fh: int, moving: bool = False) -> None:
         """The dome master or panorama of the scene as the export makes it (the show's
         camera, fades, captions and clock), at most 1024 px high, centred in the picture
-        area between the panels."""
+        area between the panels. While the picture ``moving``, one sample per pixel in
+        place of the export's 2 x 2 (a draft, twice as fast); still, exactly the export."""
         from pyglet import gl
 
         from ..export.immersive import Immersive, ImmersiveRenderer, preview_size
@@ -361,7 +366,8 @@ class ViewerWindow:
             self._immersive = ImmersiveRenderer(self.renderer)
         ax, ay, aw, ah = self._scene_area()
         size = preview_size(self.session.view_mode, (aw, ah))
-        spec = Immersive(self.session.view_mode, size, grid=2 if size[1] < 4096 else 1)
+        spec = Immersive(self.session.view_mode, size,
+                         grid=1 if moving or size[1] >= 4096 else 2)
         # As ShowFrames.at makes the exported frame, without reading it back.
         scene, t_s = self.editor.scene, self.session.clock.t_s
         show = show_time_of(scene, t_s)
