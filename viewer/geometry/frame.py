@@ -253,7 +253,7 @@ class StaticCache:
         entry = self.of(body)
         kept = entry.get("state")
         if kept is not None and kept[0] == t_s:  # type: ignore[index]
-            return kept[1], kept[2]  # type: ignore[index,return-value]
+            return kept[1], kept[2]  # type: ignore[index]
         r, v = _state_at(body, t_s)
         entry["state"] = (t_s, r, v)
         return r, v

@@ -26,17 +26,23 @@ def measure_window(scene_path: str | Path, size: tuple[int, int] = (1920, 1080),
     win = ViewerWindow(editor, size=size)
     try:
         clock = win.session.clock
-        clock.playing = True
         step_s = 1.0 / 60.0
-        whole: list[float] = []
-        for k in range(warmup + frames):
-            t0 = time.perf_counter()
-            win.window.dispatch_events()
-            clock.advance(step_s)
-            win.draw()
-            win.window.flip()
-            if k >= warmup:
-                whole.append(time.perf_counter() - t0)
+
+        def timed(n: int) -> list[float]:
+            """Whole window frames (events, clock, scene, panels, swap), after a warm-up."""
+            out = []
+            for k in range(warmup + n):
+                t0 = time.perf_counter()
+                win.window.dispatch_events()
+                clock.advance(step_s)
+                win.draw()
+                win.window.flip()
+                if k >= warmup:
+                    out.append(time.perf_counter() - t0)
+            return out
+
+        clock.playing = True
+        whole = timed(frames)
         # The scene alone, same frames, same context, offscreen, finished before timing.
         scene_only: list[float] = []
         renderer = win.renderer
@@ -53,18 +59,6 @@ def measure_window(scene_path: str | Path, size: tuple[int, int] = (1920, 1080),
                     scene_only.append(time.perf_counter() - t0)
         # The dome preview (V), time playing: a draft while it moves, as a producer sees it
         # playing through a show; then the still frame, sampled as the export samples.
-        def timed(n: int) -> list[float]:
-            out = []
-            for k in range(warmup + n):
-                t0 = time.perf_counter()
-                win.window.dispatch_events()
-                clock.advance(step_s)
-                win.draw()
-                win.window.flip()
-                if k >= warmup:
-                    out.append(time.perf_counter() - t0)
-            return out
-
         win.session.view_mode = "dome"
         clock.playing = True
         dome_playing = timed(frames // 2)
