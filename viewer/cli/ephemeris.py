@@ -70,28 +70,13 @@ def body_by_name(scene: Any, name: str, flag: str) -> Any:
 def time_arg(text: str, flag: str, scene: Any) -> Any:
     """An Epoch from a flag: an ISO epoch (TDB without a suffix) or an offset from the
     scene epoch (bare numbers in the scene's time unit), by
-    ``viewer.units.forms.parse_scene_time``."""
-    from ..units.forms import (
-        EpochError,
-        QuantityError,
-        is_epoch_text,
-        parse_epoch,
-        parse_scene_time,
-        scene_time_hint,
-    )
+    ``viewer.units.forms.epoch_from_text``."""
+    from ..units.forms import EpochError, QuantityError, epoch_from_text
 
     try:
-        if is_epoch_text(text):  # kept in its own scale, which the messages are written in
-            epoch = parse_epoch(text)
-        else:
-            epoch = scene.epoch.plus_seconds(parse_scene_time(text, scene.epoch,
-                                                              scene.time_unit))
+        return epoch_from_text(text, scene.epoch, scene.time_unit)
     except (EpochError, QuantityError) as err:
-        raise UserInputError(flag, f"{err}; {scene_time_hint()}") from None
-    if not epoch.in_calendar():
-        raise UserInputError(flag, f"{text!r} is outside years 1 to 9999 (epochs are written "
-                             "with four-digit years); give a nearer time")
-    return epoch
+        raise UserInputError(flag, str(err)) from None
 
 
 def _label(epoch: Any, scale: str, flag: str) -> tuple[dt.datetime, str | None]:

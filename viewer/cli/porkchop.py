@@ -36,7 +36,9 @@ default, or c3) added as a body: the Lambert conic with its epoch at the departu
 """
 
 DEFAULT_STEPS = 200
-MAX_STEPS = 2000
+#: Refusals name the command line's flags.
+FLAGS = {"from": "--from", "to": "--to", "depart": "--depart", "arrive": "--arrive",
+         "steps": "--steps"}
 
 
 def add_parser(sub: Any) -> None:
@@ -63,7 +65,7 @@ def add_parser(sub: Any) -> None:
                    help="first and last arrival date")
     p.add_argument("--steps", nargs=2, type=int, default=(DEFAULT_STEPS, DEFAULT_STEPS),
                    metavar=("N_DEP", "N_ARR"), help=f"grid size (default {DEFAULT_STEPS} "
-                   f"{DEFAULT_STEPS}; at most {MAX_STEPS} each and 1,000,000 cells)")
+                   f"{DEFAULT_STEPS}; at most 2000 each and 1,000,000 cells)")
     p.add_argument("--park-altitude", default="200 km", metavar="H",
                    help='circular parking orbit above the departure planet (default "200 km")')
     p.add_argument("--capture-altitude", default="250 km", metavar="H",
@@ -82,33 +84,10 @@ def add_parser(sub: Any) -> None:
     p.set_defaults(run=run)
 
 
-def _planet(body: Any, flag: str) -> tuple[float, float]:
-    """(GM, radius) of the body as a planet: the catalogue entry of its ephemeris target or
-    name, else the body's own gm (or mass) and radius from the scene."""
-    from ..orbit.constants import CATALOGUE
-
-    key = body.track.target if body.track is not None else body.name.strip().lower()
-    entry = CATALOGUE.get(key)
-    if entry is not None:
-        return entry.gm_m3_s2, entry.radius_m
-    if body.gm_m3_s2 > 0.0 and body.radius_m:
-        return body.gm_m3_s2, body.radius_m
-    raise UserInputError(flag, f"{body.name!r} is not a catalogue planet (one of "
-                         f"{', '.join(CATALOGUE)}) and has no gm and radius in the scene, so "
-                         f"its parking or capture orbit is unknown; give the body gm (or "
-                         f"mass) and radius")
-
-
 def _altitude(text: str, flag: str) -> float:
-    from ..units import QuantityError, parse_quantity
+    from ..mission.porkchop import parse_altitude
 
-    try:
-        h = parse_quantity(text, "length", "km")
-    except QuantityError as err:
-        raise UserInputError(flag, f"{err}; give an altitude such as \"200 km\"") from None
-    if not h >= 0.0:
-        raise UserInputError(flag, f"the altitude must be zero or more; got {text!r}")
-    return h
+    return parse_altitude(text, flag)
 
 
 def _times(pair: list[str], n: int, flag: str, scene: Any) -> Any:
@@ -138,9 +117,8 @@ def option(grid: Any, cell: tuple[int, int] | None, epoch0: Any) -> dict[str, An
 
 
 def run(args: argparse.Namespace) -> int:
-    import numpy as np
 
-    from ..mission.porkchop import MAX_CELLS, body_states, grid
+    from ..mission.porkchop import check_steps, season
     from ..scene import load_scene
     from . import CAUTION
     from .ephemeris import body_by_name
@@ -151,27 +129,15 @@ def run(args: argparse.Namespace) -> int:
     if dep.name == arr.name:
         raise UserInputError("--to", "--from and --to name the same body")
     n_dep, n_arr = args.steps
-    if not (2 <= n_dep <= MAX_STEPS and 2 <= n_arr <= MAX_STEPS):
-        raise UserInputError("--steps", f"each grid size must be 2 to {MAX_STEPS}; got "
-                             f"{n_dep} {n_arr}")
-    if n_dep * n_arr > MAX_CELLS:
-        raise UserInputError("--steps", f"{n_dep * n_arr:,} cells is too large a grid for "
-                             f"memory; at most {MAX_CELLS:,}")
-    park = (*_planet(dep, "--from"),)
-    capture = (*_planet(arr, "--to"),)
-    park = (park[0], park[1] + _altitude(args.park_altitude, "--park-altitude"))
-    capture = (capture[0], capture[1] + _altitude(args.capture_altitude, "--capture-altitude"))
-    t_dep = _times(args.depart, n_dep, "--depart", scene)
-    t_arr = _times(args.arrive, n_arr, "--arrive", scene)
-    g = grid(scene.center.gm_m3_s2, body_states(dep, t_dep, "--depart"),
-             body_states(arr, t_arr, "--arrive"),
-             t_dep, t_arr, park, capture)
-    if not np.isfinite(g.c3_m2_s2).any():
-        raise UserInputError("--arrive", "no cell of the grid has a Lambert solution: every "
-                             "arrival must come after its departure")
+    check_steps(n_dep, n_arr, "--steps")  # before the dates are laid out
+    sea = season(scene, dep, arr, _times(args.depart, n_dep, "--depart", scene),
+                 _times(args.arrive, n_arr, "--arrive", scene),
+                 _altitude(args.park_altitude, "--park-altitude"),
+                 _altitude(args.capture_altitude, "--capture-altitude"), FLAGS)
+    g, park, capture = sea.grid, sea.park, sea.capture
     best = {"c3": g.best("c3"), "total": g.best("total")}
     if args.save:
-        _save(args, scene, dep, arr, g, best[args.pick])
+        _save(args, scene, sea, best[args.pick])
     if args.output:
         _write(args.output, g, scene, dep.name, arr.name, best, CAUTION, args.force, args.scene)
     out = {"from": dep.name, "to": arr.name, "grid": [n_dep, n_arr],
@@ -215,19 +181,15 @@ def _write(prefix: str, g: Any, scene: Any, a: str, b: str, best: Any, caution: 
         write_output(Path(path), data)
 
 
-def _save(args: argparse.Namespace, scene: Any, dep: Any, arr: Any, g: Any,
-          cell: tuple[int, int] | None) -> None:
+def _save(args: argparse.Namespace, scene: Any, sea: Any, cell: tuple[int, int] | None) -> None:
     """A copy of the scene file with the chosen transfer appended as a [[body]]."""
-    import numpy as np
-
     from ..fileio import claim_output, write_output
     from ..formats.scene_text import body_toml
-    from ..mission.lambert import solve
-    from ..mission.porkchop import body_states
-    from ..orbit import elements_from_state
+    from ..mission.porkchop import transfer_elements
     from ..scene import load_scene_text, read_scene_text
 
     assert cell is not None
+    dep, arr, g = sea.dep, sea.arr, sea.grid
     target = claim_output(args.save, force=args.force, inputs=[args.scene], flag="--save")
     name = args.name or f"{dep.name} to {arr.name} (Lambert)"
     if any(b.name == name for b in scene.bodies):
@@ -235,10 +197,7 @@ def _save(args: argparse.Namespace, scene: Any, dep: Any, arr: Any, g: Any,
                              f"another with --name")
     i, j = cell
     t_dep, t_arr = float(g.t_dep_s[i]), float(g.t_arr_s[j])
-    r1, _ = body_states(dep, np.array([t_dep]), "--depart")
-    r2, _ = body_states(arr, np.array([t_arr]), "--arrive")
-    res = solve(scene.center.gm_m3_s2, r1[0], r2[0], t_arr - t_dep)
-    el = elements_from_state(r1[0], res.v1, scene.center.gm_m3_s2)
+    el = transfer_elements(scene, sea, cell)
     depart = scene.epoch.plus_seconds(t_dep)
     arrive = scene.epoch.plus_seconds(t_arr)
     comments = [

@@ -159,6 +159,8 @@ def _close_top(s: Any) -> None:
     """Esc: close the help overlay, else the plots window (dialogs close themselves)."""
     if s.show_help:
         s.show_help = False
+    elif s.show_season:
+        s.show_season = False
     elif s.show_plots:
         s.show_plots = False
 
@@ -193,6 +195,8 @@ ACTIONS: tuple[Action, ...] = (
     Action("centre", "Centre on the central body", (C("C"),), _centre, "View"),
     Action("plots", "Plots: distance and speed, third law", (C("G"),), _toggle("show_plots"),
            "View", _always, _flag("show_plots")),
+    Action("season", "Launch season: pork-chop plot", (C("L", ctrl=True),),
+           _toggle("show_season"), "View", _always, _flag("show_season")),
     Action("view", "Next view: flat, dome master, panorama", (C("V"),), _next_view, "View"),
     Action("fit", "Fit the whole scene in view", (C("HOME", shift=True),), _fit, "View"),
     Action("presentation", "Presentation: hide every panel", (C("F10"),),
@@ -203,7 +207,8 @@ ACTIONS: tuple[Action, ...] = (
              "Overlays", _always, _overlay_on(name))
       for (name, (label, _)), key in zip(OVERLAYS.items(), ("L", "G", "S", "F", "W", "A"),
                                          strict=True)),
-    Action("close", "Close the help or the plots", (C("ESCAPE"),), _close_top),
+    Action("close", "Close the help, the launch season or the plots", (C("ESCAPE"),),
+           _close_top),
     # Time
     Action("play", "Play / pause", (C("SPACE"),), _toggle_play, "Time"),
     Action("step_back", "Step one frame back", (C("LEFT"),), lambda s: s.clock.step(-1),

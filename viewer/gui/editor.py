@@ -341,6 +341,19 @@ class Editor:
         self._push(self._with_bodies(bodies), j, tuple(ids),
                    f"move {self.scene.bodies[k].name}")
 
+    def replace_body(self, index: int, body: Body, label: str,
+                     color: tuple[float, float, float] | None = None) -> None:
+        """Put ``body`` (made elsewhere: a transfer, a pick of the pork-chop plot) in
+        place of the body at ``index``, in one edit; it keeps that body's place in the
+        file, and ``color`` if given. Its name must not be another body's."""
+        k = self._index(index)
+        if any(b.name == body.name for i, b in enumerate(self.scene.bodies) if i != k):
+            raise EditRefused("name", f"another body is already named {body.name!r}")
+        c = self.scene.center
+        new = _with_elements(replace(body, color=color or body.color),
+                             body.elements.with_(mu=c.gm_m3_s2), c)
+        self._replace_body(k, new, label)
+
     def _replace_body(self, k: int, body: Body, label: str, merge: bool = False) -> None:
         bodies = list(self.scene.bodies)
         bodies[k] = body

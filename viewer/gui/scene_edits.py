@@ -101,7 +101,8 @@ def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, An
         out.append((f"{path}.show", flags or None))
     if new.sweep != old.sweep or sweep_date:
         out.append((f"{path}.sweep", d.get("sweep")))
-    for attr, key in (("radius_m", "radius"), ("epoch_offset_s", "epoch")):
+    for attr, key in (("radius_m", "radius"), ("epoch_offset_s", "epoch"),
+                      ("flight_s", "flight")):
         if getattr(new, attr) != getattr(old, attr):
             out.append((f"{path}.{key}", d.get(key)))
     if new.limit_radius_m != old.limit_radius_m and ("limit_radius" in raw

@@ -39,6 +39,8 @@ class Session:
     camera: Any
     show_help: bool = False
     show_plots: bool = False
+    #: The launch-season window (pork-chop plot; it takes the plots' place).
+    show_season: bool = False
     #: Presentation: every panel hidden, the picture fills the window.
     presenting: bool = False
     fullscreen: bool = False

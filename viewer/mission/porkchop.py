@@ -98,3 +98,133 @@ def grid(mu: float, dep: tuple[np.ndarray, np.ndarray], arr: tuple[np.ndarray, n
 def synodic_period_s(period1_s: float, period2_s: float) -> float:
     """The synodic period 1 / |1/T1 - 1/T2| (common practice, no source)."""
     return 1.0 / abs(1.0 / period1_s - 1.0 / period2_s)
+
+
+# --- a launch season from what a person typed: one home for both front ends -------------
+
+#: Grid sizes a season may have: each side, and the cells in all.
+MIN_STEPS, MAX_STEPS = 2, 2000
+
+
+@dataclass(frozen=True)
+class Season:
+    """A computed pork-chop grid with what it was made from: the two bodies, and
+    (GM, circular orbit radius) of the parking and the capture orbit."""
+
+    dep: Any
+    arr: Any
+    grid: Grid
+    park: tuple[float, float]
+    capture: tuple[float, float]
+
+    def cell_at(self, t_dep_s: float, t_arr_s: float) -> tuple[int, int] | None:
+        """The cell nearest to a departure and an arrival time, None outside the grid or
+        where the cell has no transfer."""
+        g = self.grid
+        for t, axis in ((t_dep_s, g.t_dep_s), (t_arr_s, g.t_arr_s)):
+            half = 0.5 * (axis[1] - axis[0])
+            if not axis[0] - half <= t <= axis[-1] + half:
+                return None
+        i = int(np.argmin(np.abs(g.t_dep_s - t_dep_s)))
+        j = int(np.argmin(np.abs(g.t_arr_s - t_arr_s)))
+        return (i, j) if np.isfinite(g.c3_m2_s2[i, j]) else None
+
+
+def check_steps(n: int, m: int, field: str) -> None:
+    """Refuse a grid of n x m dates that is too small or too large for memory."""
+    from .quick import MissionRefused
+
+    if not (MIN_STEPS <= n <= MAX_STEPS and MIN_STEPS <= m <= MAX_STEPS):
+        raise MissionRefused(field, f"each grid size must be {MIN_STEPS} to {MAX_STEPS}; "
+                             f"got {n} {m}")
+    if n * m > MAX_CELLS:
+        raise MissionRefused(field, f"{n * m:,} cells is too large a grid for memory; at "
+                             f"most {MAX_CELLS:,}")
+
+
+def parse_altitude(text: str, field: str) -> float:
+    """An orbit's altitude above a planet as typed ("200 km"; bare numbers in km)."""
+    from ..units import QuantityError, parse_quantity
+    from .quick import MissionRefused
+
+    try:
+        h = parse_quantity(text, "length", "km")
+    except QuantityError as err:
+        raise MissionRefused(field, f"{err}; give an altitude such as \"200 km\"") from None
+    if not h >= 0.0:
+        raise MissionRefused(field, f"the altitude must be zero or more; got {text!r}")
+    return h
+
+
+def planet_orbit(body: Any, altitude_m: float, field: str) -> tuple[float, float]:
+    """(GM, radius of a circular orbit ``altitude_m`` above it) of a body as a planet:
+    the catalogue entry of its ephemeris target or name, else the body's own gm (or
+    mass) and radius from the scene."""
+    from ..orbit.constants import CATALOGUE
+    from .quick import MissionRefused
+
+    if not altitude_m >= 0.0:
+        raise MissionRefused(field, f"the orbit's altitude must be zero or more; got "
+                             f"{altitude_m / 1e3:g} km")
+    key = body.track.target if body.track is not None else body.name.strip().lower()
+    entry = CATALOGUE.get(key)
+    if entry is not None:
+        return entry.gm_m3_s2, entry.radius_m + altitude_m
+    if body.gm_m3_s2 > 0.0 and body.radius_m:
+        return body.gm_m3_s2, body.radius_m + altitude_m
+    raise MissionRefused(field, f"{body.name!r} is not a catalogue planet (one of "
+                         f"{', '.join(CATALOGUE)}) and has no gm and radius in the scene, so "
+                         f"its parking or capture orbit is unknown; give the body gm (or "
+                         f"mass) and radius")
+
+
+def season(scene: Any, dep: Any, arr: Any, t_dep_s: np.ndarray, t_arr_s: np.ndarray,
+           park_altitude_m: float, capture_altitude_m: float,
+           fields: dict[str, str] | None = None) -> Season:
+    """The pork-chop grid of direct transfers from body ``dep`` to body ``arr`` of
+    ``scene`` over the departure and arrival times (scene s, increasing). Refusals are
+    MissionRefused naming the input by ``fields`` (keys "from", "to", "depart",
+    "arrive", "steps"; the command line passes its flags). A body that is no planet of
+    the catalogue and has no gm and radius is refused at "from" or "to"."""
+    from .quick import MissionRefused
+
+    name = {"from": "from", "to": "to", "depart": "depart", "arrive": "arrive",
+            "steps": "steps", **(fields or {})}
+    if dep.name == arr.name:
+        raise MissionRefused(name["to"], "the departure and the arrival body are the same")
+    check_steps(len(t_dep_s), len(t_arr_s), name["steps"])
+    for key, t in (("depart", t_dep_s), ("arrive", t_arr_s)):
+        if not np.all(np.diff(t) > 0):
+            raise MissionRefused(name[key], "the last date must be after the first")
+    park = planet_orbit(dep, park_altitude_m, name["from"])
+    capture = planet_orbit(arr, capture_altitude_m, name["to"])
+    g = grid(scene.center.gm_m3_s2, body_states(dep, t_dep_s, name["depart"]),
+             body_states(arr, t_arr_s, name["arrive"]), t_dep_s, t_arr_s, park, capture)
+    if not np.isfinite(g.c3_m2_s2).any():
+        raise MissionRefused(name["arrive"], "no cell of the grid has a Lambert solution: "
+                             "every arrival must come after its departure")
+    return Season(dep, arr, g, park, capture)
+
+
+def transfer_elements(scene: Any, s: Season, cell: tuple[int, int]) -> Any:
+    """The conic (Elements at the departure) of the transfer of one cell."""
+    from ..orbit import elements_from_state
+
+    i, j = cell
+    t_dep, t_arr = float(s.grid.t_dep_s[i]), float(s.grid.t_arr_s[j])
+    r1, _ = body_states(s.dep, np.array([t_dep]))
+    r2, _ = body_states(s.arr, np.array([t_arr]))
+    res = solve(scene.center.gm_m3_s2, r1[0], r2[0], t_arr - t_dep)
+    return elements_from_state(r1[0], res.v1, scene.center.gm_m3_s2)
+
+
+def transfer_body(scene: Any, s: Season, cell: tuple[int, int], name: str,
+                  color: tuple[float, float, float] = (1.0, 0.85, 0.35)) -> Any:
+    """The transfer of one cell as a scene body: the Lambert conic with its epoch at the
+    departure, flown (and drawn) from departure to arrival, apsides shown."""
+    from ..scene.model import Body, BodyShow
+
+    i, j = cell
+    t_dep, t_arr = float(s.grid.t_dep_s[i]), float(s.grid.t_arr_s[j])
+    return Body(name=name, elements=transfer_elements(scene, s, cell), epoch_offset_s=t_dep,
+                color=color, show=BodyShow(apsides=True), flight_s=(t_dep, t_arr))

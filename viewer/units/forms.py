@@ -56,6 +56,24 @@ def parse_scene_time(value: object, scene_epoch: Epoch, time_unit: str) -> float
     return parse_limited(value, "time", time_unit)
 
 
+def epoch_from_text(value: str, scene_epoch: Epoch, time_unit: str) -> Epoch:
+    """An Epoch from a date typed as an ISO epoch (kept in its own time scale, TDB when
+    none is given) or as an offset from ``scene_epoch`` (a bare number in
+    ``time_unit``), within years 1 to 9999. Raises EpochError or QuantityError, whose
+    text says what may be written."""
+    try:
+        if is_epoch_text(value):
+            epoch = parse_epoch(value)
+        else:
+            epoch = scene_epoch.plus_seconds(parse_scene_time(value, scene_epoch, time_unit))
+    except (EpochError, QuantityError) as err:
+        raise type(err)(f"{err}; {scene_time_hint()}") from None
+    if not epoch.in_calendar():
+        raise EpochError(f"{value!r} is outside years 1 to 9999 (epochs are written with "
+                         "four-digit years); give a nearer time")
+    return epoch
+
+
 def scene_time_hint() -> str:
     """What a scene time may be, for refusals."""
     return ('give an epoch such as "2030-01-01T00:00:00 UTC" or an offset from the scene '
@@ -63,4 +81,5 @@ def scene_time_hint() -> str:
 
 
 __all__ = ["EPOCH_START", "MAX_SIDE_PX", "EpochError", "QuantityError", "SizeError",
-           "is_epoch_text", "parse_epoch", "parse_scene_time", "parse_size", "scene_time_hint"]
+           "epoch_from_text", "is_epoch_text", "parse_epoch", "parse_scene_time", "parse_size",
+           "scene_time_hint"]

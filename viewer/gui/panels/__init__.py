@@ -10,7 +10,8 @@ for a file name on save-as. Every number shown carries its unit.
 Modules: ``widgets`` (layout, colours, the shared widgets, among them the typed field
 that parses, commits and shows its refusal), ``menu``, ``bodies`` (Bodies and Marks),
 ``orbit`` (the element editor's tabs), ``mission_tabs`` (quick answers, transfers),
-``numbers`` (the readout), ``time_panel``, ``plots_window``, ``dialogs``. Keyboard
+``numbers`` (the readout), ``time_panel``, ``plots_window``, ``season`` (the launch
+season's pork-chop plot), ``dialogs``. Keyboard
 shortcuts, menu entries and the help overlay come from one table, ``viewer.gui.actions``.
 
 ``Panels.report`` collects, per frame, the screen rectangles of the named inputs and the
@@ -26,8 +27,9 @@ from typing import Any
 from ..actions import shortcut_rows
 from ..editor import Editor
 from ..mission import QuickInputs
+from ..porkchop import SeasonState
 from ..session import Session
-from . import bodies, dialogs, menu, numbers, orbit, plots_window, time_panel
+from . import bodies, dialogs, menu, numbers, orbit, plots_window, season, time_panel
 from .widgets import GAP, LEFT_W, MENU_H, RIGHT_W, TIME_H, Widgets, scene_area
 
 __all__ = ["Panels", "Session", "scene_area", "shortcut_list"]
@@ -46,13 +48,14 @@ class Panels(Widgets):
     transfer_to: int | None = None
     transfer_kind: str = "hohmann"
     transfer_via: str = ""
+    season: SeasonState = field(default_factory=SeasonState)
     report: dict[str, Any] = field(default_factory=dict)
     _editor: Any = None
 
     def _reset_for(self, editor: Editor) -> None:
         """Another scene was opened: drop what was typed for the old one."""
         fresh = Panels()
-        for name in ("buffers", "errors", "quick"):
+        for name in ("buffers", "errors", "quick", "season"):
             setattr(self, name, getattr(fresh, name))
         self.transfer_from = self.transfer_to = None
         self.transfer_via = ""
@@ -72,7 +75,9 @@ class Panels(Widgets):
                            camera_width_m=s.camera.width_m, ui_scale=s.ui_scale)
         if not s.presenting:  # presentation: no panel at all, only dialogs when asked
             self._home_panels(s, w, h)
-        if s.show_plots:
+        if s.show_season:
+            season.draw(self, s, w, h)
+        elif s.show_plots:
             plots_window.draw(self, s, w, h)
         if s.job is not None:
             dialogs.job_progress(self, s, w, h)
@@ -94,7 +99,7 @@ class Panels(Widgets):
         split = top + min(250.0 * k, 0.33 * h)
         bodies.draw_bodies(self, s, (gap, top), (left, split - top))
         bodies.draw_marks(self, s, (gap, split + gap), (left, h - split - time_h - 3 * gap))
-        if not s.show_plots:  # the plots take the right-hand column while they are open
+        if not (s.show_plots or s.show_season):  # the plots take the right-hand column
             split = top + min(480.0 * k, 0.56 * h)
             orbit.draw(self, s, (w - right - gap, top), (right, split - top))
             numbers.draw(self, s, (w - right - gap, split + gap),
