@@ -373,11 +373,27 @@ class Editor:
         if text.strip() == self.field_text(field, k):
             return False
         body = self.scene.bodies[k]
+        if body.track is not None:
+            raise EditRefused(field, f"{body.name} follows the ephemeris "
+                              f"{body.track.source}, which sets its orbit; to edit the "
+                              f"elements, first make it a fixed conic (Orbit panel)")
         c = self.scene.center
         el = edit_elements(body.elements, field, text, self.hold, c.radius_m,
                            self.field_unit(field, k) or None)
         self._replace_body(k, _with_elements(body, el, c), f"{field} of {body.name}")
         return True
+
+    def fix_conic(self, t_s: float, index: int | None = None) -> None:
+        """Make a body that follows an ephemeris a fixed two-body conic: its osculating
+        elements at scene time ``t_s``, with their epoch there. One edit (undo brings the
+        ephemeris back); the file then holds its elements in place of the ephemeris key."""
+        k = self._index(index)
+        body = self.scene.bodies[k]
+        if body.track is None:
+            raise EditRefused("ephemeris", f"{body.name} is already a fixed conic")
+        fixed = replace(body.osculating(t_s), track=None)
+        self._replace_body(k, _with_elements(fixed, fixed.elements, self.scene.center),
+                           f"{body.name} as a fixed conic")
 
     # --- style and drawing --------------------------------------------------------------
 

@@ -50,6 +50,12 @@ def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, An
         return []
     out: list[Edit] = []
     d = body_table(scene, new)
+    if (new.track is None) != (old.track is None):  # to or from an ephemeris: its keys
+        keys = set(d) | set(raw)
+        return [(f"{path}.{k}", d.get(k)) for k in sorted(keys, key=_key_order(d, raw))
+                if d.get(k) != raw.get(k) and k not in ("show", "sweep", "flight")] + [
+                    (f"{path}.{k}", d.get(k)) for k in ("show", "sweep", "flight")
+                    if d.get(k) != raw.get(k)]
     lu = scene.length_unit
     el, el0 = new.elements, old.elements
     if new.name != old.name:
@@ -109,6 +115,12 @@ def _body_edits(path: str, scene: Scene, new: Body, old: Body, raw: dict[str, An
                                                      or float(el.e) < 1.0):
         out.append((f"{path}.limit_radius", d.get("limit_radius")))
     return out
+
+
+def _key_order(d: dict[str, Any], raw: dict[str, Any]) -> Any:
+    """Keys in the writer's order, then any the file had that it does not write."""
+    order = {k: i for i, k in enumerate([*d, *raw])}
+    return lambda k: order[k]
 
 
 def _center_edits(scene: Scene, saved: Scene, raw: dict[str, Any]) -> list[Edit]:

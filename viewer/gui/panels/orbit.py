@@ -47,6 +47,9 @@ def _elements(p: Panels, s: Session) -> None:
         imgui.text_colored(DIM, "Select or add a body to edit its orbit.")
         return
     b = ed.scene.bodies[k]
+    if b.track is not None:
+        _follows_ephemeris(p, s, k)
+        return
     imgui.text(f"{b.name}: type a value with its unit, then Enter.")
     imgui.align_text_to_frame_padding()
     imgui.text("Keep fixed:")
@@ -63,6 +66,24 @@ def _elements(p: Panels, s: Session) -> None:
     _rows(p, s, k, ELEMENT_ROWS)
     imgui.separator_text("The same size as radius, altitude, period")
     _forms(p, s, k)
+
+
+def _follows_ephemeris(p: Panels, s: Session, k: int) -> None:
+    """A body that follows an ephemeris has no elements of its own to edit: say so, show
+    its osculating conic now, and offer to make it a fixed conic."""
+    ed = s.editor
+    b = ed.scene.bodies[k]
+    assert b.track is not None
+    imgui.push_text_wrap_pos(0.0)
+    imgui.text(f"{b.name} follows the ephemeris {b.track.source}: its orbit comes from "
+               "it, drawn as the osculating conic at the time shown.")
+    imgui.text_colored(DIM, "To edit its elements, make it a two-body conic: its "
+                       "osculating elements now, from then on without the ephemeris "
+                       "(Ctrl+Z undoes).")
+    imgui.pop_text_wrap_pos()
+    if p.button("Make it a fixed conic at this time"):
+        ed.fix_conic(s.clock.t_s, k)
+        s.message = f"{b.name} is now a fixed conic (its osculating elements at this time)"
 
 
 def _rows(p: Panels, s: Session, k: int, rows: tuple[tuple[str, str], ...]) -> None:
