@@ -13,7 +13,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from viewer.gui.editor import EditRefused, Editor
+from viewer.gui.editor import Editor, EditRefused
 from viewer.mission.porkchop import body_states
 from viewer.scene import load_scene
 
