@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 
 from viewer.gui.clock import Clock, next_apsis_s
-from viewer.gui.plots import orbit_profile, third_law
+from viewer.gui.plots import orbit_profile, square_cube, third_law
 from viewer.orbit import AU_M, DAY_S, Elements
 from viewer.scene.model import Body, Center, Scene
 from viewer.units import parse_epoch
@@ -106,3 +106,32 @@ def test_neighbouring_names_on_the_third_law_plot_alternate_above_and_below() ->
     dy = label_offsets(a, span)
     assert dy[0] < 0 and dy[1] > 0 and dy[2] < 0  # three crowded names: up, down, up
     assert dy[3] < 0 and dy[4] < 0  # names far apart all sit above their points
+
+
+def test_square_cube_is_a_line_through_the_origin_with_the_gaussian_slope() -> None:
+    # The Gaussian gravitational constant k = 0.01720209895 rad/d (IAU 1976, from
+    # memory) gives GM_sun = k^2 au^3/d^2, so 4 pi^2 / GM = (2 pi / k)^2 d^2/au^3: in
+    # Julian years (365.25 d) 1.0000378. Our GM_SUN (IERS 2010) agrees to 1e-8.
+    k = 0.01720209895
+    gaussian = (2 * math.pi / k / 365.25) ** 2
+    sc = sun_scene(body("Earthlike", 1.0, 0.0167), body("Far", 30.0, 0.01),
+                   body("Open", 2.0, 1.3))
+    sq = square_cube(sc)
+    assert (sq.length_unit, sq.time_unit) == ("au", "yr")
+    assert sq.slope == pytest.approx(gaussian, rel=1e-7)
+    assert sq.names == ("Earthlike", "Far")  # closed orbits only
+    # Each body on the line: T^2 = slope * a^3 (the third law, exactly for two bodies).
+    assert sq.t2 == pytest.approx(sq.slope * sq.a3, rel=1e-12)
+    assert sq.a3[0] == pytest.approx(1.0) and sq.a3[1] == pytest.approx(27000.0)
+
+
+def test_square_cube_counts_small_orbits_in_km_and_hours() -> None:
+    gm_earth = 3.986004418e14  # IERS Conventions (2010), m^3/s^2
+    leo = Body(name="LEO", elements=Elements(a=6778e3, e=0.001, mu=gm_earth))
+    sc = Scene(title="t", epoch=parse_epoch("2030-01-01T00:00:00 TDB"), frame="ECLIPJ2000",
+               center=Center(name="Earth", gm_m3_s2=gm_earth, radius_m=6.378e6),
+               bodies=(leo,))
+    sq = square_cube(sc)
+    assert (sq.length_unit, sq.time_unit) == ("1000 km", "h")
+    # A 6778 km orbit takes about 92.6 min (common practice, no source): T^2 in h^2.
+    assert math.sqrt(sq.t2[0]) * 60 == pytest.approx(92.56, abs=0.05)

@@ -49,6 +49,8 @@ class Panels(Widgets):
     transfer_kind: str = "hohmann"
     transfer_via: str = ""
     season: SeasonState = field(default_factory=SeasonState)
+    #: The third-law plot shown: "log" (log T against log a) or "square" (T^2 vs a^3).
+    law_view: str = "log"
     report: dict[str, Any] = field(default_factory=dict)
     _editor: Any = None
 

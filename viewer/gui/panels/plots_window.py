@@ -2,13 +2,14 @@
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 from imgui_bundle import imgui
 
 from ...orbit import AU_M, DAY_S
-from ..plots import orbit_profile, third_law
+from ...units.format import format_sig
+from ..plots import orbit_profile, square_cube, third_law
 from ..session import Session
 from .widgets import (
     DIM,
@@ -67,8 +68,11 @@ def draw(p: Panels, s: Session, w: float, h: float) -> None:
             implot.plot_inf_lines("now", np.array([0.0]))
             implot.end_plot()
         law = third_law(ed.scene)
-        if len(law.a_m) and implot.begin_plot("Third law: T^2 grows as a^3##law",
-                                              imgui.ImVec2(-1, -1)):
+        p.law_view = _law_tabs(p.law_view)
+        if p.law_view == "square" and len(law.a_m):
+            _square_cube(implot, ed.scene)
+        elif len(law.a_m) and implot.begin_plot("Third law: T^2 grows as a^3##law",
+                                                imgui.ImVec2(-1, -1)):
             implot.setup_axes("semi-major axis a (au)", "period T (d)")
             # Legends below the plot area, never over the curves.
             implot.setup_legend(implot.Location_.south,
@@ -91,6 +95,43 @@ def draw(p: Panels, s: Session, w: float, h: float) -> None:
     imgui.end()
     if keep is False:
         s.show_plots = False
+
+
+def _law_tabs(view: str) -> str:
+    """The two views of the third law: log T against log a, and T^2 against a^3."""
+    for key, label in (("log", "log T vs log a"), ("square", "T^2 vs a^3")):
+        if imgui.radio_button(f"{label}##law-view", view == key):
+            view = key
+        imgui.same_line()
+    imgui.new_line()
+    return view
+
+
+def _square_cube(implot: Any, scene: Any) -> None:
+    """T^2 against a^3: a straight line through the origin of slope 4 pi^2 / GM."""
+    sq = square_cube(scene)
+    L, T = sq.length_unit, sq.time_unit
+    imgui.text(f"slope 4 pi^2 / GM = {format_sig(sq.slope, 6)} {T}^2 / {L}^3")
+    if not implot.begin_plot("Third law: T^2 = (4 pi^2 / GM) a^3##square",
+                             imgui.ImVec2(-1, -1)):
+        return
+    implot.setup_axes(f"a^3 ({L}^3)", f"T^2 ({T}^2)")
+    implot.setup_legend(implot.Location_.south,
+                        implot.LegendFlags_.outside | implot.LegendFlags_.horizontal)
+    x_hi = 1.1 * float(sq.a3.max())
+    y_hi = 1.1 * max(float(sq.t2.max()), sq.slope * x_hi)
+    implot.setup_axes_limits(0.0, x_hi, 0.0, y_hi, implot.Cond_.always)
+    implot.plot_line("T^2 = (4 pi^2 / GM) a^3", np.array([0.0, x_hi]),
+                     np.array([0.0, sq.slope * x_hi]))
+    implot.plot_scatter("bodies", sq.a3, sq.t2)
+    # Inner orbits crowd the origin here (the log view tells them apart): only points
+    # a twentieth of the axis from the origin and from each other get their names.
+    last = -np.inf
+    for name, x, y in sorted(zip(sq.names, sq.a3, sq.t2, strict=True), key=lambda r: r[1]):
+        if x > 0.05 * x_hi and x - last > 0.05 * x_hi:
+            implot.plot_text(name, float(x), float(y), imgui.ImVec2(0, -12))
+            last = x
+    implot.end_plot()
 
 
 def label_offsets(a_m: np.ndarray, span_m: np.ndarray, px: float = 12.0) -> list[float]:
