@@ -70,12 +70,16 @@ def _overlaps(cand: NDArray[np.float64], boxes: NDArray[np.float64]) -> NDArray[
     return np.where((w > 0) & (h > 0), w * h, 0.0)
 
 
-def _outside_area(cand: NDArray[np.float64], size: tuple[int, int]) -> NDArray[np.float64]:
-    """Area of each box that falls outside the image."""
-    w, h = size
-    iw = np.clip(np.minimum(cand[:, 2], w) - np.maximum(cand[:, 0], 0), 0, None)
-    ih = np.clip(np.minimum(cand[:, 3], h) - np.maximum(cand[:, 1], 0), 0, None)
-    return (cand[:, 2] - cand[:, 0]) * (cand[:, 3] - cand[:, 1]) - iw * ih
+def outside_of(box: Box) -> Callable[[NDArray[np.float64]], NDArray[np.float64]]:
+    """The ``outside`` of ``place_labels`` for a rectangle (x0, y0, x1, y1) px: the area
+    of each candidate box (C, 4) that falls outside it."""
+    x0, y0, x1, y1 = box
+
+    def outside(cand: NDArray[np.float64]) -> NDArray[np.float64]:
+        iw = np.clip(np.minimum(cand[:, 2], x1) - np.maximum(cand[:, 0], x0), 0, None)
+        ih = np.clip(np.minimum(cand[:, 3], y1) - np.maximum(cand[:, 1], y0), 0, None)
+        return (cand[:, 2] - cand[:, 0]) * (cand[:, 3] - cand[:, 1]) - iw * ih
+    return outside
 
 
 def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tuple[int, int],
@@ -89,8 +93,7 @@ def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tu
     the image rectangle; a dome master passes the area off its circle).
     """
     if outside is None:
-        def outside(cand: NDArray[np.float64]) -> NDArray[np.float64]:
-            return _outside_area(cand, size_px)
+        outside = outside_of((0.0, 0.0, float(size_px[0]), float(size_px[1])))
     placed: list[PlacedLabel] = []
     boxes: list[Box] = []
     order = sorted(range(len(requests)), key=lambda k: requests[k].priority)

@@ -20,7 +20,7 @@ from typing import Any
 import numpy as np
 
 from .actions import action_for
-from .camera_input import focus, orbit, pan, zoom
+from .camera_input import focus, on_screen, orbit, pan, zoom
 from .clock import Clock
 from .editor import Editor
 from .overlays import scene_with_overlays
@@ -247,7 +247,8 @@ class ViewerWindow:
         except KeyError:  # the followed body was renamed or removed
             s.camera = focus(s.camera, "center")
             view = view_for(self.editor.scene, s.clock.t_s, size, s.camera)
-        return replace(view, origin_m=view.origin_m + self._shift_m(view))
+        view = replace(view, origin_m=view.origin_m + self._shift_m(view))
+        return on_screen(view, s.ui_scale, self._scene_area())
 
     def _unshift(self, camera: Any) -> Any:
         """A camera made from the shifted view (its target the point at the window's

@@ -46,7 +46,7 @@ from .text import TEXT_FLOATS, FontCache, GlyphAtlas
 UInt8s = NDArray[np.uint8]
 
 #: Dark halo behind label glyphs (premultiplied in the shader).
-HALO_RGBA = (0.0, 0.0, 0.0, 0.8)
+HALO_RGBA = (0.0, 0.0, 0.0, 0.92)
 
 
 class _Stream:
