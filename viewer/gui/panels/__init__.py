@@ -46,6 +46,11 @@ class Panels(Widgets):
     transfer_to: int | None = None
     transfer_kind: str = "hohmann"
     transfer_via: str = ""
+    #: What the transfer goes to: "body", or a typed "radius" or "altitude".
+    transfer_target: str = "body"
+    transfer_radius: str = ""
+    #: The via radius the plans use: the one typed, else ``default_via``'s.
+    via_shown: str = ""
     report: dict[str, Any] = field(default_factory=dict)
     _editor: Any = None
 
@@ -55,7 +60,7 @@ class Panels(Widgets):
         for name in ("buffers", "errors", "quick"):
             setattr(self, name, getattr(fresh, name))
         self.transfer_from = self.transfer_to = None
-        self.transfer_via = ""
+        self.transfer_via = self.transfer_radius = ""
         self._editor = editor
 
 

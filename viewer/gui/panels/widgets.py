@@ -161,10 +161,12 @@ class Widgets:
         imgui.text_colored(RED, "refused: " + text)
         imgui.pop_text_wrap_pos()
 
-    def live_input(self, name: str, value: str, width: float) -> str:
-        """A live text input (the answers follow each keystroke); its rect is reported."""
+    def live_input(self, name: str, value: str, width: float, hint: str = "") -> str:
+        """A live text input (the answers follow each keystroke), showing ``hint`` while
+        empty; its rect is reported."""
         imgui.set_next_item_width(width)
-        _, value = imgui.input_text(f"##{name}", value, imgui.InputTextFlags_.auto_select_all)
+        _, value = imgui.input_text_with_hint(f"##{name}", hint, value,
+                                              imgui.InputTextFlags_.auto_select_all)
         self.report["rects"][name] = _rect()
         return value
 
