@@ -59,6 +59,12 @@ def _elements(p: Panels, s: Session) -> None:
         if imgui.radio_button(f"{label}##lock", ed.hold == hold):
             ed.hold = hold
         p.report["rects"][f"lock:{hold}"] = _rect()
+    # What the lock keeps: the last edit's in words, else the natural partners.
+    kept = ed.kept or ("natural partner: a with e, periapsis with apoapsis"
+                       if ed.hold == "auto" else "")
+    p.report["kept"] = kept
+    if kept:
+        imgui.text_colored(DIM, kept)
     imgui.separator_text("Elements")
     _rows(p, s, k, ELEMENT_ROWS)
     imgui.separator_text("The same size as radius, altitude, period")
