@@ -39,7 +39,9 @@ class Display:
             self.proc.kill()
             pytest.skip("Xvfb did not start")
         self.name = f":{number}"
-        self.env = {**os.environ, "DISPLAY": self.name}
+        # The viewer's per-user settings (UI scale, recent files) go to the test's folder.
+        self.env = {**os.environ, "DISPLAY": self.name,
+                    "XDG_CONFIG_HOME": str(tmp / "config")}
 
     def screen(self) -> np.ndarray:
         # XWD file: a big-endian header (its size first), a colormap of ncolors entries

@@ -51,7 +51,8 @@ class ViewerWindow:
     def __init__(self, editor: Editor, size: tuple[int, int] = (1600, 900),
                  visible: bool = True, ui_report: str | Path | None = None,
                  ui_scale: float = 1.0, screen: int | None = None, fullscreen: bool = False,
-                 presenting: bool = False, view: str = "flat") -> None:
+                 presenting: bool = False, view: str = "flat",
+                 settings_file: Path | None = None) -> None:
         import moderngl
         import pyglet
         from imgui_bundle import imgui, implot
@@ -95,7 +96,14 @@ class ViewerWindow:
         self.session = Session(editor=editor, clock=Clock.for_scene(editor.scene),
                                camera=editor.scene.camera, message=self.render_error,
                                renderer=self.renderer, ui_scale=ui_scale,
-                               fullscreen=fullscreen, presenting=presenting)
+                               fullscreen=fullscreen, presenting=presenting,
+                               settings_file=settings_file)
+        if settings_file is not None:  # the recent files: this scene first
+            from .settings import load_recent
+
+            self.session.recent = load_recent(settings_file)
+            if editor.path is not None:
+                self.session.remember(editor.path)
         screens = pyglet.display.get_display().get_screens()
         if screen is not None and not 0 <= screen < len(screens):
             raise ValueError(f"screen {screen} does not exist (this display has "
