@@ -79,10 +79,9 @@ def _presentation(scene_path: Path) -> None:
     import os
     import subprocess
     import sys
+    import tempfile
 
     from viewer.gui.bench import _start_xvfb
-
-    import tempfile
 
     proc, display = _start_xvfb()
     target = OUT / "presentation.png"
