@@ -19,6 +19,7 @@ from scipy import ndimage
 from viewer.geometry.camera import view_for
 from viewer.geometry.labels import PlacedLabel
 from viewer.gui.camera_input import on_screen
+from viewer.orbit import state_from_elements
 from viewer.render.text import load_font
 from viewer.scene import load_scene
 from viewer.scene.model import Scene
@@ -55,6 +56,29 @@ def _label_over(renderer, rgb: tuple[float, float, float], size_px: float) -> np
     renderer.draw_labels([PlacedLabel(TEXT, 20.0, 60.0, size_px, (1.0, 1.0, 1.0, 1.0))],
                          fbo, (W, H))
     return renderer.read(fbo, (W, H))[..., :3].astype(np.float64) / 255.0
+
+
+def test_a_glyphs_halo_does_not_darken_its_neighbours_ink(renderer) -> None:  # type: ignore[no-untyped-def]
+    # Over a black sky the halo is invisible, so a word is at least as bright everywhere
+    # as each of its letters drawn alone at the same pen position: no letter's halo eats
+    # into its neighbour's ink.
+    text, size = "Wavy Tarn", 16.0
+    pens = renderer.fonts.atlas(size, text).pen_positions(text)
+
+    def shot(labels: list[PlacedLabel]) -> np.ndarray:
+        fbo = renderer.target((W, H))
+        fbo.use()
+        renderer.ctx.viewport = (0, 0, W, H)
+        renderer.ctx.clear(0.0, 0.0, 0.0, 1.0)
+        renderer.draw_labels(labels, fbo, (W, H))
+        return renderer.read(fbo, (W, H))[..., :3].astype(int)
+
+    white = (1.0, 1.0, 1.0, 1.0)
+    word = shot([PlacedLabel(text, 20.0, 60.0, size, white)])
+    letters = np.max([shot([PlacedLabel(ch, 20.0 + round(pen), 60.0, size, white)])
+                      for ch, pen in zip(text, pens, strict=False) if ch != " "], axis=0)
+    assert word.max() > 200
+    assert (word - letters).min() >= -2
 
 
 def _smallest_label_px(renderer, scene: Scene, view) -> float:  # type: ignore[no-untyped-def]
@@ -110,12 +134,24 @@ def test_labels_and_markers_follow_the_ui_scale_and_the_export_keeps_its_own(
     assert export["Pell"] == pytest.approx(label_one["Pell"] * 720 / 1080)
 
 
-def test_labels_stay_inside_the_area_the_panels_leave_free(renderer, demo: Scene) -> None:  # type: ignore[no-untyped-def]
-    size = (1600, 900)
-    free = (380, 26, 820, 730)  # x, y from the top, width, height (the panels' layout)
-    view = on_screen(view_for(demo, 0.0, size), 1.0, free)
+@pytest.mark.parametrize(("size", "scale"), [((1600, 900), 1.0), ((1920, 1080), 1.5)])
+def test_labels_stay_whole_inside_the_area_the_panels_leave_free(
+        renderer, demo: Scene, size: tuple[int, int], scale: float) -> None:  # type: ignore[no-untyped-def]
+    from viewer.gui.panels.widgets import scene_area
+
+    free = scene_area(size, scale)  # x, y from the top, width, height: the panels' layout
+    view = on_screen(view_for(demo, 0.0, size), scale, free)
     labels = renderer.geometry(demo, 0.0, view).labels
-    assert labels
+    names = {lab.text for lab in labels}
+    # Every body seen in the free area keeps its whole name there: one near a panel's
+    # edge has its label slid in, not cut short under the panel.
+    x0, y0, w, h = free
+    seen = {"Halcyra"}
+    for body in demo.bodies:
+        q, _ = view.project(np.asarray(state_from_elements(body.elements_at(0.0))[0]))
+        if x0 + 8 < q[0] < x0 + w - 8 and y0 + 8 < q[1] < y0 + h - 8:
+            seen.add(body.name)
+    assert len(seen) >= 4 and seen <= names, (seen, names)
     for lab in labels:
         width, ascent, descent = renderer.measure(lab.text, lab.size_px)
         assert free[0] <= lab.x_px and lab.x_px + width <= free[0] + free[2], lab

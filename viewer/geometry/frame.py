@@ -38,7 +38,7 @@ from .conic import (
     whole_orbit_range,
 )
 from .fills import FILL_FLOATS, fan_triangles, fill_vertices
-from .labels import LabelRequest, Measure, PlacedLabel, outside_of, place_labels
+from .labels import LabelRequest, Measure, PlacedLabel, place_labels
 from .stars import Starfield, make_starfield, star_points
 from .strokes import (
     STROKE_FLOATS,
@@ -340,8 +340,8 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
         x0, y0 = labels[-1].at_px  # type: ignore[misc]
         tw, asc, desc = measure(text.text, text.size_px * hs)
         obstacles.append((x0, y0 - asc, x0 + tw, y0 + desc))
-    inside = None if view.label_box_px is None else outside_of(view.label_box_px)
-    placed = place_labels(labels, measure, (w, h), obstacles, inside) if place else []
+    placed = place_labels(labels, measure, (w, h), obstacles,
+                          keep_in=view.label_box_px) if place else []
     sv = static.vector
     vector = VectorParts(sv.grid, PolylineBatch(sv.lines.points + lines.points,
                                                 sv.lines.closed + lines.closed,

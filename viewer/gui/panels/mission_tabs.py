@@ -28,6 +28,8 @@ from .widgets import (
     DIM,
     RED,
     _rect,
+    label_w,
+    px,
 )
 
 if TYPE_CHECKING:
@@ -53,11 +55,11 @@ def quick_answers(p: Panels, s: Session) -> None:
     imgui.align_text_to_frame_padding()
     imgui.text("from")
     imgui.same_line()
-    q.nu_from = p.live_input("quick:nu_from", q.nu_from, 110)
+    q.nu_from = p.live_input("quick:nu_from", q.nu_from, px(110))
     imgui.same_line()
     imgui.text("to")
     imgui.same_line()
-    q.nu_to = p.live_input("quick:nu_to", q.nu_to, 110)
+    q.nu_to = p.live_input("quick:nu_to", q.nu_to, px(110))
     if "flight" in problems:
         p.refusal(problems["flight"])
     p.table("q-flight", rows.get("flight", ()))
@@ -121,7 +123,8 @@ def transfer(p: Panels, s: Session) -> None:
         return
     p.transfer_from, p.transfer_to = transfer_pair(scene, p.transfer_from, p.transfer_to)
     if imgui.begin_table("tr-bodies", 2, imgui.TableFlags_.sizing_stretch_prop):
-        imgui.table_setup_column("w", imgui.TableColumnFlags_.width_fixed, 60)
+        imgui.table_setup_column("w", imgui.TableColumnFlags_.width_fixed,
+                                 label_w(60, ("from", "to", "via")))
         imgui.table_setup_column("v", imgui.TableColumnFlags_.width_stretch)
         imgui.table_next_row()
         imgui.table_next_column()
@@ -174,7 +177,8 @@ def transfer(p: Panels, s: Session) -> None:
     imgui.separator_text("Side by side (bi-elliptic through the via radius)")
     if imgui.begin_table("tr-side", 3, imgui.TableFlags_.row_bg
                          | imgui.TableFlags_.sizing_stretch_prop):
-        imgui.table_setup_column("", imgui.TableColumnFlags_.width_fixed, 130)
+        imgui.table_setup_column("", imgui.TableColumnFlags_.width_fixed,
+                                 label_w(130, (row[0] for row in side)))
         imgui.table_setup_column("Hohmann")
         imgui.table_setup_column("bi-elliptic")
         imgui.table_headers_row()

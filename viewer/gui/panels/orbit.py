@@ -16,6 +16,7 @@ from .widgets import (
     LOCKS_PER_LINE,
     ORBIT_TABS,
     _rect,
+    label_w,
 )
 
 if TYPE_CHECKING:
@@ -74,7 +75,8 @@ def _elements(p: Panels, s: Session) -> None:
 def _rows(p: Panels, s: Session, k: int, rows: tuple[tuple[str, str], ...]) -> None:
     if not imgui.begin_table(f"rows{rows[0][0]}", 2, imgui.TableFlags_.sizing_stretch_prop):
         return
-    imgui.table_setup_column("what", imgui.TableColumnFlags_.width_fixed, 225)
+    imgui.table_setup_column("what", imgui.TableColumnFlags_.width_fixed,
+                             label_w(225, (label for _, label in rows)))
     imgui.table_setup_column("value", imgui.TableColumnFlags_.width_stretch)
     for name, label in rows:
         imgui.table_next_row()
@@ -89,7 +91,8 @@ def _rows(p: Panels, s: Session, k: int, rows: tuple[tuple[str, str], ...]) -> N
 def _forms(p: Panels, s: Session, k: int) -> None:
     if not imgui.begin_table("forms", 3, imgui.TableFlags_.sizing_stretch_same):
         return
-    imgui.table_setup_column("what", imgui.TableColumnFlags_.width_fixed, 90)
+    imgui.table_setup_column("what", imgui.TableColumnFlags_.width_fixed,
+                             label_w(90, [label for label, _, _ in FORM_ROWS] + ["period"]))
     imgui.table_setup_column("radius", imgui.TableColumnFlags_.width_stretch)
     imgui.table_setup_column("altitude", imgui.TableColumnFlags_.width_stretch)
     imgui.table_next_row()
