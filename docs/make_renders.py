@@ -79,18 +79,22 @@ def _presentation(scene_path: Path) -> None:
     import os
     import subprocess
     import sys
+    import tempfile
 
     from viewer.gui.bench import _start_xvfb
 
     proc, display = _start_xvfb()
     target = OUT / "presentation.png"
+    config = tempfile.TemporaryDirectory()  # the user's settings stay as they are
     try:
         subprocess.run([sys.executable, "-m", "viewer.cli", "open", str(scene_path), "--present",
                         "--size", "1600x900", "--screenshot", str(target), "--force",
-                        "--quit-after", "4"], env={**os.environ, "DISPLAY": display},
+                        "--quit-after", "4"], env={**os.environ, "DISPLAY": display,
+                                                   "XDG_CONFIG_HOME": config.name},
                        check=True, timeout=120)
     finally:
         proc.terminate()
+        config.cleanup()
     with contextlib.suppress(OSError):  # the output rule kept the previous one
         target.with_name(target.name + ".bak").unlink()
     print(f"wrote {target.relative_to(OUT.parent.parent)}")

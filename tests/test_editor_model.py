@@ -161,6 +161,27 @@ def test_holding_the_changed_quantity_holds_its_partner_instead() -> None:
     assert float(ed.body.elements.periapsis) == pytest.approx(8000 * KM, rel=1e-14)
 
 
+def test_the_natural_partner_lock_says_what_it_kept() -> None:
+    # The natural partners (a with e, periapsis with apoapsis): each edit says which one
+    # stayed, and the numbers show it did.
+    ed = Editor(make_scene(("Sat", Elements(a=10_000 * KM, e=0.2))))
+    assert ed.hold == "auto" and ed.kept == ""
+    ed.set_field("a", "12000 km")
+    assert ed.kept == "semi-major axis changed; kept e (the natural partner)"
+    assert float(ed.body.elements.e) == pytest.approx(0.2, rel=1e-15)
+    ed.set_field("periapsis", "9000 km")
+    assert ed.kept == "periapsis radius changed; kept the apoapsis (the natural partner)"
+    assert float(ed.body.elements.apoapsis) == pytest.approx(12_000 * KM * 1.2, rel=1e-14)
+    ed.set_field("period", "3 h")
+    assert ed.kept == "orbital period changed; kept e (the natural partner)"
+    # A lock chosen by hand is named without the "natural partner".
+    ed.hold = "periapsis"
+    ed.set_field("e", "0.3")
+    assert ed.kept == "eccentricity changed; kept the periapsis"
+    ed.set_field("i", "10 deg")  # an angle changes no shape quantity
+    assert ed.kept == ""
+
+
 def test_period_input_sets_a_by_the_third_law_for_a_geostationary_orbit() -> None:
     # One sidereal day, 86 164.0905 s, gives the geostationary radius 42 164.17 km
     # (common practice, no source; with the IERS GM).

@@ -4,7 +4,9 @@ window give the same ones.
 References: times of flight by direct quadrature of dt = r^2 / h dnu (scipy ``quad``,
 an independent route from Kepler's equation); the circle's period 2 pi sqrt(a^3/mu)
 (Kepler's third law); the turning angle 2 asin(1/e) (Curtis, *Orbital Mechanics for
-Engineering Students*, eq. 8.56, from memory).
+Engineering Students*, eq. 8.56, from memory); the Hohmann transfer LEO to GEO of
+Vallado, *Fundamentals of Astrodynamics and Applications*, 4th ed., Example 6-1, and the
+bi-elliptic transfer of Example 6-2 (both from memory); escape speed sqrt(2 mu / r).
 """
 
 from __future__ import annotations
@@ -14,16 +16,19 @@ import math
 from pathlib import Path
 
 import pytest
-from reference_values import DEG, KM
+from reference_values import DEG, HOUR, KM, KM_S, MU_EARTH
 from scipy.integrate import quad
 
 from viewer.cli import main
 from viewer.gui.editor import EditRefused
 from viewer.gui.mission import (
     QuickInputs,
+    plan_to_radius,
     plan_transfer,
     quick_answer_rows,
     radius_crossing_rows,
+    side_by_side_rows,
+    transfer_pair,
     transfer_rows,
 )
 from viewer.mission import quick
@@ -200,3 +205,143 @@ def test_the_window_and_the_command_plan_the_same_transfer(
         format_direction(out["phase_angle_needed_rad"]))
     assert [b[1] for b in burns] == [format_speed(b["dv_m_s"], 5, signed=True)
                                      for b in out["burns"]]
+
+
+# --- a transfer to a typed radius or altitude ----------------------------------------------
+
+#: Vallado's Example 6-1 and 6-2 departure circle: 191.344 11 km above Earth (from memory).
+VALLADO_LEO = f"""[scene]
+format = 1
+title = "Vallado's examples 6-1 and 6-2"
+epoch = "2031-03-14T06:00:00 UTC"
+units = {{ length = "km", time = "min", angle = "deg" }}
+
+[center]
+preset = "earth"
+
+[[body]]
+name = "Parking"
+a = "{6378.137 + 191.34411} km"
+e = 0
+
+[[body]]
+name = "Higher"
+a = "20000 km"
+e = 0
+nu = "30 deg"
+"""
+
+
+@pytest.fixture
+def leo(tmp_path: Path) -> Path:
+    path = tmp_path / "leo.toml"
+    path.write_text(VALLADO_LEO, encoding="utf-8")
+    return path
+
+
+def test_a_hohmann_transfer_to_a_typed_altitude_is_vallados_leo_to_geo_in_both_front_ends(
+        leo: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # Vallado (4th ed.), Example 6-1, from memory: from 191.344 11 km to 35 781.348 57 km
+    # altitude, dv_a = 2.457 km/s, dv_b = 1.478 km/s, total 3.935 km/s, 5.256 h.
+    out = run_json(["transfer", str(leo), "--from", "Parking", "--to-altitude",
+                    "35781.34857 km", "--json"], capsys)
+    assert out["dv_total_m_s"] == pytest.approx(3.935 * KM_S, abs=0.5)
+    assert out["time_of_flight_s"] == pytest.approx(5.256 * HOUR, abs=0.001 * HOUR)
+    assert [b["dv_m_s"] for b in out["burns"]] == pytest.approx([2.457 * KM_S, 1.478 * KM_S],
+                                                               abs=0.5)
+    assert out["phase_angle_now_rad"] is None and out["next_window_s"] is None  # no target
+    scene = load_scene(leo)
+    plan = plan_to_radius(scene, 0, "35781.34857 km", altitude=True)
+    burns, sections = transfer_rows(plan, scene)
+    assert float(plan.transfer.dv_total_m_s) == out["dv_total_m_s"]
+    assert [b[1] for b in burns] == [format_speed(b["dv_m_s"], 5, signed=True)
+                                     for b in out["burns"]]
+    assert dict(sections["totals"])["total dv"] == f"{out['dv_total_m_s'] / KM:.4f} km/s"
+    # The same circle typed as a radius from the centre gives the same plan.
+    by_radius = plan_to_radius(scene, 0, f"{6378.137 + 35781.34857} km")
+    assert float(by_radius.transfer.dv_total_m_s) == pytest.approx(out["dv_total_m_s"],
+                                                                   rel=1e-12)
+    text = main(["transfer", str(leo), "--from", "Parking", "--to-radius",
+                 f"{6378.137 + 35781.34857} km"])
+    assert text == 0 and "3.9352" in capsys.readouterr().out
+
+
+def test_hohmann_and_bi_elliptic_side_by_side_are_vallados_examples(
+        leo: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # Vallado (4th ed.), Example 6-2, from memory: from 191.344 11 km altitude through
+    # 503 873 km altitude to 376 310 km altitude: total 3.904 km/s, 593.92 h. The
+    # Hohmann transfer between the same circles needs more: their radius ratio, about 58,
+    # is above 15.58, beyond which bi-elliptic always wins (common practice, no source).
+    scene = load_scene(leo)
+    via = f"{6378.137 + 503_873} km"
+    hohmann = plan_to_radius(scene, 0, "376310 km", True)
+    bi = plan_to_radius(scene, 0, "376310 km", True, "bi-elliptic", via)
+    rows = {r[0]: r[1:] for r in side_by_side_rows(hohmann, bi)}
+    out = run_json(["transfer", str(leo), "--from", "Parking", "--to-altitude", "376310 km",
+                    "--via", via, "--json"], capsys)
+    assert out["dv_total_m_s"] == pytest.approx(3.904 * KM_S, abs=0.5)
+    assert out["time_of_flight_s"] == pytest.approx(593.92 * HOUR, abs=0.01 * HOUR)
+    assert rows["total dv"][1] == f"{out['dv_total_m_s'] / KM:.4f} km/s"
+    assert rows["time of flight"][1] == format_time(out["time_of_flight_s"], 5)
+    assert rows["burns"] == ("2", "3")
+    assert float(hohmann.transfer.dv_total_m_s) > out["dv_total_m_s"]
+    # A refused via stays one line in its own column; the Hohmann column still answers.
+    low = plan_to_radius(scene, 0, "376310 km", True)
+    with pytest.raises(EditRefused) as refused:
+        plan_to_radius(scene, 0, "376310 km", True, "bi-elliptic", "10000 km")
+    rows = {r[0]: r[1:] for r in side_by_side_rows(low, refused.value)}
+    assert rows["total dv"][0].endswith("km/s")
+    assert rows["total dv"][1].startswith("refused: the intermediate radius must be at least")
+    assert "\n" not in rows["total dv"][1]
+
+
+def test_from_defaults_to_the_lower_orbit(leo: Path) -> None:
+    scene = load_scene(leo)
+    assert transfer_pair(scene, None, None) == (0, 1)
+    assert transfer_pair(scene, 1, None) == (1, 0)  # a choice is kept
+    assert transfer_pair(scene, 1, 1) == (1, 0)  # never from a body to itself
+
+
+@pytest.mark.parametrize(("radius", "problem"), [
+    ("100 km", "inside the central body"), ("-5 km", "positive"),
+    (f"{6378.137 + 191.34411} km", "nothing to transfer"),
+])
+def test_a_target_radius_that_cannot_be_reached_is_refused_in_one_line_by_both(
+        leo: Path, capsys: pytest.CaptureFixture[str], radius: str, problem: str) -> None:
+    assert main(["transfer", str(leo), "--from", "Parking", "--to-radius", radius]) == 2
+    err = capsys.readouterr().err
+    assert problem in err and err.startswith("perifocal: error in --to-radius")
+    with pytest.raises(EditRefused) as refused:
+        plan_to_radius(load_scene(leo), 0, radius)
+    assert problem in refused.value.problems[0] and "\n" not in refused.value.problems[0]
+
+
+def test_speed_and_escape_speed_at_an_asked_radius_are_the_commands_in_km_s(
+        capsys: pytest.CaptureFixture[str]) -> None:
+    scene = load_scene(MISSION)
+    names = [b.name for b in scene.bodies]
+    for body, radius in (("Wren transfer", "20000 km"), ("Wren parking", "6678.137 km"),
+                         ("Wren parking", "30000 km")):  # crossed, always there, never
+        out = run_json(["timing", str(MISSION), "--body", body, "--radius", radius,
+                        "--json"], capsys)
+        text = main(["timing", str(MISSION), "--body", body, "--radius", radius])
+        printed = capsys.readouterr().out
+        assert text == 0
+        rows, _ = quick_answer_rows(scene, names.index(body), 0.0, QuickInputs(radius=radius))
+        shown = dict(rows["radius"])
+        r = parse_length_km(radius)
+        escape = math.sqrt(2 * MU_EARTH / r)  # escape speed, computed here
+        assert out["escape_speed_at_radius_m_s"] == pytest.approx(escape, rel=1e-12)
+        assert shown["escape speed there"] == format_speed(escape)
+        assert f"{escape / KM:.6f} km/s" in printed  # the same unit on the command line
+        if out["speed_at_radius_m_s"] is not None:
+            assert shown["speed there"] == format_speed(out["speed_at_radius_m_s"])
+            assert shown["speed there"].endswith(" km/s")
+        else:
+            assert "speed there" not in shown
+
+
+def parse_length_km(text: str) -> float:
+    value, unit = text.split()
+    assert unit == "km"
+    return float(value) * KM

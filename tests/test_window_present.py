@@ -5,56 +5,39 @@ panels stay docked to the window's edges when it is resized."""
 
 from __future__ import annotations
 
-import shutil
 import time
 from pathlib import Path
 
 import numpy as np
 import pytest
 from support.xwindow import (
-    ROOT,
+    WINDOW,
     Display,
+    press,
     read_report,
-    running_viewer,
+    viewer_on_bundled,
     wait_for,
+    window_pixels,
 )
 
 from viewer.gui.panels.widgets import GAP, LEFT_W, MENU_H, RIGHT_W, TIME_H, scene_area
 from viewer.gui.theme import HEADER
 
-pytestmark = [
-    pytest.mark.window,
-    pytest.mark.skipif(shutil.which("Xvfb") is None, reason="Xvfb is not installed"),
-]
+pytestmark = WINDOW
 
 W, H = 1600, 900
 DUNMORE = (0xc7, 0xa4, 0xff)  # the demo's outermost orbit colour (scenes/demo.toml)
 TITLE = tuple(round(255 * c) for c in HEADER[:3])  # a panel's active title bar
 
 
-def window_pixels(display: Display, origin: tuple[int, int]) -> np.ndarray:
-    x, y = origin
-    return display.screen()[y:y + H, x:x + W].astype(np.int16)
-
-
 def near(px: np.ndarray, rgb: tuple[int, ...], tol: int) -> np.ndarray:
     return np.all(np.abs(px - np.array(rgb, dtype=np.int16)) <= tol, axis=-1)
 
 
-def press(display: Display, report: Path, key: str, **wanted: object) -> dict:
-    """Press ``key``; the report of the first frame drawn after it with the wanted values."""
-    start = read_report(report)["frames"]  # type: ignore[index]
-    display.xdotool("key", key)
-    return wait_for(lambda: (r := read_report(report)) and r["frames"] > start and all(
-        r.get(k) == v for k, v in wanted.items()) and r, what=f"{key}: frames with {wanted}")
-
-
 @pytest.fixture
 def demo(display: Display, tmp_path: Path):  # type: ignore[no-untyped-def]
-    scene = tmp_path / "demo.toml"
-    shutil.copy(ROOT / "scenes" / "demo.toml", scene)
-    with running_viewer(display, tmp_path, scene) as (report, origin):
-        yield report, origin, scene
+    with viewer_on_bundled(display, tmp_path, "demo.toml") as running:
+        yield running
 
 
 def test_presentation_mode_leaves_no_panel_pixels(display: Display, demo) -> None:  # type: ignore[no-untyped-def]

@@ -7,6 +7,7 @@ from __future__ import annotations
 import contextlib
 import json
 import os
+import shutil
 import struct
 import subprocess
 import sys
@@ -19,6 +20,9 @@ import pytest
 
 ROOT = Path(__file__).resolve().parents[2]
 PERIFOCAL = [sys.executable, "-m", "viewer.cli"]
+#: The marks of a window test module: ``pytestmark = WINDOW``.
+WINDOW = [pytest.mark.window,
+          pytest.mark.skipif(shutil.which("Xvfb") is None, reason="Xvfb is not installed")]
 
 
 class Display:
@@ -39,7 +43,9 @@ class Display:
             self.proc.kill()
             pytest.skip("Xvfb did not start")
         self.name = f":{number}"
-        self.env = {**os.environ, "DISPLAY": self.name}
+        # The viewer's per-user settings (UI scale, recent files) go to the test's folder.
+        self.env = {**os.environ, "DISPLAY": self.name,
+                    "XDG_CONFIG_HOME": str(tmp / "config")}
 
     def screen(self) -> np.ndarray:
         # XWD file: a big-endian header (its size first), a colormap of ncolors entries
@@ -127,6 +133,17 @@ def running_viewer(display: Display, tmp: Path,
             proc.kill()
 
 
+@contextlib.contextmanager
+def viewer_on_bundled(display: Display, tmp: Path,
+                      name: str) -> Iterator[tuple[Path, tuple[int, int], Path]]:
+    """``running_viewer`` on a copy of the bundled scene ``scenes/NAME`` in ``tmp``:
+    (report path, window origin, the copy's path)."""
+    scene = tmp / name
+    shutil.copy(ROOT / "scenes" / name, scene)
+    with running_viewer(display, tmp, scene) as (report, origin):
+        yield report, origin, scene
+
+
 def window_origin(display: Display) -> tuple[int, int]:
     wid = wait_for(lambda: display.xdotool("search", "--name", "Perifocal").split(),
                    what="the window to be mapped")[0]
@@ -162,3 +179,18 @@ def type_into(display: Display, origin: tuple[int, int], rect: list[float], text
     display.xdotool("key", "Return")
 
 
+
+
+def window_pixels(display: Display, origin: tuple[int, int],
+                  size: tuple[int, int] = (1600, 900)) -> np.ndarray:
+    """What the window shows, as int16 RGB (H, W, 3) (signed, so differences work)."""
+    x, y = origin
+    return display.screen()[y:y + size[1], x:x + size[0]].astype(np.int16)
+
+
+def press(display: Display, report: Path, key: str, **wanted: object) -> dict:
+    """Press ``key``; the report of the first frame drawn after it with the wanted values."""
+    start = read_report(report)["frames"]  # type: ignore[index]
+    display.xdotool("key", key)
+    return wait_for(lambda: (r := read_report(report)) and r["frames"] > start and all(
+        r.get(k) == v for k, v in wanted.items()) and r, what=f"{key}: frames with {wanted}")

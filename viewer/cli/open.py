@@ -124,7 +124,7 @@ def run(args: argparse.Namespace) -> int:
     if not os.environ.get("DISPLAY") and not os.environ.get("WAYLAND_DISPLAY"):
         raise UserInputError("display", "no display (DISPLAY is not set): the viewer needs "
                              "a window; use 'perifocal render' for files instead")
-    from ..gui.settings import load_ui_scale, save_ui_scale
+    from ..gui.settings import load_ui_scale, save_ui_scale, settings_path
     from ..gui.window import ViewerWindow
 
     scale = args.ui_scale if args.ui_scale is not None else load_ui_scale()
@@ -133,7 +133,8 @@ def run(args: argparse.Namespace) -> int:
     try:
         window = ViewerWindow(editor, size=args.size, ui_report=args.ui_report, ui_scale=scale,
                               screen=args.screen, fullscreen=args.fullscreen,
-                              presenting=args.present, view=args.view)
+                              presenting=args.present, view=args.view,
+                              settings_file=settings_path())
     except ValueError as err:  # a screen that does not exist
         raise UserInputError("--screen", str(err)) from None
     except Exception as err:  # no X server, no GL visual: one line, exit 2

@@ -14,6 +14,8 @@ from ..errors import UserInputError
 EXAMPLES = """examples:
   the numbers of a Hohmann transfer from one body's circle to another's:
     perifocal transfer leo_geo.toml --from LEO --to GEO
+  the same to a circle 35 786 km up, with no body there:
+    perifocal transfer leo_geo.toml --from LEO --to-altitude "35786 km"
   a bi-elliptic transfer through 500 000 km, departing 2 h after the scene epoch, written
   with its legs as bodies into a new scene:
     perifocal transfer leo_geo.toml --from LEO --to GEO --via "500000 km" --at "2 h" \\
@@ -49,8 +51,13 @@ def add_parser(sub: Any) -> None:
     p.add_argument("scene", metavar="SCENE", help="the scene file")
     p.add_argument("--from", dest="from_body", required=True, metavar="NAME",
                    help="the body on the departure circle")
-    p.add_argument("--to", dest="to_body", required=True, metavar="NAME",
-                   help="the body on the arrival circle")
+    to = p.add_mutually_exclusive_group(required=True)
+    to.add_argument("--to", dest="to_body", metavar="NAME",
+                    help="the body on the arrival circle")
+    to.add_argument("--to-radius", metavar="R", help='or the arrival circle\'s radius from '
+                    'the centre, e.g. "42164 km" (no target body, so no phasing)')
+    to.add_argument("--to-altitude", metavar="H", help="or its altitude above the central "
+                    'body\'s radius, e.g. "35786 km"')
     p.add_argument("--via", metavar="RADIUS", help="bi-elliptic: the intermediate apoapsis "
                    'radius, e.g. "500000 km" (at least the larger circle)')
     p.add_argument("--at", metavar="T", default=None,
@@ -67,9 +74,25 @@ def add_parser(sub: Any) -> None:
 FLAGS = {"from": "--from", "to": "--to", "via": "--via", "name": "--name"}
 
 
+def target_radius(args: argparse.Namespace, scene: Any) -> float | None:
+    """The arrival circle's radius (m) from --to-radius or --to-altitude; None for --to."""
+    from ..mission.quick import MissionRefused, radius_from_altitude
+    from .options import quantity
+
+    if args.to_radius is not None:
+        return quantity(args.to_radius, "--to-radius", "length", scene.length_unit)
+    if args.to_altitude is None:
+        return None
+    h = quantity(args.to_altitude, "--to-altitude", "length", scene.length_unit)
+    try:
+        return radius_from_altitude(h, scene.center.radius_m)
+    except MissionRefused as err:
+        raise UserInputError("--to-altitude", err.problems) from None
+
+
 def run(args: argparse.Namespace) -> int:
     from ..mission.quick import MissionRefused
-    from ..mission.transfer import body_index, check_leg_names, plan_transfer
+    from ..mission.transfer import body_index, check_leg_names, plan_to_radius, plan_transfer
     from ..scene import load_scene
     from . import CAUTION
     from .ephemeris import time_arg
@@ -79,15 +102,22 @@ def run(args: argparse.Namespace) -> int:
     at = time_arg(args.at, "--at", scene) if args.at is not None else scene.epoch
     via = None if args.via is None else quantity(args.via, "--via", "length",
                                                  scene.length_unit)
+    r2 = target_radius(args, scene)
+    kind = "hohmann" if via is None else "bi-elliptic"
+    t_dep = at.seconds_since(scene.epoch)
+    flags = {**FLAGS, "to": "--to" if r2 is None else
+             "--to-radius" if args.to_radius is not None else "--to-altitude"}
     try:
         i = body_index(scene, args.from_body, "from")
-        j = body_index(scene, args.to_body, "to")
-        plan = plan_transfer(scene, i, j, "hohmann" if via is None else "bi-elliptic", via,
-                             at.seconds_since(scene.epoch), args.name or "")
+        if r2 is None:
+            j = body_index(scene, args.to_body, "to")
+            plan = plan_transfer(scene, i, j, kind, via, t_dep, args.name or "")
+        else:
+            plan = plan_to_radius(scene, i, r2, kind, via, t_dep, args.name or "")
         if args.output is not None:
             check_leg_names(scene, plan)
     except MissionRefused as err:
-        raise UserInputError(FLAGS.get(err.field, args.scene), err.problems) from None
+        raise UserInputError(flags.get(err.field, args.scene), err.problems) from None
     out = _describe(scene, plan)
     if out["next_window_s"] is not None:
         out["next_window_epoch"] = scene.epoch.plus_seconds(out["next_window_s"]).iso(decimals=3)
@@ -185,13 +215,16 @@ def _table(d: dict[str, Any]) -> str:
     for k, leg in enumerate(d["legs"]):
         rows.append((f"leg {k + 1}", f"a {km(leg['a_m'])}, e {leg['e']:.9f}, periapsis "
                      f"{km(leg['periapsis_m'])}, apoapsis {km(leg['apoapsis_m'])}"))
-    rows += [("phase angle needed", f"{format_direction(d['phase_angle_needed_rad'])} "
-              f"(target ahead of the departure point)"),
-             ("phase angle at departure", format_direction(d['phase_angle_now_rad'])),
-             ("next window", "-" if d["next_window_s"] is None else
-              f"scene time {d['next_window_s']:.3f} s"
-              + (f", {d['next_window_epoch']}" if "next_window_epoch" in d else "")
-              + f" (synodic period {hours(d['synodic_period_s'])})")]
+    if d["phase_angle_now_rad"] is None:  # to a radius: no target body to meet
+        rows.append(("phasing", "none: no body waits on the arrival circle"))
+    else:
+        rows += [("phase angle needed", f"{format_direction(d['phase_angle_needed_rad'])} "
+                  f"(target ahead of the departure point)"),
+                 ("phase angle at departure", format_direction(d['phase_angle_now_rad'])),
+                 ("next window", "-" if d["next_window_s"] is None else
+                  f"scene time {d['next_window_s']:.3f} s"
+                  + (f", {d['next_window_epoch']}" if "next_window_epoch" in d else "")
+                  + f" (synodic period {hours(d['synodic_period_s'])})")]
     if "wrote" in d:
         rows.append(("wrote", f"{d['wrote']} (added {', '.join(d['bodies_added'])})"))
     rows += [("warning", w) for w in d["warnings"]]

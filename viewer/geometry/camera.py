@@ -70,6 +70,10 @@ class View:
     #: Image height that line widths, markers and labels are sized for (px); the
     #: view's own height when None. Cube faces of a dome master use the master's.
     style_height_px: int | None = None
+    #: The part of the image labels are kept inside, (x0, y0, x1, y1) px: the window
+    #: passes the area its panels leave free, so no label is cut short by a panel. The
+    #: whole image when None (every export).
+    label_box_px: tuple[float, float, float, float] | None = None
 
     @property
     def style_scale(self) -> float:

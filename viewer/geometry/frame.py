@@ -58,9 +58,10 @@ DISC, RING, DIAMOND, GLOW, SPHERE, CROSSHAIR, ARROWHEAD = range(7)
 MARKER_FLOATS = 10
 
 #: Sizes in pixels at 1080 px image height; every one scales with the height.
-LABEL_PX = 17.0
-SMALL_LABEL_PX = 13.5
-AREA_LABEL_PX = 15.0
+#: Labels of at least 16 px (legible on a projector), body names a little larger.
+LABEL_PX = 18.0
+SMALL_LABEL_PX = 16.0
+AREA_LABEL_PX = 16.0
 BODY_MARKER_PX = 5.5
 STAR_MIN_RADIUS_PX = 7.0
 PLANET_MIN_RADIUS_PX = 6.0
@@ -366,7 +367,8 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
         x0, y0 = labels[-1].at_px  # type: ignore[misc]
         tw, asc, desc = measure(text.text, text.size_px * hs)
         obstacles.append((x0, y0 - asc, x0 + tw, y0 + desc))
-    placed = place_labels(labels, measure, (w, h), obstacles) if place else []
+    placed = place_labels(labels, measure, (w, h), obstacles,
+                          keep_in=view.label_box_px) if place else []
     sv = static.vector
     vector = VectorParts(sv.grid, PolylineBatch(sv.lines.points + lines.points,
                                                 sv.lines.closed + lines.closed,

@@ -70,27 +70,43 @@ def _overlaps(cand: NDArray[np.float64], boxes: NDArray[np.float64]) -> NDArray[
     return np.where((w > 0) & (h > 0), w * h, 0.0)
 
 
-def _outside_area(cand: NDArray[np.float64], size: tuple[int, int]) -> NDArray[np.float64]:
-    """Area of each box that falls outside the image."""
-    w, h = size
-    iw = np.clip(np.minimum(cand[:, 2], w) - np.maximum(cand[:, 0], 0), 0, None)
-    ih = np.clip(np.minimum(cand[:, 3], h) - np.maximum(cand[:, 1], 0), 0, None)
-    return (cand[:, 2] - cand[:, 0]) * (cand[:, 3] - cand[:, 1]) - iw * ih
+def outside_of(box: Box) -> Callable[[NDArray[np.float64]], NDArray[np.float64]]:
+    """The ``outside`` of ``place_labels`` for a rectangle (x0, y0, x1, y1) px: the area
+    of each candidate box (C, 4) that falls outside it."""
+    x0, y0, x1, y1 = box
+
+    def outside(cand: NDArray[np.float64]) -> NDArray[np.float64]:
+        iw = np.clip(np.minimum(cand[:, 2], x1) - np.maximum(cand[:, 0], x0), 0, None)
+        ih = np.clip(np.minimum(cand[:, 3], y1) - np.maximum(cand[:, 1], y0), 0, None)
+        return (cand[:, 2] - cand[:, 0]) * (cand[:, 3] - cand[:, 1]) - iw * ih
+    return outside
+
+
+def _slide_in(box: NDArray[np.float64], keep: Box) -> NDArray[np.float64]:
+    """The shift (dx, dy, dx, dy) that brings ``box`` inside ``keep`` along each axis it
+    fits in (none along an axis it is wider than)."""
+    d = []
+    for lo, hi, k0, k1 in ((box[0], box[2], keep[0], keep[2]), (box[1], box[3], keep[1], keep[3])):
+        d.append(0.0 if hi - lo > k1 - k0 else max(k0 - lo, 0.0) + min(k1 - hi, 0.0))
+    return np.array([d[0], d[1], d[0], d[1]])
 
 
 def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tuple[int, int],
                  obstacles: Sequence[Box] = (),
-                 outside: Callable[[NDArray[np.float64]], NDArray[np.float64]] | None = None
-                 ) -> list[PlacedLabel]:
+                 outside: Callable[[NDArray[np.float64]], NDArray[np.float64]] | None = None,
+                 keep_in: Box | None = None) -> list[PlacedLabel]:
     """Place ``requests`` (any order; sorted by priority, stably) in an image of ``size_px``.
 
     ``obstacles`` are boxes (markers) no label should cover. ``outside`` gives, for
     candidate boxes (C, 4), the area of each that falls off the picture (default: off
-    the image rectangle; a dome master passes the area off its circle).
+    the image rectangle; a dome master passes the area off its circle). ``keep_in`` is
+    a rectangle (x0, y0, x1, y1) the labels stay inside (the window's free area): it
+    sets ``outside``, and a required label that would stick out of it slides in whole.
     """
+    if keep_in is not None:
+        outside = outside_of(keep_in)
     if outside is None:
-        def outside(cand: NDArray[np.float64]) -> NDArray[np.float64]:
-            return _outside_area(cand, size_px)
+        outside = outside_of((0.0, 0.0, float(size_px[0]), float(size_px[1])))
     placed: list[PlacedLabel] = []
     boxes: list[Box] = []
     order = sorted(range(len(requests)), key=lambda k: requests[k].priority)
@@ -121,11 +137,13 @@ def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tu
         pick = int(clear[0]) if clear.size else int(np.argmin(score))
         if score[pick] > 0.0 and not req.required:
             continue
-        box_a = cand[pick]
+        box_a = cand[pick].copy()
         area = (box_a[2] - box_a[0]) * (box_a[3] - box_a[1])
         if outside(box_a[None, :])[0] >= area:
             continue  # wholly off the image: nothing to show
-        placed.append(PlacedLabel(req.text, float(xs[pick]), float(top[pick] + ascent),
-                                  req.size_px, req.rgba))
+        if keep_in is not None and outside(box_a[None, :])[0] > 0.0:
+            box_a += _slide_in(box_a, keep_in)
+        placed.append(PlacedLabel(req.text, float(box_a[0] + _PAD_PX),
+                                  float(box_a[1] + _PAD_PX + ascent), req.size_px, req.rgba))
         boxes.append(tuple(float(v) for v in box_a))  # type: ignore[arg-type]
     return placed

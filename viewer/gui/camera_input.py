@@ -77,6 +77,16 @@ def focus(camera: Camera, target: str) -> Camera:
     return replace(camera, target=target)
 
 
+def on_screen(view: View, ui_scale: float, free_px: tuple[int, int, int, int]) -> View:
+    """The window's ``view``: labels, markers and lines sized in screen pixels by the UI
+    scale, as the panel text is (an export sizes them by its image height instead), and
+    labels kept inside ``free_px`` (x, y from the top, width, height), the area the
+    panels leave free."""
+    x0, top, w, h = free_px
+    return replace(view, style_height_px=max(1, round(1080.0 * ui_scale)),
+                   label_box_px=(float(x0), float(top), float(x0 + w), float(top + h)))
+
+
 def fit(camera: Camera, scene: Any, t_s: float, window_px: tuple[int, int],
         free_px: tuple[int, int], margin: float = 0.9) -> Camera:
     """The camera framing every orbit of ``scene`` (and the central body) inside the part

@@ -24,7 +24,7 @@ from ..scene.loader import free_color
 from ..scene.model import Body, BodyShow, Center, Scene, Sweep
 from ..scene.report import orbit_warnings
 from ..units import EpochError, QuantityError, parse_epoch, parse_quantity
-from .elements_edit import FIELDS, HOLDS, EditRefused, edit_elements
+from .elements_edit import FIELDS, HOLDS, EditRefused, edit_elements, kept_text
 
 __all__ = ["Editor", "EditRefused", "FIELDS", "HOLDS"]
 
@@ -108,6 +108,8 @@ class Editor:
         self.path = Path(path) if path is not None else scene.source
         self.source_text = source_text
         self.hold = "auto"
+        #: What the last element edit kept fixed, in words (``elements_edit.kept_text``).
+        self.kept = ""
         n = len(scene.bodies)
         self._now = _State(scene, 0 if scene.bodies else None, tuple(range(n)))
         self._next_id = n
@@ -381,6 +383,7 @@ class Editor:
         el = edit_elements(body.elements, field, text, self.hold, c.radius_m,
                            self.field_unit(field, k) or None)
         self._replace_body(k, _with_elements(body, el, c), f"{field} of {body.name}")
+        self.kept = kept_text(field, self.hold)
         return True
 
     def fix_conic(self, t_s: float, index: int | None = None) -> None:

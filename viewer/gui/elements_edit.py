@@ -76,6 +76,18 @@ def held_quantity(field: str, hold: str) -> str:
     return _PARTNER[changed] if held == changed else held
 
 
+def kept_text(field: str, hold: str) -> str:
+    """What an edit of ``field`` under the lock ``hold`` keeps, in words: "a changed;
+    kept e (the natural partner)". Empty for a field that is not a shape quantity."""
+    if field not in _SHAPE_OF:
+        return ""
+    held = held_quantity(field, hold)
+    changed = FIELDS[field][1]
+    partner = hold == "auto" or _HOLD_SHAPE.get(hold) == _SHAPE_OF[field]
+    return (f"{changed} changed; kept {_NAMES[held]}"
+            + (" (the natural partner)" if partner else ""))
+
+
 def parse_field(field: str, text: str, default_unit: str | None) -> float:
     """The SI value of ``text`` for ``field`` (bare numbers take ``default_unit``)."""
     dimension, label = FIELDS[field]

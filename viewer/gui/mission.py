@@ -11,6 +11,7 @@ turns refusals into ``EditRefused`` and writes every number with its unit
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 from ..mission import CAUTION
@@ -23,8 +24,9 @@ from ..mission.transfer import (
     circular_bodies,
     lower_first,
 )
+from ..mission.transfer import plan_to_radius as _plan_to_radius
 from ..mission.transfer import plan_transfer as _plan
-from ..orbit.flight import conic_warnings
+from ..orbit.flight import conic_warnings, escape_speed
 from ..scene.model import Body, Scene
 from ..units import QuantityError, parse_quantity
 from ..units.format import (
@@ -37,9 +39,10 @@ from ..units.format import (
 from .editor import EditRefused
 
 __all__ = ["CAUTION", "KINDS", "MAX_E", "MAX_PLANE_RAD", "QuickInputs", "TransferPlan",
-           "body_warnings", "circular_bodies", "hyperbola_rows", "lower_first",
-           "plan_transfer", "quick_answer_rows", "radius_crossing_rows", "speed_rows",
-           "time_of_flight_between", "transfer_rows"]
+           "body_warnings", "circular_bodies", "default_via", "hyperbola_rows", "lower_first",
+           "plan_to_radius", "plan_transfer", "quick_answer_rows", "radius_crossing_rows",
+           "side_by_side_rows", "speed_rows", "time_of_flight_between", "transfer_pair",
+           "transfer_rows"]
 
 Rows = tuple[tuple[str, str], ...]
 
@@ -51,20 +54,82 @@ def _refused(err: mq.MissionRefused, what: str | None = None) -> EditRefused:
 # --- transfers ---------------------------------------------------------------------------
 
 
+def _via(scene: Scene, kind: str, via_text: str) -> float | None:
+    if kind != "bi-elliptic":
+        return None
+    try:
+        return parse_quantity(via_text, "length", scene.length_unit)
+    except QuantityError as err:
+        raise EditRefused("transfer", f"via radius: {err}") from None
+
+
 def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hohmann",
                   via_text: str = "", departure_s: float = 0.0, name: str = "") -> TransferPlan:
     """``viewer.mission.transfer.plan_transfer`` with the via radius as typed text (a
     bare number in the scene's length unit); refusals as EditRefused."""
-    via = None
-    if kind == "bi-elliptic":
-        try:
-            via = parse_quantity(via_text, "length", scene.length_unit)
-        except QuantityError as err:
-            raise EditRefused("transfer", f"via radius: {err}") from None
+    via = _via(scene, kind, via_text)
     try:
         return _plan(scene, from_index, to_index, kind, via, departure_s, name)
     except mq.MissionRefused as err:
         raise _refused(err, "transfer") from None
+
+
+def plan_to_radius(scene: Scene, from_index: int, radius_text: str, altitude: bool = False,
+                   kind: str = "hohmann", via_text: str = "", departure_s: float = 0.0,
+                   name: str = "") -> TransferPlan:
+    """``viewer.mission.transfer.plan_to_radius`` to a typed radius (or altitude, with
+    ``altitude``), as ``perifocal transfer --to-radius`` (``--to-altitude``) reads it: a
+    bare number in the scene's length unit; refusals as EditRefused."""
+    if not radius_text.strip():
+        raise EditRefused("to", f"type the arrival circle's {'altitude' if altitude else 'radius'}"
+                          f', e.g. "42164 km" (a bare number is in {scene.length_unit})')
+    r2 = _radius(scene, radius_text, altitude)
+    via = _via(scene, kind, via_text)
+    try:
+        return _plan_to_radius(scene, from_index, r2, kind, via, departure_s, name)
+    except mq.MissionRefused as err:
+        raise _refused(err, "transfer") from None
+
+
+def transfer_pair(scene: Scene, from_index: int | None, to_index: int | None
+                  ) -> tuple[int | None, int | None]:
+    """The transfer's bodies: those chosen while they are circular and differ, else
+    "from" is the lowest circle and "to" the next one up (None where there is none)."""
+    by_radius = lower_first(scene, circular_bodies(scene))
+    if from_index not in by_radius:
+        from_index = by_radius[0] if by_radius else None
+    if to_index not in by_radius or to_index == from_index:
+        to_index = next((k for k in by_radius if k != from_index), None)
+    return from_index, to_index
+
+
+def default_via(scene: Scene, from_index: int, to_index: int | None, radius_text: str = "",
+                altitude: bool = False) -> str:
+    """The bi-elliptic via radius offered until one is typed: three times the larger of
+    the two circles (the departure circle's alone while the target cannot be read)."""
+    radii = [float(scene.bodies[from_index].elements.a)]
+    if to_index is not None and not radius_text:
+        radii.append(float(scene.bodies[to_index].elements.a))
+    elif radius_text.strip():
+        try:
+            radii.append(_radius(scene, radius_text, altitude))
+        except EditRefused:
+            pass
+    return f"{3 * max(radii) / 1e3:.0f} km"
+
+
+def side_by_side_rows(hohmann: TransferPlan | EditRefused,
+                      bi_elliptic: TransferPlan | EditRefused) -> tuple[tuple[str, str, str], ...]:
+    """(what, Hohmann, bi-elliptic) rows comparing the two ways to the same circle: the
+    total dv, the time of flight and the burns; a refused plan shows its reason."""
+    def cells(plan: TransferPlan | EditRefused) -> list[str]:
+        if isinstance(plan, EditRefused):
+            return ["refused: " + plan.problems[0], "", ""]
+        tr = plan.transfer
+        return [f"{float(tr.dv_total_m_s) / 1e3:.4f} km/s",
+                format_time(float(tr.time_of_flight_s), 5), str(len(tr.burns))]
+    h, b = cells(hohmann), cells(bi_elliptic)
+    return tuple(zip(("total dv", "time of flight", "burns"), h, b, strict=True))
 
 
 def transfer_rows(plan: TransferPlan, scene: Scene
@@ -88,12 +153,14 @@ def transfer_rows(plan: TransferPlan, scene: Scene
     return burns, {
         "totals": (("total dv", f"{float(tr.dv_total_m_s) / 1e3:.4f} km/s"),
                    ("time of flight", f"{format_time(tof, 5)}  ({tof:,.0f} s)")),
-        "phasing": (("phase angle needed", f"{format_direction(plan.phase_needed_rad)} "
+        "phasing": ((("phasing", "none: no body waits on the arrival circle"),)
+                    if plan.phase_now_rad is None else (
+                    ("phase angle needed", f"{format_direction(plan.phase_needed_rad)} "
                                            "(target ahead)"),
                     ("phase angle now", format_direction(plan.phase_now_rad)),
                     ("next window", "none found" if plan.next_window_s is None else
                      f"in {format_time(plan.next_window_s - plan.departure_s, 5)}"),
-                    ("  then every", format_time(plan.synodic_s, 5))),
+                    ("  then every", format_time(plan.synodic_s, 5)))),
         "legs": tuple(legs),
     }
 
@@ -176,6 +243,19 @@ def radius_crossing_rows(scene: Scene, index: int, t_s: float, text: str,
     return tuple(rows)
 
 
+def _escape_row(scene: Scene, text: str, altitude: bool) -> Rows:
+    """The escape speed at a radius the body never reaches (as ``perifocal timing``
+    gives it); nothing when the text is not a radius."""
+    try:
+        r = _radius(scene, text, altitude)
+    except EditRefused:
+        return ()
+    if not (r > 0 and math.isfinite(r)):
+        return ()
+    return (("escape speed there", format_speed(float(escape_speed(scene.center.gm_m3_s2,
+                                                                     r)))),)
+
+
 def speed_rows(scene: Scene, index: int, t_s: float) -> Rows:
     """Distance and speed now, the escape speed at this distance and the margin."""
     here = mq.speed_here(scene.bodies[index].elements_at(t_s), scene.center.gm_m3_s2)
@@ -228,6 +308,7 @@ def quick_answer_rows(scene: Scene, index: int, t_s: float, inputs: QuickInputs
                                                   inputs.altitude)
         except EditRefused as err:
             problems["radius"] = err.problems[0]
+            rows["radius"] = _escape_row(scene, inputs.radius, inputs.altitude)
     rows["speed"] = speed_rows(scene, index, t_s)
     rows["hyperbola"] = hyperbola_rows(body)
     return rows, problems

@@ -6,14 +6,17 @@ The flows a user walks through live here, so they are tested without a window:
 
 * quit or open another scene with unsaved changes: the unsaved-changes prompt comes
   first (save, discard, keep editing), then the action;
-* open a scene: a path typed into our own dialog; the scene loader's problems are shown
-  in the dialog, one line each, and the current scene is kept;
+* open a scene, or save it as another file: a path typed, or picked in our own file
+  chooser (``files.FileChooser``: one folder's sub-folders and scene files) or from the
+  recent files (saved per user, ``settings``); the loader's or the writer's problems are
+  shown in the dialog, one line each, and the current scene is kept;
 * a still of the current view (PNG, JPEG, SVG) and a render job of the timeline (a frame
   folder or an .mp4) through ``jobs``.
 """
 
 from __future__ import annotations
 
+import os
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -21,6 +24,7 @@ from typing import Any
 from ..errors import UserInputError
 from .clock import Clock
 from .editor import Editor
+from .files import Entry, FileChooser, folder_of
 from .jobs import RenderJob, export_still, job_request, still_request
 
 __all__ = ["Session"]
@@ -59,9 +63,16 @@ class Session:
     unsaved_for: str = ""
     save_as_prompt: bool = False
     save_as_text: str = ""
+    save_as_errors: list[str] = field(default_factory=list)
     open_prompt: bool = False
     open_text: str = ""
     open_errors: list[str] = field(default_factory=list)
+    #: The folder shown by the open or save-as dialog's file chooser.
+    chooser: FileChooser | None = None
+    #: Scene files opened or saved, newest first; kept in ``settings_file`` (the user's
+    #: settings, ``settings.settings_path()``) when it is given, else for this window only.
+    recent: list[str] = field(default_factory=list)
+    settings_file: Path | None = None
     still_prompt: bool = False
     still_text: str = ""
     still_size: str = ""
@@ -102,6 +113,7 @@ class Session:
         try:
             path = self.editor.save()
             self.message = f"saved {path}"
+            self.remember(path)
         except UserInputError as err:
             if self.editor.path is None:
                 self.open_save_as()
@@ -110,7 +122,55 @@ class Session:
 
     def open_save_as(self) -> None:
         self.save_as_prompt = True
+        self.save_as_errors = []
         self.save_as_text = str(self.editor.path or Path.cwd() / "scene.toml")
+        self.chooser = FileChooser(folder_of(self.save_as_text))
+
+    def save_as(self, path_text: str | None = None) -> bool:
+        """Save to ``path_text`` (default: what the dialog holds); the writer's problems
+        stay in the dialog, one line each, and nothing is written."""
+        text = (self.save_as_text if path_text is None else path_text).strip()
+        if not text or text.endswith(("/", os.sep)) or Path(text).expanduser().is_dir():
+            self.save_as_errors = ["give a file name ending in .toml, not a folder"]
+            return False
+        try:
+            path = self.editor.save(Path(text).expanduser())
+        except UserInputError as err:
+            self.save_as_errors = _lines(err)
+            return False
+        self.message = f"saved {path}"
+        self.save_as_prompt = False
+        self.save_as_errors = []
+        self.remember(path)
+        return True
+
+    def remember(self, path: Path) -> None:
+        """Put a scene file first among the recent files (saved in ``settings_file``)."""
+        if self.settings_file is not None:
+            from .settings import add_recent
+
+            self.recent = add_recent(path, self.settings_file)
+        else:
+            name = str(Path(path).absolute())
+            self.recent = [name] + [p for p in self.recent if p != name]
+
+    def choose(self, entry: Entry, dialog: str) -> None:
+        """A click in the file chooser of ``dialog`` ("open" or "save_as"): a folder is
+        shown (the path then names it, or the same file name in it); a file is named."""
+        attr = f"{dialog}_text"
+        if entry.folder:
+            assert self.chooser is not None
+            self.chooser.go(entry.path)
+            name = Path(getattr(self, attr)).name if dialog == "save_as" else ""
+            setattr(self, attr, str(entry.path / name) if name else str(entry.path) + os.sep)
+        else:
+            setattr(self, attr, str(entry.path))
+
+    def chooser_up(self, dialog: str) -> None:
+        """The chooser's "up" button: show the folder above."""
+        assert self.chooser is not None
+        self.chooser.up()
+        self.choose(Entry(self.chooser.folder.name, self.chooser.folder, True), dialog)
 
     def unsaved_choice(self, choice: str) -> None:
         """The answer to the unsaved-changes prompt: "save" (then go on if it saved),
@@ -141,7 +201,8 @@ class Session:
         self.open_errors = []
         if not self.open_text:
             folder = self.editor.path.parent if self.editor.path else Path.cwd()
-            self.open_text = str(folder) + "/"
+            self.open_text = str(folder) + os.sep
+        self.chooser = FileChooser(folder_of(self.open_text))
 
     def open_scene(self, path_text: str | None = None) -> bool:
         """Load the scene at ``path_text`` (default: what the dialog holds) and show it.
@@ -159,6 +220,8 @@ class Session:
         self.open_prompt = False
         self.open_errors = []
         self.message = f"opened {editor.path}"
+        if editor.path is not None:
+            self.remember(editor.path)
         return True
 
     def replace_editor(self, editor: Editor) -> None:

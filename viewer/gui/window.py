@@ -20,7 +20,7 @@ from typing import Any
 import numpy as np
 
 from .actions import action_for
-from .camera_input import focus, orbit, pan, zoom
+from .camera_input import focus, on_screen, orbit, pan, zoom
 from .clock import Clock
 from .editor import Editor
 from .overlays import scene_with_overlays
@@ -51,7 +51,8 @@ class ViewerWindow:
     def __init__(self, editor: Editor, size: tuple[int, int] = (1600, 900),
                  visible: bool = True, ui_report: str | Path | None = None,
                  ui_scale: float = 1.0, screen: int | None = None, fullscreen: bool = False,
-                 presenting: bool = False, view: str = "flat") -> None:
+                 presenting: bool = False, view: str = "flat",
+                 settings_file: Path | None = None) -> None:
         import moderngl
         import pyglet
         from imgui_bundle import imgui, implot
@@ -95,7 +96,14 @@ class ViewerWindow:
         self.session = Session(editor=editor, clock=Clock.for_scene(editor.scene),
                                camera=editor.scene.camera, message=self.render_error,
                                renderer=self.renderer, ui_scale=ui_scale,
-                               fullscreen=fullscreen, presenting=presenting)
+                               fullscreen=fullscreen, presenting=presenting,
+                               settings_file=settings_file)
+        if settings_file is not None:  # the recent files: this scene first
+            from .settings import load_recent
+
+            self.session.recent = load_recent(settings_file)
+            if editor.path is not None:
+                self.session.remember(editor.path)
         screens = pyglet.display.get_display().get_screens()
         if screen is not None and not 0 <= screen < len(screens):
             raise ValueError(f"screen {screen} does not exist (this display has "
@@ -247,7 +255,8 @@ class ViewerWindow:
         except KeyError:  # the followed body was renamed or removed
             s.camera = focus(s.camera, "center")
             view = view_for(self.editor.scene, s.clock.t_s, size, s.camera)
-        return replace(view, origin_m=view.origin_m + self._shift_m(view))
+        view = replace(view, origin_m=view.origin_m + self._shift_m(view))
+        return on_screen(view, s.ui_scale, self._scene_area())
 
     def _unshift(self, camera: Any) -> Any:
         """A camera made from the shifted view (its target the point at the window's

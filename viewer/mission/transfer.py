@@ -16,6 +16,9 @@ Decided cases (the same answer in the window and on the command line):
   side when odd (each leg is half an ellipse). Its plane is the departure orbit's
   (i, raan); its periapsis lies where its anomaly at the start (0 at periapsis, pi at
   apoapsis) puts it: argp = u_start - nu_start;
+* a transfer to a typed radius (``plan_to_radius``) goes to the circle of that radius in
+  the departure orbit's plane; it has no target body, so no phasing, and a radius inside
+  the central body or equal to the departure circle's is refused;
 * the phase angle is the target's lead over the departure body about the departure
   orbit's normal, in [0, 2 pi); the next window is the first departure at or after the
   asked time with the needed lead, then one every synodic period.
@@ -33,6 +36,7 @@ from ..orbit.flight import conic_warnings
 from ..orbit.transfer import Transfer, bi_elliptic, hohmann
 from ..scene.loader import free_color
 from ..scene.model import Body, BodyShow, Scene
+from ..units.format import format_length
 from ..units.limits import MAX_TIME_S, limit_problem
 from .quick import MissionRefused
 
@@ -62,14 +66,15 @@ class TransferPlan:
     transfer: Transfer
     legs: tuple[Body, ...]
     #: How far the target must lead the departure body at departure, and how far it
-    #: leads at ``departure_s`` (rad, [0, 2 pi), about the departure orbit's normal).
+    #: leads at ``departure_s`` (rad, [0, 2 pi), about the departure orbit's normal;
+    #: None for a transfer to a radius, which has no target body).
     phase_needed_rad: float
-    phase_now_rad: float
+    phase_now_rad: float | None
     #: Scene time of the first departure at or after ``departure_s`` with the needed
-    #: phase (None when bodies that follow an ephemeris never reach it in the search),
-    #: and the synodic period between such chances (s).
+    #: phase (None when bodies that follow an ephemeris never reach it in the search,
+    #: or there is no target body), and the synodic period between such chances (s).
     next_window_s: float | None
-    synodic_s: float
+    synodic_s: float | None
     warnings: tuple[str, ...]
 
     @property
@@ -134,6 +139,73 @@ def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hoh
         problems.append("both circles have the same radius: there is nothing to transfer")
     if problems:
         raise MissionRefused("transfer", problems)
+    tr, legs, warnings = _transfer_legs(scene, dep, r2, kind, via_m, departure_s,
+                                        name.strip() or f"{dep.name} to {arr.name}")
+    now = dep.elements_at(departure_s)
+    mu = scene.center.gm_m3_s2
+
+    # Phasing: the target's lead over the departure body, about the departure normal.
+    w = _normal(dep.elements)
+    r_dep = state_from_elements(now, mu)[0]
+    r_tgt = state_from_elements(arr.elements_at(departure_s), mu)[0]
+    lead = math.atan2(float(np.dot(np.cross(r_dep, r_tgt), w)), float(np.dot(r_dep, r_tgt)))
+    lead %= TWO_PI
+    n_dep, n_tgt = math.sqrt(mu / r1**3), math.sqrt(mu / r2**3)
+    synodic = TWO_PI / abs(n_tgt - n_dep)
+    # The lead changes at n_tgt - n_dep; the wait until it is the needed one, mod synodic.
+    wait: float | None = ((float(tr.phase_angle_rad) - lead) / (n_tgt - n_dep)) % synodic
+    if real:
+        wait = _real_wait(dep, arr, w, float(tr.phase_angle_rad), synodic, departure_s)
+
+    return TransferPlan(kind=kind, from_name=dep.name, to_name=arr.name,
+                        departure_s=departure_s, transfer=tr, legs=legs,
+                        phase_needed_rad=float(tr.phase_angle_rad), phase_now_rad=lead,
+                        next_window_s=None if wait is None else departure_s + wait,
+                        synodic_s=synodic, warnings=notes + warnings)
+
+
+def plan_to_radius(scene: Scene, from_index: int, radius_m: float, kind: str = "hohmann",
+                   via_m: float | None = None, departure_s: float = 0.0,
+                   name: str = "") -> TransferPlan:
+    """Plan a transfer from the circular body ``from_index`` to the circle of radius
+    ``radius_m`` (m, from the centre) in its plane, departing at scene time
+    ``departure_s``: the same burns and legs as to a body on that circle, with no target
+    to meet, so no phasing (``phase_now_rad``, ``next_window_s`` and ``synodic_s`` are
+    None). Raises MissionRefused listing everything that does not allow it."""
+    if kind not in KINDS:
+        raise MissionRefused("transfer", f"unknown transfer {kind!r}; allowed: "
+                             f"{', '.join(KINDS)}")
+    dep = scene.bodies[from_index]
+    if dep.track is not None:
+        dep = dep.osculating(departure_s)
+    r2 = float(radius_m)
+    if problems := _circle_problem(dep, "from"):
+        raise MissionRefused("from", problems)
+    if not (math.isfinite(r2) and r2 > 0) or limit_problem(r2, "length") is not None:
+        raise MissionRefused("to", "the target radius must be a positive, finite distance "
+                             "from the centre")
+    L, R = scene.length_unit, scene.center.radius_m
+    if r2 <= R:
+        raise MissionRefused("to", f"the target radius {format_length(r2, L)} is inside the "
+                             f"central body (radius {format_length(R, L)}); give a larger one")
+    if math.isclose(float(dep.elements.a), r2, rel_tol=1e-9):
+        raise MissionRefused("to", "the target circle is the departure circle: there is "
+                             "nothing to transfer")
+    to_name = f"the circle of {format_length(r2, L)}"
+    tr, legs, warnings = _transfer_legs(scene, dep, r2, kind, via_m, departure_s,
+                                        name.strip() or f"{dep.name} to {format_length(r2, L)}")
+    return TransferPlan(kind=kind, from_name=dep.name, to_name=to_name,
+                        departure_s=departure_s, transfer=tr, legs=legs,
+                        phase_needed_rad=float(tr.phase_angle_rad), phase_now_rad=None,
+                        next_window_s=None, synodic_s=None, warnings=warnings)
+
+
+def _transfer_legs(scene: Scene, dep: Body, r2: float, kind: str, via_m: float | None,
+                   departure_s: float, label: str
+                   ) -> tuple[Transfer, tuple[Body, ...], tuple[str, ...]]:
+    """The transfer from ``dep``'s circle to radius ``r2`` (checked: the via radius, the
+    time limit), its legs as bodies named after ``label``, and each leg's warnings."""
+    r1 = float(dep.elements.a)
     rb = 0.0
     if kind == "bi-elliptic":
         if via_m is None or not (math.isfinite(via_m) and via_m > 0):
@@ -158,7 +230,6 @@ def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hoh
 
     now = dep.elements_at(departure_s)
     u0 = float(now.argp) + float(now.nu)
-    label = name.strip() or f"{dep.name} to {arr.name}"
     color = free_color(scene.bodies)
     legs = []
     for k, (leg, burn) in enumerate(zip(tr.legs, tr.burns, strict=False)):
@@ -172,29 +243,11 @@ def plan_transfer(scene: Scene, from_index: int, to_index: int, kind: str = "hoh
             epoch_offset_s=start, color=color, show=BodyShow(apsides=True),
             # Only the half ellipse between this leg's burns is flown.
             flight_s=(start, departure_s + float(tr.burns[k + 1].time_s))))
-
-    # Phasing: the target's lead over the departure body, about the departure normal.
-    w = _normal(dep.elements)
-    r_dep = state_from_elements(now, mu)[0]
-    r_tgt = state_from_elements(arr.elements_at(departure_s), mu)[0]
-    lead = math.atan2(float(np.dot(np.cross(r_dep, r_tgt), w)), float(np.dot(r_dep, r_tgt)))
-    lead %= TWO_PI
-    n_dep, n_tgt = math.sqrt(mu / r1**3), math.sqrt(mu / r2**3)
-    synodic = TWO_PI / abs(n_tgt - n_dep)
-    # The lead changes at n_tgt - n_dep; the wait until it is the needed one, mod synodic.
-    wait: float | None = ((float(tr.phase_angle_rad) - lead) / (n_tgt - n_dep)) % synodic
-    if real:
-        wait = _real_wait(dep, arr, w, float(tr.phase_angle_rad), synodic, departure_s)
-
     c = scene.center
-    warnings = notes + tuple(f"leg {k + 1}: {line}" for k, b in enumerate(legs)
-                             for line in conic_warnings(b.elements, c.radius_m, c.atmosphere_m,
-                                                        c.soi_radius_m))
-    return TransferPlan(kind=kind, from_name=dep.name, to_name=arr.name,
-                        departure_s=departure_s, transfer=tr, legs=tuple(legs),
-                        phase_needed_rad=float(tr.phase_angle_rad), phase_now_rad=lead,
-                        next_window_s=None if wait is None else departure_s + wait,
-                        synodic_s=synodic, warnings=warnings)
+    warnings = tuple(f"leg {k + 1}: {line}" for k, b in enumerate(legs)
+                     for line in conic_warnings(b.elements, c.radius_m, c.atmosphere_m,
+                                                c.soi_radius_m))
+    return tr, tuple(legs), warnings
 
 
 def _real_wait(dep: Body, arr: Body, w: np.ndarray, need_rad: float, synodic_s: float,

@@ -46,7 +46,7 @@ from .text import TEXT_FLOATS, FontCache, GlyphAtlas
 UInt8s = NDArray[np.uint8]
 
 #: Dark halo behind label glyphs (premultiplied in the shader).
-HALO_RGBA = (0.0, 0.0, 0.0, 0.8)
+HALO_RGBA = (0.0, 0.0, 0.0, 0.92)
 
 
 class _Stream:
@@ -351,7 +351,9 @@ class Renderer:
             tex.use(0)
             self.p_text["u_atlas"].value = 0
             stream.write(quads[:, :TEXT_FLOATS])
-            stream.vao.render(self._mgl.TRIANGLES, vertices=len(quads))
+            for layer in (0, 1):  # every halo, then every glyph's ink over them
+                self.p_text["u_layer"].value = layer
+                stream.vao.render(self._mgl.TRIANGLES, vertices=len(quads))
 
     def _texture(self, size: int, atlas: GlyphAtlas) -> Any:
         have = self._textures.get(size)

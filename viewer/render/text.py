@@ -2,7 +2,8 @@
 
 The font is DejaVu Sans (viewer/fonts, Bitstream Vera licence beside it), loaded from the
 package with importlib.resources. Each glyph is rasterised once per pixel size into an
-atlas whose red channel is the glyph's coverage and green channel a soft dark halo; the
+atlas whose red channel is the glyph's coverage and green channel a dark halo (opaque
+a pixel out from the ink, then fading); the
 text shader composites one over the other. Glyphs are placed on whole pixels and sampled
 texel for texel, so labels are as crisp in an export as in the window. The atlas is pure
 numpy; only ``upload`` touches GL.
@@ -27,7 +28,7 @@ BASE_CHARS = ("".join(chr(c) for c in range(32, 127))
               + "\u00b0\u00b2\u00b3\u00b7\u00b5\u00d7\u2212\u2248\u00b1\u2013\u2014\u2019"
               + "\u03b1\u03b2\u03b3\u03b4\u03b5\u03b8\u03bb\u03bc\u03bd\u03c0\u03c1\u03c3"
               + "\u03c9\u0394\u03a9")
-_PAD = 3
+_PAD = 4
 _ATLAS_WIDTH = 1024
 #: Floats per text vertex: x, y (px), u, v, r, g, b, a.
 TEXT_FLOATS = 8
@@ -72,8 +73,13 @@ class GlyphAtlas:
             glyph = Image.new("L", (w, h), 0)
             ImageDraw.Draw(glyph).text((_PAD - x0, _PAD - y0), ch, font=self.font, fill=255,
                                      anchor="ls")
-            halo_img = glyph.filter(ImageFilter.MaxFilter(3)).filter(ImageFilter.GaussianBlur(1.0))
-            bitmaps.append((ch, np.asarray(glyph), np.asarray(halo_img), x0 - _PAD, y0 - _PAD,
+            # The halo: opaque a pixel out from the ink, fading over the next two, so a
+            # bright orbit line crossing the text stops short of the glyphs.
+            near = np.asarray(glyph.filter(ImageFilter.MaxFilter(3)))
+            far = np.asarray(glyph.filter(ImageFilter.MaxFilter(5))
+                             .filter(ImageFilter.GaussianBlur(0.8)))
+            halo_img = np.maximum(near, far)
+            bitmaps.append((ch, np.asarray(glyph), halo_img, x0 - _PAD, y0 - _PAD,
                             float(self.font.getlength(ch))))
         # Shelf packing, in character order (deterministic).
         x = y = row_h = 0

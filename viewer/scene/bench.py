@@ -144,9 +144,8 @@ def _child_s(argv: list[str], repeat: int, pycache: str) -> tuple[float, float]:
 def bench_cold_start(repeat: int = 9) -> dict[str, Any]:
     """``perifocal check`` on a bundled scene in a fresh process, beside a fresh process
     that only imports numpy (the floor any numpy program pays)."""
-    from importlib.resources import files
-
     import tempfile
+    from importlib.resources import files
 
     scene = str(files("viewer") / "scenes" / "demo.toml")
     with tempfile.TemporaryDirectory(prefix="perifocal-pycache-") as pycache:

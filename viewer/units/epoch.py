@@ -188,7 +188,7 @@ def parse_epoch(text: object) -> Epoch:
             f"the time scale your source uses)")
     erfa = _erfa()
     if not (1 <= mo <= 12 and 1 <= d <= 31 and h <= 23 and mi <= 59 and s < 61.0):
-        raise EpochError(f"{text!r}: a field is out of range (month 1-12, day 1-31, "
+        raise EpochError(f"{text!r}: a field is out of range (allowed: month 1-12, day 1-31, "
                          f"hour 0-23, minute 0-59, second 0-59, 60 on a leap second)")
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", erfa.ErfaWarning)

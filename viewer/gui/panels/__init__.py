@@ -51,6 +51,11 @@ class Panels(Widgets):
     season: SeasonState = field(default_factory=SeasonState)
     #: The third-law plot shown: "log" (log T against log a) or "square" (T^2 vs a^3).
     law_view: str = "log"
+    #: What the transfer goes to: "body", or a typed "radius" or "altitude".
+    transfer_target: str = "body"
+    transfer_radius: str = ""
+    #: The via radius the plans use: the one typed, else ``default_via``'s.
+    via_shown: str = ""
     report: dict[str, Any] = field(default_factory=dict)
     _editor: Any = None
 
@@ -60,9 +65,8 @@ class Panels(Widgets):
         for name in ("buffers", "errors", "quick", "season"):
             setattr(self, name, getattr(fresh, name))
         self.transfer_from = self.transfer_to = None
-        self.transfer_via = ""
+        self.transfer_via = self.transfer_radius = ""
         self._editor = editor
-
 
     def draw(self, s: Session, size: tuple[int, int]) -> None:
         """All panels for one frame (call between imgui.new_frame and imgui.render)."""

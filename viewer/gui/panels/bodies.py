@@ -14,6 +14,7 @@ from ..session import Session
 from .widgets import (
     DIM,
     SHOW_LABELS,
+    px,
 )
 
 if TYPE_CHECKING:
@@ -25,7 +26,7 @@ def draw_bodies(p: Panels, s: Session, pos: tuple[float, float], size: tuple[flo
     if p.window("Bodies", pos, size):
         for k, b in enumerate(ed.scene.bodies):
             imgui.color_button(f"##c{k}", imgui.ImVec4(*b.color, 1.0),
-                               imgui.ColorEditFlags_.no_tooltip, imgui.ImVec2(12, 12))
+                               imgui.ColorEditFlags_.no_tooltip, imgui.ImVec2(px(12), px(12)))
             imgui.same_line()
             clicked, _ = imgui.selectable(f"{b.name}##b{k}", ed.selection == k)
             if clicked:
@@ -77,9 +78,12 @@ def draw_marks(p: Panels, s: Session, pos: tuple[float, float], size: tuple[floa
             imgui.text_colored(DIM, "Select a body to choose what is drawn.")
         else:
             imgui.text(f"Drawn for {b.name}:")
+            # The second column starts past the widest label of the first.
+            second = max(px(170), imgui.get_frame_height() + 3 * imgui.get_style().item_spacing.x
+                         + max(imgui.calc_text_size(lab).x for _, lab in SHOW_LABELS[::2]))
             for i, (flag, label) in enumerate(SHOW_LABELS):
                 if i % 2:
-                    imgui.same_line(170)
+                    imgui.same_line(second)
                 changed, on = imgui.checkbox(label, getattr(b.show, flag))
                 if changed:
                     ed.set_show(flag, on)
@@ -87,7 +91,7 @@ def draw_marks(p: Panels, s: Session, pos: tuple[float, float], size: tuple[floa
                                              imgui.ColorEditFlags_.no_inputs)
             if changed:  # one undo step per drag, however many frames it takes
                 ed.set_color(tuple(col), merge=True)  # type: ignore[arg-type]
-            imgui.set_next_item_width(150)
+            imgui.set_next_item_width(px(150))
             changed, width = imgui.slider_float("line width (px)", b.line_width_px, 0.5,
                                                 8.0, "%.1f px")
             if changed:
@@ -103,18 +107,18 @@ def _sectors(p: Panels, s: Session) -> None:
     assert b is not None and b.sweep is not None
     sw = b.sweep
     imgui.separator_text("Equal-time sectors")
-    imgui.set_next_item_width(120)
+    imgui.set_next_item_width(px(120))
     changed, count = imgui.input_int("count", sw.count)
     if changed:
         _try_sweep(p, ed, count=count)
     p.typed_field("sweep:interval", format_time(sw.interval_s),
-                  lambda text: ed.set_sweep(interval=text), 160, label="interval")
+                  lambda text: ed.set_sweep(interval=text), px(160), label="interval")
     p.report["sweep_interval_given"] = sw.interval_given
     if sw.interval_given:
         imgui.text_colored(DIM, "interval as written: it stays when the orbit changes")
     else:
         imgui.text_colored(DIM, "interval = period / count: it follows the orbit")
-    imgui.set_next_item_width(150)
+    imgui.set_next_item_width(px(150))
     changed, op = imgui.slider_float("opacity", sw.opacity, 0.0, 1.0, "%.2f")
     if changed:
         _try_sweep(p, ed, opacity=op)

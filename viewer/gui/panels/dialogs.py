@@ -3,17 +3,18 @@ export, render job) and the render job's progress."""
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from pathlib import Path
 from typing import TYPE_CHECKING
 
 from imgui_bundle import imgui
 
-from ...errors import UserInputError
 from ..actions import shortcut_rows
 from ..jobs import VIDEO_QUALITIES
 from ..session import Session
 from .widgets import (
     AMBER,
+    DIALOG_TEXT_W,
     DIM,
     GAP,
     _rect,
@@ -76,36 +77,100 @@ def unsaved_prompt(p: Panels, s: Session) -> None:
     imgui.end_popup()
 
 
-def save_as(p: Panels, s: Session) -> None:
-    if not p.modal("Save as", s.save_as_prompt):
+#: Height of the file chooser's lists, px at UI scale 1.
+CHOOSER_H = 260.0
+RECENT_W = 0.42  # the recent files' share of the dialog's width
+#: A list entry answers the second press of a double click too (it opens the file).
+TWICE = imgui.SelectableFlags_.allow_double_click
+
+
+def file_chooser(p: Panels, s: Session, dialog: str, act: Callable[[], bool]) -> bool:
+    """The recent files beside the chooser's folder (its sub-folders and .toml files): a
+    click names a file or shows a folder, a double click on a file runs ``act``. True
+    when ``act`` ran and succeeded (the dialog then closes)."""
+    chooser = s.chooser
+    if chooser is None:
+        return False
+    k = s.ui_scale
+    width, height = DIALOG_TEXT_W * k, CHOOSER_H * k
+    done = False
+    imgui.begin_group()
+    imgui.text_colored(DIM, "Recent")
+    if imgui.begin_child("recent", imgui.ImVec2(RECENT_W * width, height),
+                         imgui.ChildFlags_.borders):
+        if not s.recent:
+            imgui.text_colored(DIM, "none yet")
+        for i, path in enumerate(s.recent):
+            named = getattr(s, f"{dialog}_text") == path
+            clicked, _ = imgui.selectable(f"{Path(path).name}##recent{i}", named, TWICE)
+            p.report["rects"][f"recent:{i}"] = _rect()
+            if imgui.is_item_hovered():
+                imgui.set_tooltip(path)
+            if clicked:  # a double click opens what its first click named
+                setattr(s, f"{dialog}_text", path)
+                if named and imgui.is_mouse_double_clicked(0):
+                    done = act()
+    imgui.end_child()
+    imgui.end_group()
+    imgui.same_line()
+    imgui.begin_group()
+    if p.button(f"Up##{dialog}"):
+        s.chooser_up(dialog)
+    imgui.same_line()
+    imgui.text_colored(DIM, str(chooser.folder))
+    p.report["chooser"] = {"folder": str(chooser.folder), "problem": chooser.problem,
+                           "entries": [e.text for e in chooser.entries],
+                           "recent": list(s.recent)}
+    if imgui.begin_child("folder", imgui.ImVec2((1.0 - RECENT_W) * width - GAP * k,
+                                                height - imgui.get_frame_height_with_spacing()),
+                         imgui.ChildFlags_.borders):
+        if chooser.problem:
+            p.error_lines([chooser.problem])
+        elif not chooser.entries:
+            imgui.text_colored(DIM, "no folders or .toml files here")
+        for entry in list(chooser.entries):
+            named = getattr(s, f"{dialog}_text") == str(entry.path)
+            clicked, _ = imgui.selectable(f"{entry.text}##entry", named, TWICE)
+            p.report["rects"][f"entry:{entry.text}"] = _rect()
+            if clicked:
+                s.choose(entry, dialog)
+                if named and not entry.folder and imgui.is_mouse_double_clicked(0):
+                    done = act()
+    imgui.end_child()
+    imgui.end_group()
+    return done
+
+
+def _path_dialog(p: Panels, s: Session, title: str, dialog: str, ok: str,
+                 act: Callable[[], bool], kept: str) -> None:
+    """A dialog for a scene file (``dialog`` "open" or "save_as"): the typed path, the
+    file chooser, the problems of the last try (one line each), OK and Cancel."""
+    if not p.modal(title, getattr(s, f"{dialog}_prompt")):
         return
-    imgui.text("File name (.toml):")
-    entered, s.save_as_text = p.path_input("saveas", s.save_as_text)
-    ok, cancel = p.ok_cancel("Save")
-    if ok or entered:
-        try:
-            path = s.editor.save(Path(s.save_as_text).expanduser())
-            s.message = f"saved {path}"
-            s.save_as_prompt = False
-            imgui.close_current_popup()
-        except UserInputError as err:
-            s.message = "not saved: " + "; ".join(err.problems)
-    if cancel:
-        s.save_as_prompt = False
+    imgui.text("Scene file (.toml):")
+    entered, text = p.path_input(dialog, getattr(s, f"{dialog}_text"))
+    setattr(s, f"{dialog}_text", text)
+    picked = file_chooser(p, s, dialog, act)
+    errors = getattr(s, f"{dialog}_errors")
+    p.report[f"{dialog}_errors"] = list(errors)
+    if errors:
+        imgui.text_colored(AMBER, kept)
+        p.error_lines(errors)
+    if picked:
         imgui.close_current_popup()
-    imgui.end_popup()
+        imgui.end_popup()
+        return
+    p.end_dialog(s, f"{dialog}_prompt", ok, entered, act)
+
+
+def save_as(p: Panels, s: Session) -> None:
+    _path_dialog(p, s, "Save as", "save_as", "Save", s.save_as,
+                 "Not saved; the file is unchanged:")
 
 
 def open_dialog(p: Panels, s: Session) -> None:
-    if not p.modal("Open a scene", s.open_prompt):
-        return
-    imgui.text("Scene file (.toml):")
-    entered, s.open_text = p.path_input("open", s.open_text)
-    p.report["open_errors"] = list(s.open_errors)
-    if s.open_errors:
-        imgui.text_colored(AMBER, "Not opened; the current scene is kept:")
-        p.error_lines(s.open_errors)
-    p.end_dialog(s, "open_prompt", "Open", entered, s.open_scene)
+    _path_dialog(p, s, "Open a scene", "open", "Open", s.open_scene,
+                 "Not opened; the current scene is kept:")
 
 
 def still_dialog(p: Panels, s: Session) -> None:

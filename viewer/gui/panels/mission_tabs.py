@@ -9,18 +9,27 @@ from imgui_bundle import imgui
 
 from ..editor import EditRefused
 from ..mission import (
+    KINDS,
     MAX_E,
+    TransferPlan,
     body_warnings,
     circular_bodies,
+    default_via,
+    plan_to_radius,
     plan_transfer,
     quick_answer_rows,
+    side_by_side_rows,
+    transfer_pair,
     transfer_rows,
 )
 from ..session import Session
 from .widgets import (
     AMBER,
     DIM,
+    RED,
     _rect,
+    label_w,
+    px,
 )
 
 if TYPE_CHECKING:
@@ -46,11 +55,11 @@ def quick_answers(p: Panels, s: Session) -> None:
     imgui.align_text_to_frame_padding()
     imgui.text("from")
     imgui.same_line()
-    q.nu_from = p.live_input("quick:nu_from", q.nu_from, 110)
+    q.nu_from = p.live_input("quick:nu_from", q.nu_from, px(110))
     imgui.same_line()
     imgui.text("to")
     imgui.same_line()
-    q.nu_to = p.live_input("quick:nu_to", q.nu_to, 110)
+    q.nu_to = p.live_input("quick:nu_to", q.nu_to, px(110))
     if "flight" in problems:
         p.refusal(problems["flight"])
     p.table("q-flight", rows.get("flight", ()))
@@ -75,62 +84,147 @@ def quick_answers(p: Panels, s: Session) -> None:
     p.mission_warnings(body_warnings(ed.scene, k))
 
 
+#: What a transfer goes to: a circular body of the scene, or a typed radius or altitude.
+TARGETS = (("body", "a body"), ("radius", "a radius"), ("altitude", "an altitude"))
+
+
+def _plans(p: Panels, s: Session) -> tuple[TransferPlan | EditRefused, TransferPlan | EditRefused]:
+    """The Hohmann and the bi-elliptic plan to the chosen target (or their refusals)."""
+    scene, t = s.editor.scene, s.clock.t_s
+    out: list[TransferPlan | EditRefused] = []
+    for kind in KINDS:
+        try:
+            if p.transfer_target == "body":
+                assert p.transfer_from is not None and p.transfer_to is not None
+                out.append(plan_transfer(scene, p.transfer_from, p.transfer_to, kind,
+                                         p.via_shown, t))
+            else:
+                assert p.transfer_from is not None
+                out.append(plan_to_radius(scene, p.transfer_from, p.transfer_radius,
+                                          p.transfer_target == "altitude", kind,
+                                          p.via_shown, t))
+        except EditRefused as err:
+            out.append(err)
+    return out[0], out[1]
+
+
 def transfer(p: Panels, s: Session) -> None:
     ed = s.editor
     scene = ed.scene
     circles = circular_bodies(scene)
     imgui.push_text_wrap_pos(0.0)
-    imgui.text("Between two circular orbits in one plane, departing now.")
+    imgui.text("From a circular orbit to another circle in its plane, departing now.")
     imgui.pop_text_wrap_pos()
-    if len(circles) < 2:
+    if not circles:
         imgui.push_text_wrap_pos(0.0)
-        imgui.text_colored(AMBER, f"This needs two bodies on circles (e below {MAX_E:g}); "
-                           f"the scene has {len(circles)}. Add one (Bodies > Add makes a "
-                           "circle) and set its a.")
+        imgui.text_colored(AMBER, f"This needs a body on a circle (e below {MAX_E:g}); the "
+                           "scene has none. Add one (Bodies > Add makes a circle) and set its a.")
         imgui.pop_text_wrap_pos()
         return
-    if p.transfer_from not in circles:
-        p.transfer_from = ed.selection if ed.selection in circles else circles[0]
-    if p.transfer_to not in circles or p.transfer_to == p.transfer_from:
-        p.transfer_to = next(k for k in circles if k != p.transfer_from)
+    p.transfer_from, p.transfer_to = transfer_pair(scene, p.transfer_from, p.transfer_to)
     if imgui.begin_table("tr-bodies", 2, imgui.TableFlags_.sizing_stretch_prop):
-        imgui.table_setup_column("w", imgui.TableColumnFlags_.width_fixed, 60)
+        imgui.table_setup_column("w", imgui.TableColumnFlags_.width_fixed,
+                                 label_w(60, ("from", "to", "via")))
         imgui.table_setup_column("v", imgui.TableColumnFlags_.width_stretch)
-        for label, attr in (("from", "transfer_from"), ("to", "transfer_to")):
-            imgui.table_next_row()
-            imgui.table_next_column()
-            imgui.align_text_to_frame_padding()
-            imgui.text(label)
-            imgui.table_next_column()
-            setattr(p, attr, p.body_combo(label, s, getattr(p, attr), circles))
+        imgui.table_next_row()
+        imgui.table_next_column()
+        imgui.align_text_to_frame_padding()
+        imgui.text("from")
+        imgui.table_next_column()
+        p.transfer_from = p.body_combo("from", s, p.transfer_from, circles)
+        imgui.table_next_row()
+        imgui.table_next_column()
+        imgui.align_text_to_frame_padding()
+        imgui.text("to")
+        imgui.table_next_column()
+        for i, (target, label) in enumerate(TARGETS):
+            if i:
+                imgui.same_line()
+            if imgui.radio_button(f"{label}##target", p.transfer_target == target):
+                p.transfer_target = target
+            p.report["rects"][f"target:{target}"] = _rect()
+        imgui.table_next_row()
+        imgui.table_next_column()
+        imgui.table_next_column()
+        if p.transfer_target == "body":
+            others = [k for k in circles if k != p.transfer_from]
+            if others:
+                p.transfer_to = p.body_combo("to", s, p.transfer_to, others)
+            else:
+                imgui.text_colored(AMBER, "no other circular body: choose a radius")
+        else:
+            p.transfer_radius = p.live_input("transfer:radius", p.transfer_radius, -1)
+            if not p.transfer_radius.strip():
+                imgui.text_colored(DIM, f'e.g. "42164 km"; a bare number is in '
+                                   f"{scene.length_unit}")
+        imgui.table_next_row()
+        imgui.table_next_column()
+        imgui.align_text_to_frame_padding()
+        imgui.text("via")
+        imgui.table_next_column()
+        assert p.transfer_from is not None
+        radius = "" if p.transfer_target == "body" else p.transfer_radius
+        p.via_shown = p.transfer_via or default_via(
+            scene, p.transfer_from, p.transfer_to, radius, p.transfer_target == "altitude")
+        p.transfer_via = p.live_input("transfer:via", p.transfer_via, -1, p.via_shown)
         imgui.end_table()
-    if imgui.radio_button("Hohmann", p.transfer_kind == "hohmann"):
-        p.transfer_kind = "hohmann"
-    p.report["rects"]["kind:hohmann"] = _rect()
-    imgui.same_line()
-    if imgui.radio_button("bi-elliptic, via", p.transfer_kind == "bi-elliptic"):
-        p.transfer_kind = "bi-elliptic"
-    p.report["rects"]["kind:bi-elliptic"] = _rect()
-    imgui.same_line()
-    imgui.begin_disabled(p.transfer_kind != "bi-elliptic")
-    if not p.transfer_via:
-        r = max(float(scene.bodies[k].elements.a) for k in (p.transfer_from,
-                                                             p.transfer_to))
-        p.transfer_via = f"{3 * r / 1e3:.0f} km"
-    p.transfer_via = p.live_input("transfer:via", p.transfer_via, -1)
-    imgui.end_disabled()
-    t = s.clock.t_s
-    try:
-        plan = plan_transfer(scene, p.transfer_from, p.transfer_to,
-                             p.transfer_kind, p.transfer_via, t)
-    except EditRefused as err:
-        for line in err.problems:
+    if p.transfer_target == "body" and p.transfer_to is None:
+        p.report["transfer"] = None
+        return
+    plans = dict(zip(KINDS, _plans(p, s), strict=True))
+    side = side_by_side_rows(plans["hohmann"], plans["bi-elliptic"])
+    p.report["side_by_side"] = [list(r) for r in side]
+    imgui.separator_text("Side by side (bi-elliptic through the via radius)")
+    if imgui.begin_table("tr-side", 3, imgui.TableFlags_.row_bg
+                         | imgui.TableFlags_.sizing_stretch_prop):
+        imgui.table_setup_column("", imgui.TableColumnFlags_.width_fixed,
+                                 label_w(130, (row[0] for row in side)))
+        imgui.table_setup_column("Hohmann")
+        imgui.table_setup_column("bi-elliptic")
+        imgui.table_headers_row()
+        for row in side:
+            imgui.table_next_row()
+            for i, text in enumerate(row):
+                imgui.table_next_column()
+                if i == 0:
+                    imgui.text_colored(DIM, text)
+                elif text.startswith("refused: "):
+                    imgui.push_text_wrap_pos(0.0)
+                    imgui.text_colored(RED, text)
+                    imgui.pop_text_wrap_pos()
+                else:
+                    imgui.text(text)
+        imgui.end_table()
+    imgui.align_text_to_frame_padding()
+    imgui.text("details of")
+    for kind, label in (("hohmann", "Hohmann"), ("bi-elliptic", "bi-elliptic")):
+        imgui.same_line()
+        if imgui.radio_button(label, p.transfer_kind == kind):
+            p.transfer_kind = kind
+        p.report["rects"][f"kind:{kind}"] = _rect()
+    plan = plans[p.transfer_kind]
+    if isinstance(plan, EditRefused):
+        for line in plan.problems:
             p.refusal(line)
         p.report["transfer"] = None
         return
+    _plan_details(p, s, plan)
+
+
+def _plan_details(p: Panels, s: Session, plan: TransferPlan) -> None:
+    """The burns, totals, phasing and legs of one plan, and its buttons."""
+    ed, scene, t = s.editor, s.editor.scene, s.clock.t_s
     burns, rows = transfer_rows(plan, scene)
     p.report["transfer"] = {"burns": [list(r) for r in burns],
                                **{k: [list(r) for r in v] for k, v in rows.items()}}
+    if p.button("Add to the scene"):
+        idx = ed.add_bodies(plan.legs, f"transfer {plan.from_name} to {plan.to_name}")
+        names = ", ".join(ed.scene.bodies[i].name for i in idx)
+        s.message = f"added {names} (Ctrl+Z undoes)"
+    if plan.next_window_s is not None:
+        imgui.same_line()
+        if p.button("Jump to the next departure window"):
+            s.clock.t_s = plan.next_window_s
     imgui.text_colored(DIM, f"departs at {scene.epoch.plus_seconds(t).iso()}")
     imgui.separator_text("Burns (dv: + prograde, - retrograde)")
     if imgui.begin_table("tr-burns", 4, imgui.TableFlags_.row_bg
@@ -145,13 +239,6 @@ def transfer(p: Panels, s: Session) -> None:
                 imgui.text(text)
         imgui.end_table()
     p.table("tr-totals", rows["totals"], 150)
-    if p.button("Add to the scene"):
-        idx = ed.add_bodies(plan.legs, f"transfer {plan.from_name} to {plan.to_name}")
-        names = ", ".join(ed.scene.bodies[i].name for i in idx)
-        s.message = f"added {names} (Ctrl+Z undoes)"
-    imgui.same_line()
-    if p.button("Jump to the next departure window") and plan.next_window_s is not None:
-        s.clock.t_s = plan.next_window_s
     imgui.separator_text("Phasing with the target")
     p.table("tr-phasing", rows["phasing"], 150)
     imgui.separator_text("Transfer orbit" if len(plan.legs) == 1 else "Legs")

@@ -27,16 +27,7 @@ def draw(p: Panels, s: Session, pos: tuple[float, float], size: tuple[float, flo
             r = body_readout(ed.scene, k, s.clock.t_s)
             p.report["readout"] = [list(row) for row in r.rows]
             p.report["values"] = r.values
-            if imgui.begin_table("readout", 2, imgui.TableFlags_.row_bg):
-                imgui.table_setup_column("q", imgui.TableColumnFlags_.width_fixed, 170)
-                imgui.table_setup_column("v", imgui.TableColumnFlags_.width_stretch)
-                for label, text in r.rows:
-                    imgui.table_next_row()
-                    imgui.table_next_column()
-                    imgui.text_colored(DIM, label)
-                    imgui.table_next_column()
-                    imgui.text(text)
-                imgui.end_table()
+            p.table("readout", tuple(r.rows), 170)
             for w in r.warnings:
                 imgui.push_text_wrap_pos(0.0)
                 imgui.text_colored(AMBER, "warning: " + w)

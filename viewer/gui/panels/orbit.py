@@ -16,6 +16,7 @@ from .widgets import (
     LOCKS_PER_LINE,
     ORBIT_TABS,
     _rect,
+    label_w,
 )
 
 if TYPE_CHECKING:
@@ -62,6 +63,12 @@ def _elements(p: Panels, s: Session) -> None:
         if imgui.radio_button(f"{label}##lock", ed.hold == hold):
             ed.hold = hold
         p.report["rects"][f"lock:{hold}"] = _rect()
+    # What the lock keeps: the last edit's in words, else the natural partners.
+    kept = ed.kept or ("natural partner: a with e, periapsis with apoapsis"
+                       if ed.hold == "auto" else "")
+    p.report["kept"] = kept
+    if kept:
+        imgui.text_colored(DIM, kept)
     imgui.separator_text("Elements")
     _rows(p, s, k, ELEMENT_ROWS)
     imgui.separator_text("The same size as radius, altitude, period")
@@ -89,7 +96,8 @@ def _follows_ephemeris(p: Panels, s: Session, k: int) -> None:
 def _rows(p: Panels, s: Session, k: int, rows: tuple[tuple[str, str], ...]) -> None:
     if not imgui.begin_table(f"rows{rows[0][0]}", 2, imgui.TableFlags_.sizing_stretch_prop):
         return
-    imgui.table_setup_column("what", imgui.TableColumnFlags_.width_fixed, 225)
+    imgui.table_setup_column("what", imgui.TableColumnFlags_.width_fixed,
+                             label_w(225, (label for _, label in rows)))
     imgui.table_setup_column("value", imgui.TableColumnFlags_.width_stretch)
     for name, label in rows:
         imgui.table_next_row()
@@ -104,7 +112,8 @@ def _rows(p: Panels, s: Session, k: int, rows: tuple[tuple[str, str], ...]) -> N
 def _forms(p: Panels, s: Session, k: int) -> None:
     if not imgui.begin_table("forms", 3, imgui.TableFlags_.sizing_stretch_same):
         return
-    imgui.table_setup_column("what", imgui.TableColumnFlags_.width_fixed, 90)
+    imgui.table_setup_column("what", imgui.TableColumnFlags_.width_fixed,
+                             label_w(90, [label for label, _, _ in FORM_ROWS] + ["period"]))
     imgui.table_setup_column("radius", imgui.TableColumnFlags_.width_stretch)
     imgui.table_setup_column("altitude", imgui.TableColumnFlags_.width_stretch)
     imgui.table_next_row()

@@ -66,6 +66,18 @@ def scene_area(size: tuple[int, int], scale: float = 1.0,
     return x0, top, x1 - x0, bottom - top
 
 
+def px(n: float) -> float:
+    """A size given in pixels at UI scale 1, at the panels' scale now (their font's)."""
+    return n * imgui.get_font_size() / theme.PANEL_FONT_PX
+
+
+def label_w(base: float, texts: Any) -> float:
+    """The width of a column of labels: ``base`` px at UI scale 1, wider where a label
+    needs it, so that no label is cut short at any UI scale."""
+    pad = 2.0 * imgui.get_style().cell_padding.x
+    return max(px(base), max((imgui.calc_text_size(t).x for t in texts), default=0.0) + pad)
+
+
 def _rect() -> tuple[float, float, float, float]:
     a, b = imgui.get_item_rect_min(), imgui.get_item_rect_max()
     return (a.x, a.y, b.x, b.y)
@@ -145,7 +157,8 @@ class Widgets:
     def table(name: str, rows: tuple[tuple[str, str], ...], first_w: float = 165) -> None:
         if not rows or not imgui.begin_table(name, 2, imgui.TableFlags_.row_bg):
             return
-        imgui.table_setup_column("q", imgui.TableColumnFlags_.width_fixed, first_w)
+        imgui.table_setup_column("q", imgui.TableColumnFlags_.width_fixed,
+                                 label_w(first_w, (label for label, _ in rows)))
         imgui.table_setup_column("v", imgui.TableColumnFlags_.width_stretch)
         for label, text in rows:
             imgui.table_next_row()
@@ -161,10 +174,12 @@ class Widgets:
         imgui.text_colored(RED, "refused: " + text)
         imgui.pop_text_wrap_pos()
 
-    def live_input(self, name: str, value: str, width: float) -> str:
-        """A live text input (the answers follow each keystroke); its rect is reported."""
+    def live_input(self, name: str, value: str, width: float, hint: str = "") -> str:
+        """A live text input (the answers follow each keystroke), showing ``hint`` while
+        empty; its rect is reported."""
         imgui.set_next_item_width(width)
-        _, value = imgui.input_text(f"##{name}", value, imgui.InputTextFlags_.auto_select_all)
+        _, value = imgui.input_text_with_hint(f"##{name}", hint, value,
+                                              imgui.InputTextFlags_.auto_select_all)
         self.report["rects"][name] = _rect()
         return value
 
