@@ -213,13 +213,18 @@ class ViewerWindow:
 
     def _shortcut(self, symbol: int, mods: int) -> None:
         """Run the action bound to this key (``viewer.gui.actions``). Keys with Ctrl work
-        everywhere; plain keys only while no field or dialog takes the keyboard."""
+        everywhere, function keys everywhere but in a dialog (they type no text, and a
+        field that has just taken Enter may still hold the keyboard for a frame); other
+        plain keys only while no field or dialog takes the keyboard."""
         key = self._pyglet.window.key
         s = self.session
         ctrl = bool(mods & key.MOD_CTRL)
-        if not ctrl and (self._imgui.get_io().want_text_input or s.any_dialog):
+        name = key.symbol_string(symbol)
+        function_key = name[:1] == "F" and name[1:].isdigit()
+        typing = self._imgui.get_io().want_text_input and not function_key
+        if not ctrl and (typing or s.any_dialog):
             return
-        act = action_for(key.symbol_string(symbol), ctrl, bool(mods & key.MOD_SHIFT))
+        act = action_for(name, ctrl, bool(mods & key.MOD_SHIFT))
         if act is not None and act.enabled(s):
             act.run(s)
 
