@@ -186,7 +186,10 @@ def scene_at_show_time(scene: Scene, show_s: float, t_s: float | None = None) ->
         for b in scene.bodies:
             fade = MarkOpacity(**{m: mark_opacity(scene, b.name, m, show_s) for m in MARKS})
             bodies.append(b if fade == b.fade else replace(b, fade=fade))
-        changes["bodies"] = tuple(bodies)
+        # The scene's own tuple when no fade changes a body: frames keep what does not
+        # change between them by the bodies' identity (geometry.frame.StaticCache).
+        unchanged = all(a is b for a, b in zip(bodies, scene.bodies, strict=True))
+        changes["bodies"] = scene.bodies if unchanged else tuple(bodies)
     return replace(scene, **changes)  # type: ignore[arg-type]
 
 
