@@ -76,6 +76,9 @@ class Sweep:
     #: follows every change of the orbit or of the count (an ellipse's sectors then tile
     #: the whole orbit).
     interval_given: bool = True
+    #: "all": every sector is drawn at every time; "swept": a sector appears once the
+    #: body has swept it whole (``swept_until``), one by one as the show runs.
+    reveal: str = "all"
 
     def bounds_s(self) -> list[tuple[float, float]]:
         """Scene-time bounds (t0, t1) of each sector, k = 0..count-1."""
@@ -257,6 +260,20 @@ class CameraKey:
     dome_distance_m: float | None = None
     dome_elevation_rad: float | None = None
     dome_tilt_rad: float | None = None
+    #: "eased": the camera comes to rest at this key; "smooth": it passes through it
+    #: on a curve through the neighbouring keys (spec.CAMERA_PATHS).
+    path: str = "eased"
+
+
+@dataclass(frozen=True)
+class RateKey:
+    """A time-rate keyframe (``[[timeline.pace]]``): at ``at_s`` seconds into the show the
+    show runs at ``rate`` scene seconds per second of show, reached from the rate before
+    (the previous key's, or ``[timeline] rate`` before the first key) with ``ease``."""
+
+    at_s: float
+    rate: float
+    ease: str = "in-out"
 
 
 @dataclass(frozen=True)
@@ -300,6 +317,7 @@ class Timeline:
     camera_keys: tuple[CameraKey, ...] = ()
     fades: tuple[Fade, ...] = ()
     captions: tuple[Caption, ...] = ()
+    rate_keys: tuple[RateKey, ...] = ()
 
     def show_time_of_frame(self, k: Any) -> Any:
         """Seconds into the show of frame k."""
