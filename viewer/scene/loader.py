@@ -1093,6 +1093,7 @@ class _Loader:
                 target=self._target(item, None) if "target" in item else None,
                 width_m=self._positive(item, "width", path),
                 distance_m=self._positive(item, "distance", path), fov_rad=fov,
+                path=r.choice(item, "path", path, spec.CAMERA_PATHS) or "eased",
                 **self._dome_framing(item, path)))
         times = [k.at_s for k in keys]
         if times != sorted(times) or len(set(times)) != len(times):

@@ -214,6 +214,11 @@ RENDER = Key("render", "table", "image settings", keys=(
 
 #: Ways a keyframed value moves from one key to the next.
 EASES = ("in-out", "linear", "in", "out")
+#: How the camera moves through a keyframe: "eased" comes to rest at the key (the ease
+#: of each leg), "smooth" passes through it on a curve through the neighbouring keys.
+CAMERA_PATHS = ("eased", "smooth")
+#: How a sweep's sectors appear: "all" at once, or "swept" one by one as the body sweeps.
+REVEALS = ("all", "swept")
 #: The marks of a body whose opacity a fade can change.
 FADE_MARKS = ("all", *MARK_NAMES)
 CAPTION_POSITIONS = ("bottom", "top", "center", "bottom-left", "bottom-right", "top-left",
@@ -224,6 +229,9 @@ CAMERA_KEY = Key("camera", "tables", "camera keyframes: at a time of the show, t
     Key("at", "show_time", "the time into the show of this keyframe", required=True),
     Key("ease", "choice", "how values move from the previous keyframe to this one",
         "in-out", EASES),
+    Key("path", "choice", "eased: the camera comes to rest at this keyframe; smooth: it "
+        "passes through it without stopping, on a curve through the neighbouring keyframes",
+        "eased", CAMERA_PATHS),
     *(k for k in CAMERA.keys),
 ))
 
