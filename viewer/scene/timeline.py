@@ -126,7 +126,8 @@ def camera_at(scene: Scene, show_s: float, t_s: float | None = None) -> Camera:
 # smooth keyframe runs linearly in time (its ease is not used). Values are interpolated
 # where they move evenly: elevation, azimuth (unwrapped the short way from key to key),
 # fov, dome elevation and tilt as they are; width, distance and dome distance as
-# logarithms (a zoom feels even); the target as a point in space.
+# logarithms (a zoom feels even); the target as a point in space, except on a leg whose
+# two keyframes look at the same target, which follows that target exactly.
 
 
 def _passes(paths: list[str], k: int) -> bool:
@@ -167,7 +168,7 @@ def _smooth_camera(scene: Scene, keys: list[tuple[float, str, Camera]], paths: l
     v = h00 * p[j - 1] + h10 * h * tangent(j - 1) + h01 * p[j] + h11 * h * tangent(j)
     a, b = keys[j - 1][2], keys[j][2]
     span = [keys[k][2] for k in range(lo, hi + 1)]
-    same_target = all(c.target == a.target for c in span)
+    same_target = a.target == b.target  # a leg between two keys on one target follows it
     same_look = all(c.look == a.look for c in span) and a.look in ("top", "edge")
     return Camera(
         projection=a.projection if u < 1.0 else b.projection,
