@@ -489,3 +489,16 @@ def test_the_writer_tables_append_as_plain_keyframe_tables(scene) -> None:
     for caption in scene.timeline.captions:
         assert load_scene_text(edit_text(SHOW, {"timeline.caption[0]": writer.caption_table(
             caption)})).timeline.captions == scene.timeline.captions
+
+
+def test_the_svg_diagram_draws_the_sectors_swept_by_its_time(show_file: Path,
+                                                             tmp_path: Path) -> None:
+    scene = load_scene_text(SHOW)
+    sw = scene.bodies[0].sweep
+    counts = []
+    for k in (1, 4):
+        out = tmp_path / f"at{k}.svg"
+        t_d = (sw.start_s + k * sw.interval_s) / DAY_S
+        assert main(["render", str(show_file), "--at", f"{t_d!r} d", "-o", str(out)]) == 0
+        counts.append(out.read_text().count('class="sector"'))
+    assert counts == [1, 4]
