@@ -33,7 +33,7 @@ def _arcs(body: Body, camera: Camera | None = None):
     shape = ConicShape.of(body.elements)
     batch = CurveBatch.empty()
     params = _sector_params(body, shape)
-    for u0, u1, _t0, _t1 in params:
+    for u0, u1, _t0, _t1, _whole in params:
         batch.add(shape, u0, u1, 0.2)
     tess = tessellate(batch, view)
     return view, params, [tess.arc(k) for k in range(len(params))]
@@ -58,7 +58,7 @@ ORBITS = {
 def test_sector_arcs_start_and_end_where_the_body_is_at_the_sweep_times(orbit):
     body = _body(ORBITS[orbit], start_d=-45.0, interval_d=30.0, count=4)
     _view, params, arcs = _arcs(body)
-    for (_u0, _u1, t0, t1), arc in zip(params, arcs, strict=True):
+    for (_u0, _u1, t0, t1, _whole), arc in zip(params, arcs, strict=True):
         r0, _ = state_from_elements(body.elements_at(t0))
         r1, _ = state_from_elements(body.elements_at(t1))
         scale = float(np.linalg.norm(r0))

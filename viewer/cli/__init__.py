@@ -32,6 +32,7 @@ COMMANDS: dict[str, str] = {
     "transfer": "transfer",
     "lambert": "lambert",
     "porkchop": "porkchop",
+    "plot": "plot",
     "import": "import_",
     "ephemeris": "ephemeris",
     "bench": "bench",

@@ -22,6 +22,8 @@ from . import cluster_options
 EXAMPLES = """examples:
   perifocal render scenes/demo.toml -o demo.png
   perifocal render scenes/demo.toml --at "120 d" -o day120.jpg
+  perifocal render scenes/laws.toml --show-at 0:12 -o twelve-seconds-in.png
+  perifocal render scenes/laws.toml --show-at 121/30 -o frame121.png   # = --frames 121:122
   perifocal render scenes/laws.toml --at "2030-06-01T00:00:00 TDB" --size 3840x2160 -o laws.png
   perifocal render scenes/demo.toml --transparent -o overlay.png
   perifocal render scenes/demo.toml -o diagram.svg
@@ -36,6 +38,10 @@ EXAMPLES = """examples:
 
 --at is an offset from the scene epoch ("90 d", "-15 d"; a bare number is in the scene's
 time unit) or an epoch ("2030-06-01T00:00:00 TDB"); the default is the timeline start.
+--show-at is a time into the show instead (camera keyframes, fades, captions, pace and the
+clock as the show has them there): seconds ("12 s"; a bare number is seconds), m:ss
+("1:05"), or a frame as frame/fps ("121/30") or "frame 121"; the still is the very
+picture of that frame of --frames. --at and --show-at exclude each other.
 --frames A:B renders frames A..B-1; files are numbered by absolute frame, so shards
 rendered on several machines (--frames 0:3000, 3000:6000, ...) fill one folder.
 --size overrides [render] size (dome: HxH, panorama: 2HxH from the render height H).
@@ -64,6 +70,8 @@ def add_parser(sub: Any) -> None:
                    "sequence, or a video (.mp4)")
     p.add_argument("--at", metavar="T", help="scene time of a still: an offset (\"90 d\") or "
                    "an epoch; default the timeline start")
+    p.add_argument("--show-at", metavar="T", help="time into the show of a still: \"12 s\", "
+                   "\"1:05\" (m:ss), \"121/30\" or \"frame 121\" (frame 121 of the show)")
     p.add_argument("--frames", metavar="A:B", help="timeline frames A..B-1 (sequence, video)")
     p.add_argument("--size", metavar="WxH", help="image size in pixels, e.g. 1920x1080")
     p.add_argument("--transparent", action="store_true",
@@ -120,6 +128,26 @@ def parse_time(text: str | None, scene: Any) -> float:
         return parse_scene_time(text, scene.epoch, scene.time_unit or "d")
     except (EpochError, QuantityError) as err:
         raise UserInputError("--at", f"{err}; {scene_time_hint()}") from None
+
+
+def parse_show_at(text: str, scene: Any) -> float:
+    """Seconds into the show from --show-at (``viewer.units.forms.parse_show_time``),
+    within the show; UserInputError naming --show-at."""
+    from ..units.forms import ShowTimeError, parse_show_time
+
+    tl = scene.timeline
+    try:
+        return parse_show_time(text, tl.duration_s, fps=tl.fps)
+    except ShowTimeError as err:
+        raise UserInputError("--show-at", str(err)) from None
+
+
+def still_time(args: argparse.Namespace, scene: Any) -> tuple[float, float | None]:
+    """(scene time, show time or None) of a still: --show-at T into the show, or --at."""
+    if args.show_at is None:
+        return parse_time(args.at, scene), None
+    show_s = parse_show_at(args.show_at, scene)
+    return float(scene.timeline.scene_time_at(show_s)), show_s
 
 
 def output_format(path: str, transparent: bool) -> str:
@@ -203,6 +231,12 @@ def run(args: argparse.Namespace) -> int:
     if kind != "still" and args.at is not None:
         raise UserInputError("--at", "--at picks the time of a still; sequences and videos "
                              "follow the timeline (use --frames A:B)")
+    if args.show_at is not None and args.at is not None:
+        raise UserInputError("--show-at", "--at (scene time) and --show-at (time into the "
+                             "show) both pick the time of a still; give one")
+    if kind != "still" and args.show_at is not None:
+        raise UserInputError("--show-at", "--show-at picks the time of a still; sequences "
+                             "and videos follow the timeline (use --frames A:B)")
     if args.resume and kind != "sequence":
         raise UserInputError("--resume", "--resume applies to a frame sequence (-o frames/)")
     if args.bits == 16 and fmt != "png":
@@ -237,15 +271,15 @@ def run(args: argparse.Namespace) -> int:
     if fmt == "svg":
         from ..export.svg import write_svg
 
-        t_s = parse_time(args.at, scene)
-        write_svg(scene, t_s, args.output, out_size)
+        t_s, show_s = still_time(args, scene)
+        write_svg(scene, t_s, args.output, out_size, show_s=show_s)
         print(f"wrote {args.output} ({out_size[0]}x{out_size[1]}, scene time "
               f"{t_s / 86400.0:.6g} d)")
         return 0
     with _Frames(scene, out_size, spec, args.transparent) as frames:
         if kind == "still":
-            t_s = parse_time(args.at, scene)
-            rgba = frames.at(t_s)
+            t_s, show_s = still_time(args, scene)
+            rgba = frames.at(t_s, show_s)
             write_still(rgba, args.output, fmt, args.transparent, args.bits)
             h, w = rgba.shape[:2]
             print(f"wrote {args.output} ({w}x{h}, scene time {t_s / 86400.0:.6g} d)")

@@ -192,13 +192,15 @@ def _population(view: View, pop: object, t_s: float) -> str:
 
 
 def write_svg(scene: Scene, t_s: float, path: str | Path,
-              size_px: tuple[int, int] | None = None) -> None:
+              size_px: tuple[int, int] | None = None, show_s: float | None = None) -> None:
     """Write the SVG diagram of ``scene`` at scene time ``t_s`` atomically (with the
-    show's camera, fades, captions and clock at the show time that t_s falls at)."""
+    show's camera, fades, captions and clock at ``show_s`` into the show, by default the
+    show time that t_s falls at)."""
     from ..render.text import FontCache
     from ..scene.timeline import overlay_at, scene_at_show_time, show_time_of
 
-    show_s = show_time_of(scene, t_s)
+    if show_s is None:
+        show_s = show_time_of(scene, t_s)
     shown = scene_at_show_time(scene, show_s, t_s)
     view = view_for(shown, t_s, size_px)
     fonts = FontCache()

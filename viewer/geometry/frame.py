@@ -161,18 +161,20 @@ def _body_limit(body: Body) -> float:
     return body.limit_radius_m if body.limit_radius_m else default_limit_radius_m(el)
 
 
-def _sector_params(body: Body, shape: ConicShape) -> list[tuple[float, float, float, float]]:
-    """(u0, u1, t0, t1) of each sweep sector; exact time bounds by Kepler's equation."""
+def _sector_params(body: Body, shape: ConicShape
+                   ) -> list[tuple[float, float, float, float, bool]]:
+    """(u0, u1, t0, t1, whole) of each sweep sector drawn (``Sweep.drawn_s``: all of them,
+    or those a reveal has reached); exact time bounds by Kepler's equation."""
     assert body.sweep is not None
     e = float(body.elements.e)
     out = []
-    for t0, t1 in body.sweep.bounds_s():
+    for t0, t1, whole in body.sweep.drawn_s():
         lo, hi = (t0, t1) if t1 >= t0 else (t1, t0)
         u0 = float(shape.param_of_true(body.elements_at(lo).nu, e))
         u1 = float(shape.param_of_true(body.elements_at(hi).nu, e))
         if e < 1.0:
             u1 = min(u1, u0 + 2.0 * math.pi)  # a sector of more than a turn is the ellipse
-        out.append((u0, u1, lo, hi))
+        out.append((u0, u1, lo, hi, whole))
     return out
 
 
@@ -311,7 +313,7 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     leaves the labels unplaced (``labels`` empty, ``label_requests`` filled): the dome and
     the panorama place them in their own pixels.
     """
-    scene = scene.osculating(t_s)
+    scene = scene.osculating(t_s).swept_at(t_s)
     w, h = view.size_px
     hs = view.style_scale
     bg = scene.render.background
@@ -456,7 +458,7 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
     shapes = [_static(cache, b, "shape", lambda b=b: ConicShape.of(b.elements))
               for b in scene.bodies]
     orbit_arc: dict[int, tuple[int, bool]] = {}
-    sector_arcs: dict[int, list[tuple[int, float, float]]] = {}
+    sector_arcs: dict[int, list[tuple[int, float, float, bool]]] = {}
     for k, (body, shape) in enumerate(zip(scene.bodies, shapes, strict=True)):
         if body.show.orbit and body.fade.orbit > 0:
             if body.flight_s is not None:  # only the flown arc
@@ -469,8 +471,8 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                 and body.fade.sweep > 0):
             params = _static(cache, body, "sectors",
                              lambda body=body, shape=shape: _sector_params(body, shape))
-            sector_arcs[k] = [(curves.add(shape, u0, u1, 0.2), t0, t1)
-                              for u0, u1, t0, t1 in params]
+            sector_arcs[k] = [(curves.add(shape, u0, u1, 0.2), t0, t1, whole)
+                              for u0, u1, t0, t1, whole in params]
     tess: Tessellation = tessellate(curves, view)
 
     for arc, _r in grid_arcs:
@@ -508,7 +510,7 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
         if fa <= 0:
             continue
         edge_a = min(1.0, sw.opacity + 0.3) * fa
-        for j, (arc, t0, t1) in enumerate(arcs):
+        for j, (arc, t0, t1, whole) in enumerate(arcs):
             pts = tess.arc(arc)
             tris = fan_triangles(np.zeros(3), pts)
             fill_tris.append(tris)
@@ -527,7 +529,7 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                 offset = -1.0 if signed > 0 else 1.0
             lines.add(ring, StrokeStyle(_rgba(_lighten(sw.color, 0.3), edge_a), EDGE_PX,
                                         offset=offset))
-            if sw.show_area and scene.render.labels:
+            if sw.show_area and scene.render.labels and whole:  # no label on a growing one
                 area = _static(cache, body, f"area{t0!r}:{t1!r}",
                                lambda body=body, t0=t0, t1=t1: _sector_area_m2(body, t0, t1))
                 cx, cy = _polygon_centroid(ring_px) if np.all(front) else (np.nan, np.nan)

@@ -3,21 +3,22 @@
 * ``orbit_profile``: distance from the central body and speed over one period of a closed
   orbit (from the last periapsis before the current time), with the current time, by
   Kepler's equation and vis-viva (``viewer.orbit.Elements``).
-* ``third_law``: period against semi-major axis of every closed orbit, and the third-law
-  line T = 2 pi sqrt(a^3 / mu) through the same range. On log axes the line has slope
-  3/2 (log T = 3/2 log a + const), which is T^2 proportional to a^3.
+* ``third_law`` and ``square_cube`` (from ``viewer.scene.third_law``, shared with the
+  plot that ``perifocal plot`` writes): period against semi-major axis of every closed
+  orbit with the line T = 2 pi sqrt(a^3 / mu), and T^2 against a^3 with its slope.
 """
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import NDArray
 
-from ..orbit import AU_M, DAY_S, JULIAN_YEAR_S
-from ..scene.model import Body, Scene
+from ..scene.model import Body
+from ..scene.third_law import SquareCube, ThirdLaw, square_cube, third_law
+
+__all__ = ["Profile", "SquareCube", "ThirdLaw", "orbit_profile", "square_cube", "third_law"]
 
 Floats = NDArray[np.float64]
 
@@ -42,61 +43,3 @@ def orbit_profile(body: Body, now_s: float, samples: int = 400) -> Profile | Non
     t = start + np.linspace(0.0, period, samples)
     at = body.elements_at(0.0).after(t)  # vectorised: one Kepler solve for all samples
     return Profile(t, np.asarray(at.radius_at(at.nu)), np.asarray(at.speed_at(at.nu)), now_s)
-
-
-@dataclass(frozen=True)
-class ThirdLaw:
-    """Closed orbits' a (m) and T (s) with names, and the line T(a) for the centre's mu."""
-
-    names: tuple[str, ...]
-    a_m: Floats
-    period_s: Floats
-    line_a_m: Floats
-    line_period_s: Floats
-
-
-@dataclass(frozen=True)
-class SquareCube:
-    """The third law as a straight line: T^2 against a^3 for every closed orbit, in
-    units people read (``length_unit``^3 and ``time_unit``^2), and the line's slope
-    4 pi^2 / GM in those units (through the origin)."""
-
-    names: tuple[str, ...]
-    a3: Floats
-    t2: Floats
-    slope: float
-    length_unit: str
-    time_unit: str
-
-
-#: (name, metres) and (name, seconds) the square-cube plot may count in.
-_LENGTHS = (("au", AU_M), ("1000 km", 1.0e6), ("km", 1.0e3))
-_TIMES = (("yr", JULIAN_YEAR_S), ("d", DAY_S), ("h", 3600.0))
-
-
-def square_cube(scene: Scene) -> SquareCube:
-    """T^2 against a^3 of ``scene``'s closed orbits (``third_law``'s bodies): au and
-    Julian years when the largest orbit is at least 0.1 au and the longest period a
-    year, else 1000 km or km, and days or hours, so the numbers stay near 1 to 1e4."""
-    law = third_law(scene)
-    a_max = float(law.a_m.max()) if len(law.a_m) else 1.0
-    t_max = float(law.period_s.max()) if len(law.period_s) else 1.0
-    lname, lm = next((n, m) for n, m in _LENGTHS if a_max >= 0.1 * m or m == 1.0e3)
-    tname, ts = next((n, x) for n, x in _TIMES if t_max >= x or x == 3600.0)
-    slope = 4.0 * math.pi ** 2 / scene.center.gm_m3_s2 * lm ** 3 / ts ** 2
-    return SquareCube(law.names, (law.a_m / lm) ** 3, (law.period_s / ts) ** 2, slope,
-                      lname, tname)
-
-
-def third_law(scene: Scene) -> ThirdLaw:
-    """Every closed orbit of ``scene`` and the third-law line across their range."""
-    closed = [b for b in scene.bodies if float(b.elements.e) < 1.0]
-    a = np.array([float(b.elements.a) for b in closed])
-    T = np.array([float(b.elements.period) for b in closed])
-    if len(a):
-        lo, hi = float(a.min()) / 1.5, float(a.max()) * 1.5
-    else:
-        lo, hi = 1.0e6, 1.0e12
-    line_a = np.geomspace(lo, hi, 50)
-    line_T = 2.0 * math.pi * np.sqrt(line_a**3 / scene.center.gm_m3_s2)
-    return ThirdLaw(tuple(b.name for b in closed), a, T, line_a, line_T)

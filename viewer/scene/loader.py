@@ -41,6 +41,7 @@ from .model import (
     DomeSettings,
     Fade,
     Population,
+    RateKey,
     RenderSettings,
     Scene,
     Sweep,
@@ -725,6 +726,7 @@ class _Loader:
             "opacity": r.number(s, "opacity", where, 0.0, 1.0),
             "color": r.color(s, "color", where),
             "show_area": r.boolean(s, "show_area", where),
+            "reveal": r.choice(s, "reveal", where, spec.REVEALS),
         }
         if v["interval"] is not None and v["interval"] <= 0:
             r.problem(f"{where}.interval", "interval must be positive")
@@ -745,7 +747,8 @@ class _Loader:
         return Sweep(start_s=v["start"] or 0.0, interval_s=interval, count=count,
                      color=v["color"] or b.color,
                      opacity=0.45 if v["opacity"] is None else v["opacity"],
-                     show_area=bool(v["show_area"]), interval_given=v["interval"] is not None)
+                     show_area=bool(v["show_area"]), interval_given=v["interval"] is not None,
+                     reveal=v["reveal"] or "all")
 
     # [[population]] ------------------------------------------------------------------
 
@@ -989,22 +992,23 @@ class _Loader:
             return None
         return x
 
-    def _target(self, t: dict[str, Any],
-                center: Center | None) -> str | tuple[float, float, float]:
+    def _target(self, t: dict[str, Any], center: Center | None,
+                path: str = "camera") -> str | tuple[float, float, float]:
         r = self.r
+        where = f"{path}.target"
         if "target" not in t:
             return "center"
         v = t["target"]
         if isinstance(v, list):
             if len(v) != 3:
-                r.problem("camera.target", "a point target is [x, y, z] (three lengths)")
+                r.problem(where, "a point target is [x, y, z] (three lengths)")
                 return "center"
-            xyz = [r.quantity_value(x, "camera.target", "length") for x in v]
+            xyz = [r.quantity_value(x, where, "length") for x in v]
             if any(x is None for x in xyz):
                 return "center"
             return (float(xyz[0]), float(xyz[1]), float(xyz[2]))  # type: ignore[arg-type]
         if not isinstance(v, str):
-            r.problem("camera.target", f'target is "center", a body\'s name or [x, y, z]; got '
+            r.problem(where, f'target is "center", a body\'s name or [x, y, z]; got '
                       f"a {type(v).__name__}")
             return "center"
         if v == "center" or (center is not None and name_key(v) == name_key(center.name)):
@@ -1016,7 +1020,7 @@ class _Loader:
         if v not in names:
             from .values import suggest
 
-            r.problem("camera.target", f'no body is named "{v}"{suggest(v, names)}; target is '
+            r.problem(where, f'no body is named "{v}"{suggest(v, names)}; target is '
                       '"center", a body\'s name or [x, y, z]')
             return "center"
         return v
@@ -1038,7 +1042,7 @@ class _Loader:
         sizes = [s for s in sizes if math.isfinite(s) and s > 0]
         return max(sizes) if sizes else None
 
-    # [[timeline.camera]], [[timeline.fade]], [[timeline.caption]] -----------------------
+    # [[timeline.camera]], [[timeline.pace]], [[timeline.fade]], [[timeline.caption]] ------
 
     def _items(self, t: dict[str, Any], key: spec.Key) -> list[tuple[str, dict[str, Any]]]:
         """(path, table) of each [[timeline.<key>]] table, keys checked."""
@@ -1065,16 +1069,42 @@ class _Loader:
             return None
         return x
 
-    def _camera_keys(self, t: dict[str, Any]) -> tuple[CameraKey, ...]:
+    def _key_time(self, item: dict[str, Any], key: str, path: str,
+                  duration_s: float) -> float | None:
+        """A time into the show that must lie within it (0 to the duration)."""
+        x = self._show_time(item, key, path)
+        if x is not None and x > duration_s * (1 + 1e-12):
+            self.r.problem(f"{path}.{key}", f"{x:g} s is after the end of the show "
+                           f"({duration_s:g} s); times into the show are 0 to the duration")
+            return None
+        return x
+
+    def _in_order(self, items: list[tuple[str, float]], what: str) -> None:
+        """Keys in order of increasing "at", each at a different time: the first key out
+        of order is reported at its own "at"."""
+        for (_, before), (path, at) in zip(items[:-1], items[1:], strict=False):
+            if at <= before:
+                self.r.problem(f"{path}.at", f'{what} must be in order of increasing "at", '
+                               f"each at a different time; this one at {at:g} s comes after "
+                               f"one at {before:g} s")
+                return
+
+    def _camera_keys(self, t: dict[str, Any], duration_s: float) -> tuple[CameraKey, ...]:
         r = self.r
         keys = []
+        paths = []
         for path, item in self._items(t, spec.CAMERA_KEY):
-            at = self._show_time(item, "at", path)
+            at = self._key_time(item, "at", path, duration_s)
             if at is None:
                 if "at" not in item:
                     r.problem(path, 'a camera keyframe needs "at", its time into the show')
                 continue
             look = r.choice(item, "look", path, ("top", "edge", "angles"))
+            angles = [k for k in ("elevation", "azimuth") if k in item]
+            if look in ("top", "edge") and angles:
+                r.problem(f"{path}.{angles[0]}", f'look = "{look}" fixes the direction; remove '
+                          f'{" and ".join(angles)} or set look = "angles"')
+                continue
             elevation = r.quantity(item, "elevation", path, "angle")
             if elevation is not None and abs(elevation) > math.pi / 2 + 1e-12:
                 r.problem(f"{path}.elevation", "elevation is -90 to 90 deg")
@@ -1090,17 +1120,44 @@ class _Loader:
                 at_s=at, ease=r.choice(item, "ease", path, spec.EASES) or "in-out",
                 projection=r.choice(item, "projection", path, ("orthographic", "perspective")),
                 look=look, elevation_rad=elevation, azimuth_rad=azimuth,
-                target=self._target(item, None) if "target" in item else None,
+                target=self._target(item, self.center, path) if "target" in item else None,
                 width_m=self._positive(item, "width", path),
                 distance_m=self._positive(item, "distance", path), fov_rad=fov,
+                path=r.choice(item, "path", path, spec.CAMERA_PATHS) or "eased",
                 **self._dome_framing(item, path)))
-        times = [k.at_s for k in keys]
-        if times != sorted(times) or len(set(times)) != len(times):
-            r.problem("timeline.camera", "camera keyframes must be in order of increasing "
-                      '"at", each at a different time')
+            paths.append(path)
+        self._in_order([(p, k.at_s) for p, k in zip(paths, keys, strict=True)],
+                       "camera keyframes")
         return tuple(keys)
 
-    def _fades(self, t: dict[str, Any]) -> tuple[Fade, ...]:
+    def _rate_keys(self, t: dict[str, Any], rate: float,
+                   duration_s: float) -> tuple[RateKey, ...]:
+        """[[timeline.pace]]: time-rate keys, each rate nonzero and of the sign of the
+        timeline's rate (scene time runs one way through a show)."""
+        r = self.r
+        keys: list[tuple[str, RateKey]] = []
+        for path, item in self._items(t, spec.PACE):
+            at = self._key_time(item, "at", path, duration_s)
+            value = r.quantity(item, "rate", path, "rate")
+            for key, got in (("at", at), ("rate", value)):
+                if got is None and key not in item:
+                    r.problem(path, f'a pace key needs "{key}" ('
+                              + ("its time into the show" if key == "at"
+                                 else 'scene time per second of show, such as "1 d/s"') + ")")
+            if at is None or value is None:
+                continue
+            if value == 0 or (value > 0) != (rate > 0):
+                way = "positive" if rate > 0 else "negative"
+                r.problem(f"{path}.rate", f"a pace rate is nonzero and {way}, as the "
+                          "timeline's rate is (scene time runs one way through a show)")
+                continue
+            keys.append((path, RateKey(at_s=at, rate=value,
+                                       ease=r.choice(item, "ease", path, spec.EASES)
+                                       or "in-out")))
+        self._in_order([(p, k.at_s) for p, k in keys], "pace keys")
+        return tuple(k for _, k in keys)
+
+    def _fades(self, t: dict[str, Any], duration_s: float) -> tuple[Fade, ...]:
         r = self.r
         fades = []
         for path, item in self._items(t, spec.FADE):
@@ -1128,6 +1185,10 @@ class _Loader:
             if any(b <= a for a, b in zip(times[:-1], times[1:], strict=True)) or min(times) < 0:
                 r.problem(f"{path}.at", "times must be 0 or later and increasing")
                 continue
+            if max(times) > duration_s * (1 + 1e-12):
+                r.problem(f"{path}.at", f"{max(times):g} s is after the end of the show "
+                          f"({duration_s:g} s); times into the show are 0 to the duration")
+                continue
             fades.append(Fade(body, mark, tuple(times), tuple(values),
                               r.choice(item, "ease", path, spec.EASES) or "in-out"))
         return tuple(fades)
@@ -1150,7 +1211,7 @@ class _Loader:
         out = [parse(x, f"{where}[{i}]") for i, x in enumerate(v)]
         return None if any(x is None for x in out) else out
 
-    def _captions(self, t: dict[str, Any]) -> tuple[Caption, ...]:
+    def _captions(self, t: dict[str, Any], duration_s: float) -> tuple[Caption, ...]:
         r = self.r
         out = []
         d = Caption("")
@@ -1160,11 +1221,15 @@ class _Loader:
                 if "text" not in item:
                     r.problem(path, 'a caption needs "text"')
                 continue
-            start = self._show_time(item, "start", path)
+            start = self._key_time(item, "start", path, duration_s)
             end = self._show_time(item, "end", path)
             if start is not None and end is not None and end <= start:
                 r.problem(f"{path}.end", "end must be after start")
                 continue
+            if end is not None and end > duration_s * (1 + 1e-12):
+                self.warnings.append(f"{r.where(path + '.end')}: the caption ends at {end:g} s, "
+                                     f"after the end of the show ({duration_s:g} s); it is cut "
+                                     "short there")
             fade = self._show_time(item, "fade", path)
             size = r.number(item, "size", path, 0.0, 400.0, lo_open=True)
             out.append(Caption(text, d.start_s if start is None else start,
@@ -1190,10 +1255,12 @@ class _Loader:
                 r.problem("timeline.duration", "duration must be positive")
                 duration = None
         clock = r.choice(t, "clock", "timeline", ("none", "date", "elapsed")) or "none"
+        show_s = duration or d.duration_s
         tl = Timeline(start_s=start or 0.0, rate=rate or d.rate, fps=fps or d.fps,
-                      duration_s=duration or d.duration_s, clock=clock,
-                      camera_keys=self._camera_keys(t), fades=self._fades(t),
-                      captions=self._captions(t))
+                      duration_s=show_s, clock=clock,
+                      camera_keys=self._camera_keys(t, show_s), fades=self._fades(t, show_s),
+                      captions=self._captions(t, show_s),
+                      rate_keys=self._rate_keys(t, rate or d.rate, show_s))
         if tl.frame_count < 1 or tl.frame_count > 10_000_000:
             r.problem("timeline", f"duration x fps gives {tl.frame_count} frames; allowed: 1 to "
                       "10,000,000")

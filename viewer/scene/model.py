@@ -7,6 +7,7 @@ Colours are sRGB triples of floats in [0, 1].
 
 from __future__ import annotations
 
+import math
 import unicodedata
 from dataclasses import dataclass, field, replace
 from pathlib import Path
@@ -22,6 +23,50 @@ RGB = tuple[float, float, float]
 
 #: The scene epoch when a file gives none (J2000.0 in TDB).
 DEFAULT_EPOCH_TEXT = "2000-01-01T12:00:00 TDB"
+
+
+def _linear(u: Any) -> Any:
+    return u
+
+
+def _linear_integral(u: Any) -> Any:
+    return u * u / 2.0
+
+
+def _in(u: Any) -> Any:
+    return u * u * u
+
+
+def _in_integral(u: Any) -> Any:
+    return u ** 4 / 4.0
+
+
+def _out(u: Any) -> Any:
+    return 1.0 - (1.0 - u) ** 3
+
+
+def _out_integral(u: Any) -> Any:
+    return u + ((1.0 - u) ** 4 - 1.0) / 4.0
+
+
+def _in_out(u: Any) -> Any:
+    return u * u * (3.0 - 2.0 * u)  # smoothstep
+
+
+def _in_out_integral(u: Any) -> Any:
+    return u ** 3 - u ** 4 / 2.0
+
+
+#: The easing curves of keyframed values (spec.EASES), each as (f, F) with f(u) the eased
+#: fraction of a move at the fraction u in [0, 1] of its time (f(0) = 0, f(1) = 1) and
+#: F(u) = the integral of f from 0 to u in closed form (what a time-rate key's scene time
+#: needs). Vectorised over numpy arrays.
+EASE_CURVES: dict[str, tuple[Any, Any]] = {
+    "linear": (_linear, _linear_integral),
+    "in": (_in, _in_integral),
+    "out": (_out, _out_integral),
+    "in-out": (_in_out, _in_out_integral),
+}
 
 
 
@@ -76,11 +121,37 @@ class Sweep:
     #: follows every change of the orbit or of the count (an ellipse's sectors then tile
     #: the whole orbit).
     interval_given: bool = True
+    #: "all": every sector is drawn at every time; "swept": a sector appears once the
+    #: body has swept it whole (``swept_until``), one by one as the show runs.
+    reveal: str = "all"
+    #: Set per frame by ``Scene.swept_at`` on a sweep that reveals: the scene time drawn,
+    #: so only what the body has swept by then is drawn (None: every sector).
+    shown_until_s: float | None = None
 
     def bounds_s(self) -> list[tuple[float, float]]:
         """Scene-time bounds (t0, t1) of each sector, k = 0..count-1."""
         return [(self.start_s + k * self.interval_s, self.start_s + (k + 1) * self.interval_s)
                 for k in range(self.count)]
+
+    def swept_until(self, t_s: float) -> float:
+        """How many sectors the body has swept by scene time ``t_s``: whole sectors plus
+        the fraction (of time) of the one being swept, from 0 to ``count``."""
+        return min(float(self.count), max(0.0, (t_s - self.start_s) / self.interval_s))
+
+    def drawn_s(self) -> list[tuple[float, float, bool]]:
+        """(t0, t1, whole) of each sector drawn now: every sector, or with ``reveal =
+        "swept"`` the sectors swept whole by ``shown_until_s`` and the one being swept,
+        from its first edge to the body (``whole`` False: it grows, and has no area
+        label)."""
+        bounds = self.bounds_s()
+        if self.reveal != "swept" or self.shown_until_s is None:
+            return [(t0, t1, True) for t0, t1 in bounds]
+        swept = self.swept_until(self.shown_until_s)
+        whole = int(math.floor(swept + 1e-12))
+        out = [(t0, t1, True) for t0, t1 in bounds[:whole]]
+        if whole < self.count and swept - whole > 1e-9:
+            out.append((bounds[whole][0], float(self.shown_until_s), False))
+        return out
 
 
 @dataclass(frozen=True)
@@ -257,6 +328,20 @@ class CameraKey:
     dome_distance_m: float | None = None
     dome_elevation_rad: float | None = None
     dome_tilt_rad: float | None = None
+    #: "eased": the camera comes to rest at this key; "smooth": it passes through it
+    #: on a curve through the neighbouring keys (spec.CAMERA_PATHS).
+    path: str = "eased"
+
+
+@dataclass(frozen=True)
+class RateKey:
+    """A time-rate keyframe (``[[timeline.pace]]``): at ``at_s`` seconds into the show the
+    show runs at ``rate`` scene seconds per second of show, reached from the rate before
+    (the previous key's, or ``[timeline] rate`` before the first key) with ``ease``."""
+
+    at_s: float
+    rate: float
+    ease: str = "in-out"
 
 
 @dataclass(frozen=True)
@@ -284,12 +369,19 @@ class Caption:
     color: RGB = (242 / 255, 242 / 255, 242 / 255)  # "#f2f2f2"
 
 
+def _shaped(values: np.ndarray, shape: tuple[int, ...]) -> Any:
+    """A flat result back in its input's shape; a float for a scalar input."""
+    return float(values[0]) if shape == () else values.reshape(shape)
+
+
 @dataclass(frozen=True)
 class Timeline:
-    """Scene time of the show: frame k is at ``start_s + k * rate / fps`` scene seconds.
+    """Scene time of the show: frame k is at ``scene_time_at(k / fps)`` scene seconds,
+    which is ``start_s + k * rate / fps`` unless ``rate_keys`` (``[[timeline.pace]]``)
+    change the pace along the show.
 
-    Camera keyframes, fades and captions are placed in seconds of show (``k / fps``);
-    ``clock`` is "none", "date" or "elapsed" (an on-screen clock).
+    Camera keyframes, fades, captions and pace keys are placed in seconds of show
+    (``k / fps``); ``clock`` is "none", "date" or "elapsed" (an on-screen clock).
     """
 
     start_s: float = 0.0
@@ -300,6 +392,7 @@ class Timeline:
     camera_keys: tuple[CameraKey, ...] = ()
     fades: tuple[Fade, ...] = ()
     captions: tuple[Caption, ...] = ()
+    rate_keys: tuple[RateKey, ...] = ()
 
     def show_time_of_frame(self, k: Any) -> Any:
         """Seconds into the show of frame k."""
@@ -309,16 +402,115 @@ class Timeline:
     def frame_count(self) -> int:
         return int(round(self.duration_s * self.fps))
 
+    def _pace_knots(self) -> tuple[np.ndarray, np.ndarray, tuple[str, ...], np.ndarray]:
+        """(show times, rates, ease into each knot, scene time at each knot) of the pace:
+        show time 0 runs at ``rate`` unless a key is at 0; each key's rate is reached
+        from the one before with the key's ease; after the last key its rate stays."""
+        keys = self.rate_keys
+        if keys and keys[0].at_s <= 0.0:
+            times = [k.at_s for k in keys]
+            rates = [k.rate for k in keys]
+            eases = tuple(k.ease for k in keys)
+        else:
+            times = [0.0] + [k.at_s for k in keys]
+            rates = [self.rate] + [k.rate for k in keys]
+            eases = ("linear",) + tuple(k.ease for k in keys)
+        t = np.asarray(times, dtype=np.float64)
+        r = np.asarray(rates, dtype=np.float64)
+        scene = np.empty_like(t)
+        scene[0] = self.start_s + t[0] * r[0]  # the rate at the first knot runs back to 0
+        for i in range(1, len(t)):
+            h = t[i] - t[i - 1]
+            integral = EASE_CURVES[eases[i]][1](1.0)
+            scene[i] = scene[i - 1] + h * (r[i - 1] + (r[i] - r[i - 1]) * integral)
+        return t, r, eases, scene
+
+    def rate_at(self, show_s: Any) -> Any:
+        """Scene seconds per second of show at ``show_s`` (scalar or array): ``rate``, or
+        the eased pace of the ``[[timeline.pace]]`` keys."""
+        x = np.asarray(show_s, dtype=np.float64)
+        shape = x.shape
+        x = x.reshape(-1)
+        if not self.rate_keys:
+            out = np.full_like(x, self.rate)
+        else:
+            t, r, eases, _ = self._pace_knots()
+            out = np.where(x < t[0], r[0], r[-1])
+            for i in range(1, len(t)):
+                leg = (x >= t[i - 1]) & (x < t[i])
+                if leg.any():
+                    u = (x[leg] - t[i - 1]) / (t[i] - t[i - 1])
+                    out[leg] = r[i - 1] + (r[i] - r[i - 1]) * EASE_CURVES[eases[i]][0](u)
+        return _shaped(out, shape)
+
     def scene_time_at(self, show_s: Any) -> Any:
         """Scene time (s) at ``show_s`` seconds into the show (scalar or array). The one
         map from show time to scene time: frames, the window's show clock and stills at a
-        show time all go through it."""
-        return self.start_s + np.asarray(show_s, dtype=np.float64) * self.rate
+        show time all go through it.
 
-    def show_time_at(self, t_s: float) -> float:
+        Without pace keys it is ``start + show_s * rate``; with them it is ``start`` plus
+        the integral of the eased rate (``rate_at``) from 0, in closed form: on a leg from
+        knot i-1 to knot i (length h, rates r0 -> r1, ease curve f with integral F)
+        scene time grows by ``r0 (t - t0) + (r1 - r0) h F((t - t0) / h)``.
+        """
+        x = np.asarray(show_s, dtype=np.float64)
+        if not self.rate_keys:
+            return self.start_s + x * self.rate
+        shape = x.shape
+        x = x.reshape(-1)
+        t, r, eases, scene = self._pace_knots()
+        before = scene[0] + (x - t[0]) * r[0]
+        out = np.where(x < t[0], before, scene[-1] + (x - t[-1]) * r[-1])
+        for i in range(1, len(t)):
+            leg = (x >= t[i - 1]) & (x < t[i])
+            if leg.any():
+                h = t[i] - t[i - 1]
+                dt = x[leg] - t[i - 1]
+                out[leg] = (scene[i - 1] + r[i - 1] * dt
+                            + (r[i] - r[i - 1]) * h * EASE_CURVES[eases[i]][1](dt / h))
+        return _shaped(out, shape)
+
+    def show_time_at(self, t_s: Any) -> Any:
         """Seconds into the show at scene time ``t_s`` (the inverse of ``scene_time_at``),
-        0 before the start."""
-        return max(0.0, (float(t_s) - self.start_s) / self.rate)
+        0 before the start; scalar or array.
+
+        Scene time grows monotonically with show time (every rate has the sign of
+        ``rate``), so each leg between pace knots is solved by Newton's method on
+        ``scene_time_at(x) - t_s`` (its derivative is ``rate_at``) kept inside the leg's
+        bracket, with bisection whenever a step would leave it.
+        """
+        y = np.asarray(t_s, dtype=np.float64)
+        shape = y.shape
+        y = y.reshape(-1)
+        if not self.rate_keys:
+            return _shaped(np.maximum(0.0, (y - self.start_s) / self.rate), shape)
+        t, r, _, scene = self._pace_knots()
+        sign = 1.0 if self.rate > 0 else -1.0
+        ys = sign * y
+        ss = sign * scene
+        out = np.where(ys < ss[0], t[0] + (y - scene[0]) / r[0],
+                       t[-1] + (y - scene[-1]) / r[-1])
+        leg = np.searchsorted(ss, ys, side="right")  # knot i-1 <= y < knot i
+        inside = (leg >= 1) & (leg < len(t))
+        if inside.any():
+            i = leg[inside]
+            lo, hi = t[i - 1].copy(), t[i].copy()
+            goal = y[inside]
+            x = lo + (hi - lo) * (goal - scene[i - 1]) / (scene[i] - scene[i - 1])
+            for _ in range(100):
+                g = self.scene_time_at(x) - goal
+                below = sign * g < 0
+                lo = np.where(below, x, lo)
+                hi = np.where(below, hi, x)
+                step = x - g / np.asarray(self.rate_at(x))
+                bisect = ~((step > lo) & (step < hi))
+                new = np.where(bisect, 0.5 * (lo + hi), step)
+                done = np.abs(new - x) <= 1e-15 * np.maximum(1.0, np.abs(x))
+                x = new
+                if done.all():
+                    break
+            out[inside] = x
+        return _shaped(np.maximum(0.0, out), shape)
 
     def time_of_frame(self, k: Any) -> Any:
         """Scene time (s) of frame k (scalar or array)."""
@@ -359,6 +551,17 @@ class Scene:
         if all(b.track is None for b in self.bodies):
             return self
         return replace(self, bodies=tuple(b.osculating(t_s) for b in self.bodies))
+
+    def swept_at(self, t_s: float) -> Scene:
+        """A copy whose sweeps that reveal (``reveal = "swept"``) draw only what their
+        body has swept by scene time t_s (``Sweep.drawn_s``); the scene itself when no
+        sweep reveals. What a frame at t_s draws (``build_frame`` applies it)."""
+        if not any(b.sweep is not None and b.sweep.reveal == "swept" for b in self.bodies):
+            return self
+        return replace(self, bodies=tuple(
+            replace(b, sweep=replace(b.sweep, shown_until_s=float(t_s)))
+            if b.sweep is not None and b.sweep.reveal == "swept" else b
+            for b in self.bodies))
 
     def with_body(self, index: int, body: Body) -> Scene:
         """A copy with body ``index`` replaced."""

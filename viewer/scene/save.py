@@ -311,8 +311,7 @@ def _dump_views(doc: Any, scene: Scene, lu: str) -> None:
     if cam.look == "angles":
         ct["elevation"] = writer.angle(cam.elevation_rad)
         ct["azimuth"] = writer.angle(cam.azimuth_rad)
-    ct["target"] = (cam.target if isinstance(cam.target, str)
-                    else [writer.length(x, lu) for x in cam.target])
+    ct["target"] = writer.target(cam.target, lu)
     ct["width"] = writer.length(cam.width_m, lu)
     ct["distance"] = writer.length(cam.distance_m, lu)
     if cam.fov_rad != d.fov_rad:
@@ -329,12 +328,7 @@ def _dump_views(doc: Any, scene: Scene, lu: str) -> None:
     doc["render"] = rt
     tl = scene.timeline
     tt = tomlkit.table()
-    tt["start"] = writer.duration(tl.start_s)
-    tt["rate"] = writer.quantity(tl.rate, "rate", "s/s")
-    tt["fps"] = tl.fps
-    tt["duration"] = writer.duration(tl.duration_s)
-    if tl.clock != "none":
-        tt["clock"] = tl.clock
+    tt.update(writer.timeline_table(tl))
     _dump_show(tt, tl, lu)
     doc["timeline"] = tt
     if scene.dome != DomeSettings():
@@ -351,66 +345,29 @@ def _dump_views(doc: Any, scene: Scene, lu: str) -> None:
 
 
 def _dump_dome_framing(t: Any, cam: Any, default: Any, lu: str) -> None:
-    """dome_distance, dome_elevation, dome_tilt of a camera or a keyframe, when set."""
-    if cam.dome_distance_m is not None:
-        t["dome_distance"] = writer.length(cam.dome_distance_m, lu)
-    for name in ("dome_elevation", "dome_tilt"):
-        v = getattr(cam, name + "_rad")
-        if v is not None and (default is None or v != getattr(default, name + "_rad")):
-            t[name] = writer.angle(v)
+    """dome_distance, dome_elevation, dome_tilt of the camera, when set."""
+    for k, v in writer.dome_framing(cam, default, lu).items():
+        t[k] = v
 
 
 def _dump_show(tt: Any, tl: Any, lu: str) -> None:
-    """The show's keyframes, fades and captions as [[timeline.*]] tables."""
+    """The show's keyframes, pace, fades and captions as [[timeline.*]] tables, each from
+    the writer's table of it."""
     import tomlkit
 
-    if tl.camera_keys:
+    for name, items, table in (
+            ("camera", tl.camera_keys, lambda k: writer.camera_key_table(k, lu)),
+            ("pace", tl.rate_keys, writer.pace_table),
+            ("fade", tl.fades, writer.fade_table),
+            ("caption", tl.captions, writer.caption_table)):
+        if not items:
+            continue
         aot = tomlkit.aot()
-        for key in tl.camera_keys:
+        for item in items:
             t = tomlkit.table()
-            t["at"] = writer.duration(key.at_s)
-            t["ease"] = key.ease
-            for name in ("projection", "look"):
-                if getattr(key, name) is not None:
-                    t[name] = getattr(key, name)
-            for name, field in (("elevation", "elevation_rad"), ("azimuth", "azimuth_rad"),
-                                ("fov", "fov_rad")):
-                if getattr(key, field) is not None:
-                    t[name] = writer.angle(getattr(key, field))
-            if key.target is not None:
-                t["target"] = (key.target if isinstance(key.target, str)
-                               else [writer.length(x, lu) for x in key.target])
-            for name, field in (("width", "width_m"), ("distance", "distance_m")):
-                if getattr(key, field) is not None:
-                    t[name] = writer.length(getattr(key, field), lu)
-            _dump_dome_framing(t, key, None, lu)
+            t.update(table(item))
             aot.append(t)
-        tt["camera"] = aot
-    if tl.fades:
-        aot = tomlkit.aot()
-        for f in tl.fades:
-            t = tomlkit.table()
-            t["body"] = f.body
-            t["mark"] = f.mark
-            t["at"] = [writer.duration(x) for x in f.at_s]
-            t["opacity"] = list(f.opacity)
-            t["ease"] = f.ease
-            aot.append(t)
-        tt["fade"] = aot
-    if tl.captions:
-        aot = tomlkit.aot()
-        for c in tl.captions:
-            t = tomlkit.table()
-            t["text"] = c.text
-            t["start"] = writer.duration(c.start_s)
-            if math.isfinite(c.end_s):
-                t["end"] = writer.duration(c.end_s)
-            t["fade"] = writer.duration(c.fade_s)
-            t["position"] = c.position
-            t["size"] = c.size_px
-            t["color"] = writer.color(c.color)
-            aot.append(t)
-        tt["caption"] = aot
+        tt[name] = aot
 
 
 def save_scene(scene: Scene, path: str | Path) -> Path:

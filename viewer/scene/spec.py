@@ -115,6 +115,12 @@ CENTER = Key("center", "table", "the central body at the occupied focus", requir
 SHOW = Key("show", "table", "what to draw for the body (merged with the defaults)", keys=tuple(
     Key(m.name, "bool", m.what, m.default) for m in MARKS))
 
+#: How the camera moves through a keyframe: "eased" comes to rest at the key (the ease
+#: of each leg), "smooth" passes through it on a curve through the neighbouring keys.
+CAMERA_PATHS = ("eased", "smooth")
+#: How a sweep's sectors appear: "all" at once, or "swept" one by one as the body sweeps.
+REVEALS = ("all", "swept")
+
 SWEEP = Key("sweep", "table", "equal-time sectors from the occupied focus", keys=(
     Key("start", "time_or_epoch", "scene time of the first sector's first edge", "0 d"),
     Key("interval", "time", "duration of each sector",
@@ -123,6 +129,8 @@ SWEEP = Key("sweep", "table", "equal-time sectors from the occupied focus", keys
     Key("color", "color", "fill colour", "the body's colour"),
     Key("opacity", "number", "fill opacity, 0 to 1", "0.45"),
     Key("show_area", "bool", "print each sector's area beside it", "false"),
+    Key("reveal", "choice", "all: every sector at every time; swept: each sector appears "
+        "once the body has swept it whole, one by one as the show runs", "all", REVEALS),
 ))
 
 FLIGHT = Key("flight", "table", "a trajectory flown only between two times", keys=(
@@ -224,7 +232,20 @@ CAMERA_KEY = Key("camera", "tables", "camera keyframes: at a time of the show, t
     Key("at", "show_time", "the time into the show of this keyframe", required=True),
     Key("ease", "choice", "how values move from the previous keyframe to this one",
         "in-out", EASES),
+    Key("path", "choice", "eased: the camera comes to rest at this keyframe; smooth: it "
+        "passes through it without stopping, on a curve through the neighbouring keyframes",
+        "eased", CAMERA_PATHS),
     *(k for k in CAMERA.keys),
+))
+
+PACE = Key("pace", "tables", "time-rate keys: the show's pace (scene time per second of "
+           "show) changes along the show, eased from one key to the next", keys=(
+    Key("at", "show_time", "the time into the show where the pace is this key's rate",
+        required=True),
+    Key("rate", "rate", "scene time per second of show here: nonzero, of the sign of the "
+        "timeline's rate", required=True),
+    Key("ease", "choice", "how the rate moves from the one before (the timeline's rate at "
+        "0 s, before the first key) to this one", "in-out", EASES),
 ))
 
 FADE = Key("fade", "tables", "the opacity of a body's marks over the show", keys=(
@@ -255,6 +276,7 @@ TIMELINE = Key("timeline", "table", "scene time of the show", keys=(
     Key("clock", "choice", "an on-screen clock: the scene date, or days since the start",
         "none", ("none", "date", "elapsed")),
     CAMERA_KEY,
+    PACE,
     FADE,
     CAPTION,
 ))

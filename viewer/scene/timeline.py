@@ -9,6 +9,8 @@ width, distance and dome_distance geometrically (a zoom feels even), dome_elevat
 dome_tilt linearly, the target's position linearly
 (a body target is followed as it moves); the projection switches at the keyframe.
 Before the first keyframe the camera is the first keyframe's, after the last the last's.
+A keyframe with ``path = "smooth"`` is passed through on a cubic curve through its
+neighbours instead (see "smooth paths" below).
 """
 
 from __future__ import annotations
@@ -20,21 +22,16 @@ import numpy as np
 
 from ..orbit import state_from_elements
 from .marks import NAMES
-from .model import Camera, CameraKey, Caption, Fade, MarkOpacity, Scene
+from .model import EASE_CURVES, Camera, CameraKey, Caption, Fade, MarkOpacity, Scene
 
 TWO_PI = 2.0 * math.pi
 
 
 def ease(u: float, kind: str) -> float:
-    """The eased fraction of a move: linear, in (slow start), out (slow end), in-out."""
+    """The eased fraction of a move: linear, in (slow start), out (slow end), in-out
+    (``model.EASE_CURVES``, the one home of the curves)."""
     u = min(1.0, max(0.0, u))
-    if kind == "linear":
-        return u
-    if kind == "in":
-        return u * u * u
-    if kind == "out":
-        return 1.0 - (1.0 - u) ** 3
-    return u * u * (3.0 - 2.0 * u)  # in-out: smoothstep
+    return float(EASE_CURVES.get(kind, EASE_CURVES["in-out"])[0](u))
 
 
 def _angles(cam: Camera) -> tuple[float, float]:
@@ -86,10 +83,13 @@ def camera_at(scene: Scene, show_s: float, t_s: float | None = None) -> Camera:
         return keys[-1][2]
     j = next(i for i in range(1, len(keys)) if show_s < keys[i][0])
     (t0, _, a), (t1, kind, b) = keys[j - 1], keys[j]
+    paths = [k.path for k in scene.timeline.camera_keys]
+    t = float(scene.timeline.scene_time_at(show_s)) if t_s is None else t_s
+    if _passes(paths, j - 1) or _passes(paths, j):
+        return _smooth_camera(scene, keys, paths, j, show_s, t)
     u = ease((show_s - t0) / (t1 - t0), kind)
     if a == b:
         return a
-    t = float(scene.timeline.scene_time_at(show_s)) if t_s is None else t_s
     el0, az0 = _angles(a)
     el1, az1 = _angles(b)
     daz = (az1 - az0 + math.pi) % TWO_PI - math.pi
@@ -110,6 +110,78 @@ def camera_at(scene: Scene, show_s: float, t_s: float | None = None) -> Camera:
         dome_elevation_rad=a.dome_elevation_rad
         + u * (b.dome_elevation_rad - a.dome_elevation_rad),
         dome_tilt_rad=a.dome_tilt_rad + u * (b.dome_tilt_rad - a.dome_tilt_rad))
+
+
+# --- smooth paths: cubic Hermite through the keyframes -----------------------------------
+#
+# A keyframe with path = "smooth" is passed through, not stopped at: on the legs on either
+# side of it every value follows a cubic Hermite curve (Kochanek & Bartels 1984; the
+# Catmull-Rom choice of tangent, Catmull & Rom 1974), p(u) = h00 p0 + h10 h m0 + h01 p1 +
+# h11 h m1 with u = (s - s0) / h linear in show time s, h = s1 - s0, and
+# h00 = 2u^3 - 3u^2 + 1, h10 = u^3 - 2u^2 + u, h01 = -2u^3 + 3u^2, h11 = u^3 - u^2.
+# The tangent (per second of show) at a smooth keyframe is the finite difference of its
+# neighbours, m_k = (p_{k+1} - p_{k-1}) / (s_{k+1} - s_{k-1}); at an eased keyframe, and at
+# the first and the last keyframe (the camera holds before and after them), it is 0, so a
+# leg between two eased keyframes is the smoothstep of "in-out". A leg that touches a
+# smooth keyframe runs linearly in time (its ease is not used). Values are interpolated
+# where they move evenly: elevation, azimuth (unwrapped the short way from key to key),
+# fov, dome elevation and tilt as they are; width, distance and dome distance as
+# logarithms (a zoom feels even); the target as a point in space, except on a leg whose
+# two keyframes look at the same target, which follows that target exactly.
+
+
+def _passes(paths: list[str], k: int) -> bool:
+    """Whether the camera passes through keyframe k without stopping."""
+    return 0 < k < len(paths) - 1 and paths[k] == "smooth"
+
+
+def _values(scene: Scene, cam: Camera, t_s: float, azimuth_rad: float) -> np.ndarray:
+    """The interpolated values of a keyframe's camera at scene time t_s."""
+    el, _ = _angles(cam)
+    x, y, z = target_point_m(scene, cam.target, t_s)
+    return np.array([el, azimuth_rad, math.log(cam.width_m), math.log(cam.distance_m),
+                     cam.fov_rad, math.log(cam.immersive_distance_m), cam.dome_elevation_rad,
+                     cam.dome_tilt_rad, x, y, z])
+
+
+def _smooth_camera(scene: Scene, keys: list[tuple[float, str, Camera]], paths: list[str],
+                   j: int, show_s: float, t_s: float) -> Camera:
+    """The camera on the leg from keyframe j-1 to j when either end is passed through."""
+    lo, hi = max(0, j - 2), min(len(keys) - 1, j + 1)
+    azimuths = [_angles(keys[lo][2])[1]]
+    for k in range(lo + 1, hi + 1):  # unwrapped: each step the short way round
+        step = _angles(keys[k][2])[1] - _angles(keys[k - 1][2])[1]
+        azimuths.append(azimuths[-1] + (step + math.pi) % TWO_PI - math.pi)
+    times = {k: keys[k][0] for k in range(lo, hi + 1)}
+    p = {k: _values(scene, keys[k][2], t_s, azimuths[k - lo]) for k in range(lo, hi + 1)}
+
+    def tangent(k: int) -> np.ndarray:
+        if not _passes(paths, k):
+            return np.zeros_like(p[k])
+        return (p[k + 1] - p[k - 1]) / (times[k + 1] - times[k - 1])
+
+    s0, s1 = times[j - 1], times[j]
+    h = s1 - s0
+    u = (show_s - s0) / h
+    h00, h10 = 2 * u**3 - 3 * u**2 + 1, u**3 - 2 * u**2 + u
+    h01, h11 = -2 * u**3 + 3 * u**2, u**3 - u**2
+    v = h00 * p[j - 1] + h10 * h * tangent(j - 1) + h01 * p[j] + h11 * h * tangent(j)
+    a, b = keys[j - 1][2], keys[j][2]
+    span = [keys[k][2] for k in range(lo, hi + 1)]
+    same_target = a.target == b.target  # a leg between two keys on one target follows it
+    same_look = all(c.look == a.look for c in span) and a.look in ("top", "edge")
+    return Camera(
+        projection=a.projection if u < 1.0 else b.projection,
+        look=a.look if same_look else "angles",
+        elevation_rad=float(np.clip(v[0], -math.pi / 2, math.pi / 2)),
+        azimuth_rad=float(v[1]) % TWO_PI,
+        target=a.target if same_target else (float(v[8]), float(v[9]), float(v[10])),
+        width_m=float(math.exp(v[2])), distance_m=float(math.exp(v[3])),
+        fov_rad=float(np.clip(v[4], 1e-6, math.pi - 1e-6)),
+        dome_distance_m=None if a.dome_distance_m is None and b.dome_distance_m is None
+        else float(math.exp(v[5])),
+        dome_elevation_rad=float(np.clip(v[6], 0.0, math.pi / 2)),
+        dome_tilt_rad=float(np.clip(v[7], 0.0, math.pi / 4)))
 
 
 def _fade_value(f: Fade, show_s: float) -> float:

@@ -31,7 +31,7 @@ from pathlib import Path
 from typing import Any
 
 from ..units import Epoch, unit_factor
-from .model import Body, BodyShow, Scene
+from .model import Body, BodyShow, CameraKey, Caption, Fade, RateKey, Scene, Timeline
 
 RGB = tuple[float, float, float]
 
@@ -188,7 +188,84 @@ def sweep_table(scene: Scene, body: Body) -> dict[str, Any]:
     out.update({"count": sw.count, "color": color(sw.color), "opacity": sw.opacity})
     if sw.show_area:
         out["show_area"] = True
+    if sw.reveal != "all":
+        out["reveal"] = sw.reveal
     return out
+
+
+# --- the show's tables ([timeline] and its [[timeline.*]] arrays) -------------------------
+
+
+def target(value: str | tuple[float, float, float], length_unit: str) -> Any:
+    """A camera target: "center", a body's name, or [x, y, z] in ``length_unit``."""
+    return value if isinstance(value, str) else [length(x, length_unit) for x in value]
+
+
+def dome_framing(cam: Any, default: Any, length_unit: str) -> dict[str, Any]:
+    """dome_distance, dome_elevation, dome_tilt of a camera or a keyframe, when set (and,
+    with a ``default`` camera, when they differ from it)."""
+    out: dict[str, Any] = {}
+    if cam.dome_distance_m is not None:
+        out["dome_distance"] = length(cam.dome_distance_m, length_unit)
+    for name in ("dome_elevation", "dome_tilt"):
+        v = getattr(cam, name + "_rad")
+        if v is not None and (default is None or v != getattr(default, name + "_rad")):
+            out[name] = angle(v)
+    return out
+
+
+def timeline_table(tl: Timeline) -> dict[str, Any]:
+    """The plain keys of ``[timeline]`` (its arrays of tables are written apart)."""
+    out: dict[str, Any] = {"start": duration(tl.start_s),
+                           "rate": quantity(tl.rate, "rate", "s/s"),
+                           "fps": tl.fps, "duration": duration(tl.duration_s)}
+    if tl.clock != "none":
+        out["clock"] = tl.clock
+    return out
+
+
+def camera_key_table(key: CameraKey, length_unit: str = "au") -> dict[str, Any]:
+    """A ``[[timeline.camera]]`` keyframe: ``at``, ``ease``, ``path`` (when not the
+    default "eased") and the camera keys it changes (lengths in ``length_unit``)."""
+    t: dict[str, Any] = {"at": duration(key.at_s), "ease": key.ease}
+    if key.path != "eased":
+        t["path"] = key.path
+    for name in ("projection", "look"):
+        if getattr(key, name) is not None:
+            t[name] = getattr(key, name)
+    for name, field in (("elevation", "elevation_rad"), ("azimuth", "azimuth_rad"),
+                        ("fov", "fov_rad")):
+        if getattr(key, field) is not None:
+            t[name] = angle(getattr(key, field))
+    if key.target is not None:
+        t["target"] = target(key.target, length_unit)
+    for name, field in (("width", "width_m"), ("distance", "distance_m")):
+        if getattr(key, field) is not None:
+            t[name] = length(getattr(key, field), length_unit)
+    t.update(dome_framing(key, None, length_unit))
+    return t
+
+
+def fade_table(fade: Fade) -> dict[str, Any]:
+    """A ``[[timeline.fade]]`` table."""
+    return {"body": fade.body, "mark": fade.mark, "at": [duration(x) for x in fade.at_s],
+            "opacity": list(fade.opacity), "ease": fade.ease}
+
+
+def caption_table(caption: Caption) -> dict[str, Any]:
+    """A ``[[timeline.caption]]`` table (``end`` left out for a caption to the end)."""
+    t: dict[str, Any] = {"text": caption.text, "start": duration(caption.start_s)}
+    if math.isfinite(caption.end_s):
+        t["end"] = duration(caption.end_s)
+    t.update({"fade": duration(caption.fade_s), "position": caption.position,
+              "size": caption.size_px, "color": color(caption.color)})
+    return t
+
+
+def pace_table(rate_key: RateKey) -> dict[str, Any]:
+    """A ``[[timeline.pace]]`` table: ``at``, ``rate`` (in s/s) and ``ease``."""
+    return {"at": duration(rate_key.at_s), "rate": quantity(rate_key.rate, "rate", "s/s"),
+            "ease": rate_key.ease}
 
 
 def value_text(value: Any) -> str:

@@ -49,8 +49,9 @@ class Panels(Widgets):
     transfer_kind: str = "hohmann"
     transfer_via: str = ""
     season: SeasonState = field(default_factory=SeasonState)
-    #: The third-law plot shown: "log" (log T against log a) or "square" (T^2 vs a^3).
-    law_view: str = "log"
+    #: The third-law plot shown: "log" (log T against log a), "square" (T^2 vs a^3) or
+    #: "both" (one above the other).
+    law_view: str = "both"
     #: What the transfer goes to: "body", or a typed "radius" or "altitude".
     transfer_target: str = "body"
     transfer_radius: str = ""

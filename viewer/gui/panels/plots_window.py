@@ -69,37 +69,48 @@ def draw(p: Panels, s: Session, w: float, h: float) -> None:
             implot.end_plot()
         law = third_law(ed.scene)
         p.law_view = _law_tabs(p.law_view)
-        if p.law_view == "square" and len(law.a_m):
-            _square_cube(implot, ed.scene)
-        elif len(law.a_m) and implot.begin_plot("Third law: T^2 grows as a^3##law",
-                                                imgui.ImVec2(-1, -1)):
-            implot.setup_axes("semi-major axis a (au)", "period T (d)")
-            # Legends below the plot area, never over the curves.
-            implot.setup_legend(implot.Location_.south,
-                                implot.LegendFlags_.outside | implot.LegendFlags_.horizontal)
-            implot.setup_axis_scale(implot.ImAxis_.x1, implot.Scale_.log10)
-            implot.setup_axis_scale(implot.ImAxis_.y1, implot.Scale_.log10)
-            # A margin of a fifth of a decade each way, so the end points' names fit.
-            implot.setup_axes_limits(float(law.line_a_m[0] / AU_M) / 1.6,
-                                     float(law.line_a_m[-1] / AU_M) * 1.6,
-                                     float(law.line_period_s[0] / DAY_S) / 2.0,
-                                     float(law.line_period_s[-1] / DAY_S) * 2.0,
-                                     implot.Cond_.always)
-            implot.plot_line("T = 2 pi sqrt(a^3/GM): slope 3/2", law.line_a_m / AU_M,
-                             law.line_period_s / DAY_S)
-            implot.plot_scatter("bodies", law.a_m / AU_M, law.period_s / DAY_S)
-            for name, a, T, dy in zip(law.names, law.a_m, law.period_s,
-                                      label_offsets(law.a_m, law.line_a_m), strict=True):
-                implot.plot_text(name, float(a / AU_M), float(T / DAY_S), imgui.ImVec2(0, dy))
-            implot.end_plot()
+        if len(law.a_m):
+            both = p.law_view == "both"
+            height = 0.5 * (imgui.get_content_region_avail().y - 8) if both else -1.0
+            if p.law_view in ("log", "both"):
+                _log_log(implot, law, height)
+            if p.law_view in ("square", "both"):
+                _square_cube(implot, ed.scene, height)
     imgui.end()
     if keep is False:
         s.show_plots = False
 
 
+def _log_log(implot: Any, law: Any, height: float) -> None:
+    """log T against log a: the line of slope 3/2 through every closed orbit."""
+    if not implot.begin_plot("Third law: T^2 grows as a^3##law", imgui.ImVec2(-1, height)):
+        return
+    implot.setup_axes("semi-major axis a (au)", "period T (d)")
+    # Legends below the plot area, never over the curves.
+    implot.setup_legend(implot.Location_.south,
+                        implot.LegendFlags_.outside | implot.LegendFlags_.horizontal)
+    implot.setup_axis_scale(implot.ImAxis_.x1, implot.Scale_.log10)
+    implot.setup_axis_scale(implot.ImAxis_.y1, implot.Scale_.log10)
+    # A margin of a fifth of a decade each way, so the end points' names fit.
+    implot.setup_axes_limits(float(law.line_a_m[0] / AU_M) / 1.6,
+                             float(law.line_a_m[-1] / AU_M) * 1.6,
+                             float(law.line_period_s[0] / DAY_S) / 2.0,
+                             float(law.line_period_s[-1] / DAY_S) * 2.0,
+                             implot.Cond_.always)
+    implot.plot_line("T = 2 pi sqrt(a^3/GM): slope 3/2", law.line_a_m / AU_M,
+                     law.line_period_s / DAY_S)
+    implot.plot_scatter("bodies", law.a_m / AU_M, law.period_s / DAY_S)
+    for name, a, T, dy in zip(law.names, law.a_m, law.period_s,
+                              label_offsets(law.a_m, law.line_a_m), strict=True):
+        implot.plot_text(name, float(a / AU_M), float(T / DAY_S), imgui.ImVec2(0, dy))
+    implot.end_plot()
+
+
 def _law_tabs(view: str) -> str:
-    """The two views of the third law: log T against log a, and T^2 against a^3."""
-    for key, label in (("log", "log T vs log a"), ("square", "T^2 vs a^3")):
+    """The views of the third law: log T against log a, T^2 against a^3, or both, one
+    above the other."""
+    for key, label in (("log", "log T vs log a"), ("square", "T^2 vs a^3"),
+                       ("both", "both")):
         if imgui.radio_button(f"{label}##law-view", view == key):
             view = key
         imgui.same_line()
@@ -107,13 +118,13 @@ def _law_tabs(view: str) -> str:
     return view
 
 
-def _square_cube(implot: Any, scene: Any) -> None:
+def _square_cube(implot: Any, scene: Any, height: float = -1.0) -> None:
     """T^2 against a^3: a straight line through the origin of slope 4 pi^2 / GM."""
     sq = square_cube(scene)
     L, T = sq.length_unit, sq.time_unit
     imgui.text(f"slope 4 pi^2 / GM = {format_sig(sq.slope, 6)} {T}^2 / {L}^3")
     if not implot.begin_plot("Third law: T^2 = (4 pi^2 / GM) a^3##square",
-                             imgui.ImVec2(-1, -1)):
+                             imgui.ImVec2(-1, height)):
         return
     implot.setup_axes(f"a^3 ({L}^3)", f"T^2 ({T}^2)")
     implot.setup_legend(implot.Location_.south,
