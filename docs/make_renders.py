@@ -13,7 +13,9 @@ the 2026 Earth-Mars season, made by ``perifocal porkchop`` on the bundled solar 
 ``earth-mars-2026-transfer.png`` its least-total transfer halfway through its flight.
 ``demo-dome.png`` is a 1024 px dome master of the demo's show 14 s in, with its caption
 and clock, as a planetarium gets it; ``presentation.png`` is the window in presentation
-mode (every panel hidden).
+mode (every panel hidden). ``periapsis-show.png`` is that show 24 s in (pace, smooth
+camera, sectors revealed as swept, caption and clock), as ``render --show-at 24`` makes
+it; ``third-law-planets.png`` is ``perifocal plot`` of the planets' mean elements.
 """
 
 from __future__ import annotations
@@ -61,10 +63,15 @@ def main(argv: list[str]) -> int:
             for out_name, camera, t_s in jobs:
                 if wanted and out_name not in wanted and name not in wanted:
                     continue
-                rgba = renderer.render(scene, t_s, SIZE, camera)
+                if name == "periapsis-show":  # a show: its frame 24 s in, as exported
+                    rgba = _show_still(renderer, scene, 24.0)
+                else:
+                    rgba = renderer.render(scene, t_s, SIZE, camera)
                 target = OUT / f"{out_name}.png"
                 atomic_write_bytes(target, png_bytes(rgba))
                 print(f"wrote {target.relative_to(OUT.parent.parent)}")
+        if not wanted or "third-law" in wanted:
+            _third_law(_scenes()["solar-system-mean"])
         if not wanted or "porkchop" in wanted:
             _porkchop(_scenes()["solar-system"], renderer)
         if not wanted or "demo" in wanted or "demo-dome" in wanted:
@@ -72,6 +79,27 @@ def main(argv: list[str]) -> int:
     if not wanted or "presentation" in wanted:
         _presentation(_scenes()["demo"])
     return 0
+
+
+def _show_still(renderer, scene, show_s: float):  # type: ignore[no-untyped-def]
+    """The show's picture ``show_s`` into it (camera keys, pace, reveal, captions, clock),
+    as ``perifocal render --show-at`` makes it."""
+    from viewer.export.show import ShowFrames
+
+    frames = ShowFrames(renderer, scene, SIZE)
+    return frames.at(float(scene.timeline.scene_time_at(show_s)), show_s)
+
+
+def _third_law(scene_path: Path) -> None:
+    """``perifocal plot`` of the planets: log T vs log a beside T^2 vs a^3."""
+    from viewer.export.law_plot import plot
+    from viewer.fileio import atomic_write_bytes
+    from viewer.mission.cautions import CAUTION
+    from viewer.scene import load_scene
+
+    target = OUT / "third-law-planets.png"
+    atomic_write_bytes(target, plot(load_scene(scene_path), "png", CAUTION))
+    print(f"wrote {target.relative_to(OUT.parent.parent)}")
 
 
 def _presentation(scene_path: Path) -> None:
