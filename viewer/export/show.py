@@ -14,9 +14,19 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..scene.model import Scene
-from ..scene.timeline import overlay_at, scene_at_show_time, show_time_of
+from ..scene.timeline import OverlayText, overlay_at, scene_at_show_time, show_time_of
 
 UInt8s = NDArray[np.uint8]
+
+
+def show_picture(scene: Scene, t_s: float, show_s: float | None = None
+                 ) -> tuple[Scene, tuple[OverlayText, ...]]:
+    """What a picture of the show draws at scene time ``t_s`` (``show_s`` into the show;
+    by default the show time that ``t_s`` falls at): the scene with the show's camera and
+    fades applied, and the captions and clock on it. The one recipe of a show frame: the
+    exporter and the window's picture (flat and immersive) both draw this."""
+    show = show_time_of(scene, t_s) if show_s is None else show_s
+    return scene_at_show_time(scene, show, t_s), overlay_at(scene, show, t_s)
 
 
 class ShowFrames:
@@ -38,13 +48,12 @@ class ShowFrames:
 
     def at(self, t_s: float, show_s: float | None = None) -> UInt8s:
         """The picture at scene time ``t_s`` (``show_s`` into the show, if known)."""
-        show = show_time_of(self.scene, t_s) if show_s is None else show_s
-        scene = scene_at_show_time(self.scene, show, t_s)
+        scene, overlay = show_picture(self.scene, t_s, show_s)
         if self.immersive is not None:
             return self.immersive.render(scene, t_s, self.spec, transparent=self.transparent,
-                                         overlay=overlay_at(self.scene, show, t_s))
+                                         overlay=overlay)
         return self.renderer.render(scene, t_s, self.size_px, transparent=self.transparent,
-                                    overlay=overlay_at(self.scene, show, t_s))
+                                    overlay=overlay)
 
     def frame(self, k: int) -> UInt8s:
         """Frame ``k`` of the timeline."""

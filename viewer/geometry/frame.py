@@ -365,7 +365,7 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     strokes = np.vstack([static.strokes, moving]) if len(moving) else static.strokes
     marker_rows = np.vstack([static.markers, markers.array(), arrows.array()])
     for text in overlay:
-        labels.append(_overlay_label(text, measure, (w, h), hs))
+        labels.append(_overlay_label(text, measure, (w, h), hs, view.label_box_px))
         x0, y0 = labels[-1].at_px  # type: ignore[misc]
         tw, asc, desc = measure(text.text, text.size_px * hs)
         obstacles.append((x0, y0 - asc, x0 + tw, y0 + desc))
@@ -387,9 +387,12 @@ OVERLAY_MARGIN_PX = 28.0
 
 
 def _overlay_label(text: OverlayText, measure: Measure, size: tuple[int, int],
-                   hs: float) -> LabelRequest:
-    """A caption or the clock as a label fixed at its position on the picture."""
-    w, h = size
+                   hs: float, box: tuple[float, float, float, float] | None = None
+                   ) -> LabelRequest:
+    """A caption or the clock as a label fixed at its position on the picture (inside
+    ``box``, x0, y0, x1, y1 px, when given: the window's area between its panels)."""
+    bx, by, bx1, by1 = box if box is not None else (0.0, 0.0, float(size[0]), float(size[1]))
+    w, h = bx1 - bx, by1 - by
     px = text.size_px * hs
     tw, asc, desc = measure(text.text, px)
     m = OVERLAY_MARGIN_PX * hs
@@ -401,6 +404,7 @@ def _overlay_label(text: OverlayText, measure: Measure, size: tuple[int, int],
         y = h - m - desc
     else:
         y = 0.5 * (h + asc - desc)
+    x, y = x + bx, y + by
     return LabelRequest(text.text, (x, y), 0.0, px, text.rgba, -1, at_px=(x, y))
 
 

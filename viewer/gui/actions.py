@@ -26,8 +26,8 @@ When = Callable[[Any], bool]
 
 #: How a key symbol is written for people.
 _KEY_TEXT = {"SPACE": "Space", "LEFT": "Left", "RIGHT": "Right", "UP": "Up", "DOWN": "Down",
-             "HOME": "Home", "BRACKETLEFT": "[", "BRACKETRIGHT": "]", "ESCAPE": "Esc",
-             "RETURN": "Enter"}
+             "HOME": "Home", "END": "End", "BRACKETLEFT": "[", "BRACKETRIGHT": "]",
+             "ESCAPE": "Esc", "RETURN": "Enter", "DELETE": "Delete"}
 
 
 @dataclass(frozen=True)
@@ -74,27 +74,83 @@ def _no_job(s: Any) -> bool:
 
 
 def _toggle_play(s: Any) -> None:
-    s.clock.playing = not s.clock.playing
+    s.toggle_play()
 
 
-def _half_rate(s: Any) -> None:
-    s.clock.rate /= 2.0
+#: Playback speeds of the show (times real time) that [ and ] step through.
+SPEEDS = (0.125, 0.25, 0.5, 1.0, 2.0, 4.0, 8.0)
 
 
-def _double_rate(s: Any) -> None:
-    s.clock.rate *= 2.0
+def _speed(step: int) -> Run:
+    """On the show: the next playback speed; off it: the scene rate halved or doubled."""
+    def run(s: Any) -> None:
+        c = s.clock
+        if not c.on_show:
+            c.rate *= 2.0 ** step
+            return
+        k = min(range(len(SPEEDS)), key=lambda j: abs(SPEEDS[j] - c.speed))
+        c.speed = SPEEDS[max(0, min(len(SPEEDS) - 1, k + step))]
+        s.message = f"playback speed {c.speed:g} x real time"
+    return run
 
 
 def _to_start(s: Any) -> None:
-    s.clock.t_s = s.editor.scene.timeline.start_s
+    if s.clock.on_show:
+        s.seek_show(0.0)
+    else:
+        s.clock.seek_scene(s.editor.scene.timeline.start_s)
+
+
+def _to_end(s: Any) -> None:
+    s.seek_show(s.editor.scene.timeline.duration_s)
+
+
+def _step(frames: int) -> Run:
+    def run(s: Any) -> None:
+        s.clock.step(frames)
+        if s.clock.on_show:
+            s.follow_camera = True
+    return run
+
+
+def _step_seconds(seconds: float) -> Run:
+    def run(s: Any) -> None:
+        s.seek_show(s.clock.show_s + seconds)
+    return run
 
 
 def _to_apsis(which: str) -> Run:
     def run(s: Any) -> None:
         t = next_apsis_s(s.editor.body, s.clock.t_s, which)
         if t is not None:
-            s.clock.t_s = t
+            s.clock.seek_scene(t)
     return run
+
+
+def _toggle_loop(s: Any) -> None:
+    s.clock.loop = not s.clock.loop
+
+
+def _delete_picked(s: Any) -> None:
+    """Delete what the timeline panel has selected (a key, a fade point, a caption)."""
+    from . import timeline_edits as te
+
+    p = s.picked
+    if p is None:
+        return
+    kind = p[0]
+    if kind == "camera":
+        done = s.try_edit_show(lambda tl: te.delete_camera_key(tl, p[1]),
+                               f"delete camera key {p[1] + 1}")
+    elif kind == "fade" and len(p) > 2:
+        done = s.try_edit_show(lambda tl: te.delete_fade_point(tl, p[1], p[2]),
+                               "delete a fade point")
+    elif kind == "fade":
+        done = s.try_edit_show(lambda tl: te.delete_fade(tl, p[1]), "delete a fade")
+    else:
+        done = s.try_edit_show(lambda tl: te.delete_caption(tl, p[1]), "delete a caption")
+    if done is not None:
+        s.picked = None
 
 
 def _select_step(step: int) -> Run:
@@ -174,7 +230,7 @@ ACTIONS: tuple[Action, ...] = (
            lambda s: s.open_save_as(), "File"),
     Action("still", "Export a still of the view...", (C("E", ctrl=True),),
            lambda s: s.show_still(), "File"),
-    Action("render", "Render the timeline...", (C("R", ctrl=True),), lambda s: s.show_job(),
+    Action("render", "Render the show...", (C("R", ctrl=True),), lambda s: s.show_job(),
            "File", _no_job),
     Action("quit", "Quit", (C("Q", ctrl=True),), lambda s: s.request_quit(), "File"),
     # Edit
@@ -211,16 +267,33 @@ ACTIONS: tuple[Action, ...] = (
            _close_top),
     # Time
     Action("play", "Play / pause", (C("SPACE"),), _toggle_play, "Time"),
-    Action("step_back", "Step one frame back", (C("LEFT"),), lambda s: s.clock.step(-1),
-           "Time"),
-    Action("step_on", "Step one frame on", (C("RIGHT"),), lambda s: s.clock.step(1), "Time"),
-    Action("slower", "Halve the rate", (C("BRACKETLEFT"),), _half_rate, "Time"),
-    Action("faster", "Double the rate", (C("BRACKETRIGHT"),), _double_rate, "Time"),
-    Action("start", "Back to the timeline start", (C("HOME"),), _to_start, "Time"),
+    Action("step_back", "Step one frame back", (C("LEFT"),), _step(-1), "Time"),
+    Action("step_on", "Step one frame on", (C("RIGHT"),), _step(1), "Time"),
+    Action("slower", "Slower: the show's playback speed (off the show: the rate)",
+           (C("BRACKETLEFT"),), _speed(-1), "Time"),
+    Action("faster", "Faster: the show's playback speed (off the show: the rate)",
+           (C("BRACKETRIGHT"),), _speed(1), "Time"),
+    Action("start", "Back to the start of the show", (C("HOME"),), _to_start, "Time"),
     Action("periapsis", "Next periapsis of the selected body", (C("P"),),
            _to_apsis("periapsis"), "Time", _has_body),
     Action("apoapsis", "Next apoapsis of the selected body", (C("O"),),
            _to_apsis("apoapsis"), "Time", _has_body),
+    # Show
+    Action("timeline", "Timeline panel", (C("T", ctrl=True),), _toggle("show_timeline"),
+           "Show", _always, _flag("show_timeline")),
+    Action("key_camera", "Key the camera here", (C("K"),), lambda s: s.key_camera_here(),
+           "Show"),
+    Action("delete_key", "Delete the selected key or caption", (C("DELETE"),),
+           _delete_picked, "Show", lambda s: s.picked is not None),
+    Action("loop", "Loop the show", (C("L"),), _toggle_loop, "Show", _always,
+           lambda s: bool(s.clock.loop)),
+    Action("second_back", "One second of show back", (C("LEFT", shift=True),),
+           _step_seconds(-1.0), "Show"),
+    Action("second_on", "One second of show on", (C("RIGHT", shift=True),),
+           _step_seconds(1.0), "Show"),
+    Action("show_end", "To the end of the show", (C("END"),), _to_end, "Show"),
+    Action("new_show", "New show...", (C("N", ctrl=True, shift=True),),
+           lambda s: s.show_new_show(), "Show"),
     # Help
     Action("help", "Shortcuts", (C("F1"), C("H")), _toggle("show_help"), "Help", _always,
            _flag("show_help")),
@@ -228,12 +301,13 @@ ACTIONS: tuple[Action, ...] = (
 
 #: The menus in the order of the menu bar ("Mission" is drawn by the panels: its entries
 #: open tabs, not actions).
-MENUS = ("File", "Edit", "View", "Overlays", "Time", "Help")
+MENUS = ("File", "Edit", "View", "Overlays", "Time", "Show", "Help")
 
 #: Help rows for what is not an action.
 EXTRA_HELP = (
     ("drag", "turn the view"), ("right-drag, Shift+drag", "pan"),
     ("wheel", "zoom toward the cursor"), ("Enter", "apply a typed value"),
+    ("click, drag on the timeline", "select a key, move it in time"),
     ("Esc", "leave a field unchanged"),
 )
 

@@ -21,7 +21,7 @@ from pathlib import Path
 
 from ..orbit import AU_M, DAY_S, JULIAN_YEAR_S, Elements
 from ..scene.loader import free_color
-from ..scene.model import Body, BodyShow, Center, Scene, Sweep
+from ..scene.model import Body, BodyShow, Center, Scene, Sweep, Timeline
 from ..scene.report import orbit_warnings
 from ..units import EpochError, QuantityError, parse_epoch, parse_quantity
 from .elements_edit import FIELDS, HOLDS, EditRefused, edit_elements, kept_text
@@ -499,6 +499,19 @@ class Editor:
                   for b in self.scene.bodies]
         scene = _refresh_scene_warnings(replace(self.scene, center=center, bodies=tuple(bodies)))
         self._push(scene, self._now.selection, self._now.ids, "central body")
+
+    # --- the show -------------------------------------------------------------------
+
+    def edit_timeline(self, timeline: Timeline, label: str, merge: bool = False) -> bool:
+        """Put ``timeline`` (made by ``viewer.gui.timeline_edits``, which refuses what the
+        file does not allow) in place of the scene's show, in one edit; ``merge`` joins
+        a continuing gesture (a key being dragged) into one undo step. False (no edit)
+        when it is the show already."""
+        if timeline == self.scene.timeline:
+            return False
+        self._push(replace(self.scene, timeline=timeline), self._now.selection,
+                   self._now.ids, label, merge)
+        return True
 
     # --- the scene epoch --------------------------------------------------------------
 

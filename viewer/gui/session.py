@@ -11,7 +11,12 @@ The flows a user walks through live here, so they are tested without a window:
   recent files (saved per user, ``settings``); the loader's or the writer's problems are
   shown in the dialog, one line each, and the current scene is kept;
 * a still of the current view (PNG, JPEG, SVG) and a render job of the timeline (a frame
-  folder or an .mp4) through ``jobs``.
+  folder or an .mp4) through ``jobs``;
+* the show: the window follows the show's camera while it plays (the view is the show
+  camera at the show time); a camera move of the user's stops following until the show
+  plays or is sought again; "Key the camera here" stores the view as a camera key at the
+  frame shown; show edits (``timeline_edits``) go through the editor's history; a new
+  show from nothing takes its first camera key from the view.
 """
 
 from __future__ import annotations
@@ -26,6 +31,7 @@ from .clock import Clock
 from .editor import Editor
 from .files import Entry, FileChooser, folder_of
 from .jobs import RenderJob, export_still, job_request, still_request
+from .timeline_edits import TimelineRefused
 
 __all__ = ["Session"]
 
@@ -85,8 +91,27 @@ class Session:
     job_quality: str = "preview"
     job_window_camera: bool = True
     job_errors: list[str] = field(default_factory=list)
+    job_view: str = "flat"
+    #: The show time range to render, in seconds of show ("" for the whole show).
+    job_from: str = ""
+    job_to: str = ""
     job: RenderJob | None = None
     renderer: Any = None
+    #: The timeline panel (docked along the bottom, above Time).
+    show_timeline: bool = False
+    #: True while the view is the show's camera (it follows the show as it plays).
+    follow_camera: bool = True
+    #: What the timeline panel has selected: ("camera", key), ("fade", fade, point),
+    #: ("caption", caption) or None.
+    picked: tuple[Any, ...] | None = None
+    new_show_prompt: bool = False
+    new_show_duration: str = "30 s"
+    new_show_rate: str = ""
+    new_show_fps: str = "30"
+    new_show_clock: str = "date"
+    new_show_errors: list[str] = field(default_factory=list)
+    _show_camera: Any = None
+    _show_for: tuple[Any, ...] = ()
 
     @property
     def quit_prompt(self) -> bool:
@@ -97,7 +122,7 @@ class Session:
     def any_dialog(self) -> bool:
         """True while a modal prompt or dialog takes the keyboard."""
         return bool(self.unsaved_for or self.save_as_prompt or self.open_prompt
-                    or self.still_prompt or self.job_prompt)
+                    or self.still_prompt or self.job_prompt or self.new_show_prompt)
 
     # --- quitting, saving -------------------------------------------------------------------
 
@@ -230,6 +255,126 @@ class Session:
         self.clock = Clock.for_scene(editor.scene)
         self.camera = editor.scene.camera
         self.still_text = self.job_text = ""
+        self.picked = None
+        self.follow_camera = True
+
+    # --- the show ---------------------------------------------------------------------------
+
+    def sync_show(self) -> None:
+        """Once a frame, before drawing: the clock follows the (maybe edited) timeline;
+        on the show and following, the view is the show's camera at the frame shown. A
+        camera the user moved since (not the one set here) stops the following."""
+        from ..scene.timeline import camera_at
+
+        scene = self.editor.scene
+        self.clock.follow_show(scene.timeline)
+        if self._show_camera is not None and self.camera is not self._show_camera:
+            self.follow_camera = False
+            self._show_camera = None
+        if not (self.clock.on_show and self.follow_camera and scene.timeline.camera_keys):
+            self._show_camera = None
+            return
+        at = (scene, self.clock.frame_show_s, self.clock.t_s)
+        if self._show_camera is not None and self._show_for[0] is scene \
+                and self._show_for[1:] == at[1:]:
+            return  # the same frame of the same show: the same camera object (no redraw)
+        try:
+            cam = camera_at(scene, self.clock.frame_show_s, self.clock.t_s)
+        except KeyError:  # a key follows a body that is gone: keep the view
+            return
+        self.camera = self._show_camera = cam
+        self._show_for = at
+
+    def seek_show(self, show_s: float) -> None:
+        """Go to a time into the show; the view follows the show's camera again."""
+        self.clock.seek_show(show_s)
+        self.follow_camera = True
+
+    def toggle_play(self) -> None:
+        """Play or pause; playing the show, the view is the show's camera."""
+        self.clock.toggle()
+        if self.clock.playing and self.clock.on_show:
+            self.follow_camera = True
+
+    def edit_show(self, edit: Any, label: str, merge: bool = False) -> Any:
+        """Apply ``edit(timeline)`` (a ``timeline_edits`` function returning a Timeline,
+        or (Timeline, index)) through the editor's history; returns what it returned.
+        TimelineRefused passes to the caller with nothing changed."""
+        out = edit(self.editor.scene.timeline)
+        tl = out[0] if isinstance(out, tuple) else out
+        self.editor.edit_timeline(tl, label, merge)
+        return out
+
+    def try_edit_show(self, edit: Any, label: str, merge: bool = False) -> Any:
+        """``edit_show`` for a button or key: a refusal goes to the message line."""
+        try:
+            return self.edit_show(edit, label, merge)
+        except TimelineRefused as err:
+            self.message = "refused: " + err.problems[0]
+            return None
+
+    def key_camera_here(self) -> None:
+        """Store the view as a camera key at the frame shown (the key there, if there is
+        one, takes the view instead)."""
+        from ..scene.timeline import resolved_keys
+        from .timeline_edits import add_camera_key, delete_camera_key, key_from_camera
+
+        if not self.clock.on_show:
+            self.clock.seek_show(self.clock.show_s)
+        at = self.clock.frame_show_s
+        scene = self.editor.scene
+        keys = scene.timeline.camera_keys
+        same = [i for i, k in enumerate(keys) if abs(k.at_s - at) < 1e-9]
+        before = [c for t, _, c in resolved_keys(scene) if t < at - 1e-9]
+        base = before[-1] if before else scene.camera
+        ease = keys[same[0]].ease if same else "in-out"
+        key = key_from_camera(self.camera, at, base, ease)
+
+        def edit(tl: Any) -> Any:
+            if same:
+                tl = delete_camera_key(tl, same[0])
+            return add_camera_key(tl, key)
+
+        out = self.try_edit_show(edit, f"camera key at {at:g} s")
+        if out is not None:
+            self.picked = ("camera", out[1])
+            self.follow_camera = True
+            self.message = (f"camera key {out[1] + 1} at {at:g} s holds the view "
+                            "(Ctrl+Z undoes)")
+
+    def show_new_show(self) -> None:
+        """Open the "New show" dialog (duration, rate, fps, clock)."""
+        self.new_show_prompt = True
+        self.new_show_errors = []
+        if not self.new_show_rate:
+            from .timeline_edits import rate_text
+
+            self.new_show_rate = rate_text(self.editor.scene.timeline.rate)
+
+    def new_show(self) -> bool:
+        """Give the scene a new show from the dialog's fields, its first camera key the
+        view; one edit. Refused values stay in the dialog, one line each."""
+        from .timeline_edits import add_camera_key, key_from_camera, new_show_from_text
+
+        start = self.clock.t_s
+        try:
+            tl = new_show_from_text(self.new_show_duration, self.new_show_rate,
+                                    self.new_show_fps, self.new_show_clock, start)
+            tl, _ = add_camera_key(tl, key_from_camera(self.camera, 0.0))
+        except TimelineRefused as err:
+            self.new_show_errors = _lines(err)
+            return False
+        self.editor.edit_timeline(tl, "new show")
+        self.clock.follow_show(tl)
+        self.seek_show(0.0)
+        self.show_timeline = True
+        self.new_show_prompt = False
+        self.new_show_errors = []
+        self.picked = ("camera", 0)
+        self.message = (f"a new show of {tl.duration_s:g} s from "
+                        f"{self.editor.scene.epoch.plus_seconds(start).iso()}; its first "
+                        "camera key holds the view")
+        return True
 
     # --- exports ------------------------------------------------------------------------------
 

@@ -236,7 +236,8 @@ class ViewerWindow:
         from .panels import scene_area
 
         s = self.session
-        return scene_area(self.window.get_framebuffer_size(), s.ui_scale, s.presenting)
+        return scene_area(self.window.get_framebuffer_size(), s.ui_scale, s.presenting,
+                          s.show_timeline)
 
     def _shift_m(self, view: Any) -> Any:
         """World offset (m) from the camera's target to the point drawn at the window's
@@ -295,7 +296,7 @@ class ViewerWindow:
     def _view_settings(self) -> Any:
         s = self.session
         return (s.presenting, s.fullscreen, tuple(sorted(s.overlays.items())), s.fit_wanted,
-                s.view_mode)
+                s.view_mode, s.show_timeline, s.clock.on_show, s.clock.frame)
 
     def _apply_view_settings(self) -> None:
         """Full screen (on the chosen screen) and "fit" as the session asks."""
@@ -316,6 +317,7 @@ class ViewerWindow:
         """Draw one frame: the scene, then the panels over it (not flipped yet)."""
         imgui = self._imgui
         t0 = time.perf_counter()
+        self.session.sync_show()  # the clock and the view follow the show
         self._apply_view_settings()
         # What this frame shows; an edit made by the panels below changes the revision
         # again, so the loop draws the next frame at once (the edit is seen next frame).
@@ -337,9 +339,12 @@ class ViewerWindow:
         if self.renderer is not None:
             try:
                 if self.session.view_mode == "flat":
-                    drawn_scene = scene_with_overlays(self.editor.scene, self.session.overlays)
+                    # The show's fades, captions and clock as the export draws them
+                    # (export.show.show_picture), seen through the window's view.
+                    shown, overlay = self._show_picture()
+                    drawn_scene = scene_with_overlays(shown, self.session.overlays)
                     geom = self.renderer.geometry(drawn_scene, self.session.clock.t_s,
-                                                  self._view())
+                                                  self._view(), overlay=overlay)
                     self.renderer.draw(geom, self.ctx.screen)
                 else:
                     self._draw_immersive(fw, fh, moving)
@@ -366,6 +371,14 @@ class ViewerWindow:
         if self.ui_report is not None:
             self._write_report()
 
+    def _show_picture(self) -> Any:
+        """(scene as drawn, captions and clock) at the frame shown: on the show its frame
+        of the export's grid, else the show time the scene time falls at (as a still)."""
+        from ..export.show import show_picture
+
+        c = self.session.clock
+        return show_picture(self.editor.scene, c.t_s, c.frame_show_s if c.on_show else None)
+
     def _draw_immersive(self, fw: int, fh: int, moving: bool = False) -> None:
         """The dome master or panorama of the scene as the export makes it (the show's
         camera, fades, captions and clock), at most 1024 px high, centred in the picture
@@ -374,7 +387,6 @@ class ViewerWindow:
         from pyglet import gl
 
         from ..export.immersive import Immersive, ImmersiveRenderer, preview_size
-        from ..scene.timeline import overlay_at, scene_at_show_time, show_time_of
 
         if self._immersive is None:
             self._immersive = ImmersiveRenderer(self.renderer)
@@ -383,10 +395,8 @@ class ViewerWindow:
         spec = Immersive(self.session.view_mode, size,
                          grid=1 if moving or size[1] >= 4096 else 2)
         # As ShowFrames.at makes the exported frame, without reading it back.
-        scene, t_s = self.editor.scene, self.session.clock.t_s
-        show = show_time_of(scene, t_s)
-        fbo = self._immersive.draw(scene_at_show_time(scene, show, t_s), t_s, spec,
-                                   overlay=overlay_at(scene, show, t_s))
+        shown, overlay = self._show_picture()
+        fbo = self._immersive.draw(shown, self.session.clock.t_s, spec, overlay=overlay)
         self.ctx.screen.use()
         self.ctx.clear(0.0, 0.0, 0.0, 1.0)
         # The master is drawn top row first: blit it flipped, centred in the area (GL
@@ -404,8 +414,24 @@ class ViewerWindow:
         assert self.ui_report is not None
         r = dict(self.panels.report)
         r["frames"] = self.frames_drawn
-        r["t_s"] = self.session.clock.t_s
-        r["playing"] = self.session.clock.playing
+        c = self.session.clock
+        r["t_s"] = c.t_s
+        r["playing"] = c.playing
+        r["on_show"] = c.on_show
+        r["show_s"] = c.show_s
+        r["frame"] = c.frame
+        r["speed"] = c.speed
+        r["loop"] = c.loop
+        r["follow_camera"] = self.session.follow_camera
+        r["picked"] = list(self.session.picked) if self.session.picked else None
+        r["show_timeline"] = self.session.show_timeline
+        tl = self.editor.scene.timeline
+        r["show"] = {"duration_s": tl.duration_s, "fps": tl.fps,
+                     "camera_keys": [k.at_s for k in tl.camera_keys],
+                     "fades": [list(f.at_s) for f in tl.fades],
+                     "captions": [[c.text, c.start_s, c.end_s] for c in tl.captions]}
+        r["can_undo"] = self.editor.can_undo
+        r["can_redo"] = self.editor.can_redo
         r["selection"] = self.editor.selection
         r["message"] = self.session.message
         r["dirty"] = self.editor.dirty  # after this frame's edits, like the readout

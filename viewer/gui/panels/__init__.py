@@ -3,14 +3,16 @@ the editor; nothing else.
 
 Layout (our own): a menu bar; on the left "Bodies" (the list and the central body) above
 "Marks" (drawing toggles, style, equal-time sectors); on the right "Orbit" (the element
-editor and its lock) above "Numbers" (the live readout); along the bottom "Time". A help
+editor and its lock) above "Numbers" (the live readout); along the bottom "Time", and
+above it, between the side columns, the "Timeline" of the show (Ctrl+T). A help
 overlay lists the shortcuts; modal prompts ask before quitting with unsaved changes and
 for a file name on save-as. Every number shown carries its unit.
 
 Modules: ``widgets`` (layout, colours, the shared widgets, among them the typed field
 that parses, commits and shows its refusal), ``menu``, ``bodies`` (Bodies and Marks),
 ``orbit`` (the element editor's tabs), ``mission_tabs`` (quick answers, transfers),
-``numbers`` (the readout), ``time_panel``, ``plots_window``, ``season`` (the launch
+``numbers`` (the readout), ``time_panel``, ``timeline`` (the show's tracks),
+``plots_window``, ``season`` (the launch
 season's pork-chop plot), ``dialogs``. Keyboard
 shortcuts, menu entries and the help overlay come from one table, ``viewer.gui.actions``.
 
@@ -29,8 +31,18 @@ from ..editor import Editor
 from ..mission import QuickInputs
 from ..porkchop import SeasonState
 from ..session import Session
-from . import bodies, dialogs, menu, numbers, orbit, plots_window, season, time_panel
-from .widgets import GAP, LEFT_W, MENU_H, RIGHT_W, TIME_H, Widgets, scene_area
+from . import (
+    bodies,
+    dialogs,
+    menu,
+    numbers,
+    orbit,
+    plots_window,
+    season,
+    time_panel,
+    timeline,
+)
+from .widgets import GAP, LEFT_W, MENU_H, RIGHT_W, TIME_H, TIMELINE_H, Widgets, scene_area
 
 __all__ = ["Panels", "Session", "scene_area", "shortcut_list"]
 
@@ -58,6 +70,8 @@ class Panels(Widgets):
     #: The via radius the plans use: the one typed, else ``default_via``'s.
     via_shown: str = ""
     report: dict[str, Any] = field(default_factory=dict)
+    #: A drag on the timeline's tracks: what it moves (None: the scrub bar).
+    timeline_drag: dict[str, Any] | None = None
     _editor: Any = None
 
     def _reset_for(self, editor: Editor) -> None:
@@ -95,6 +109,7 @@ class Panels(Widgets):
         dialogs.open_dialog(self, s)
         dialogs.still_dialog(self, s)
         dialogs.job_dialog(self, s)
+        dialogs.new_show_dialog(self, s)
 
 
     def _home_panels(self, s: Session, w: float, h: float) -> None:
@@ -112,6 +127,10 @@ class Panels(Widgets):
             numbers.draw(self, s, (w - right - gap, split + gap),
                          (right, h - split - time_h - 3 * gap))
         time_panel.draw(self, s, (gap, h - time_h - gap), (w - 2 * gap, time_h))
+        if s.show_timeline:
+            x0, x1 = left + 2 * gap, w - right - 2 * gap
+            tl_h = TIMELINE_H * k
+            timeline.draw(self, s, (x0, h - time_h - tl_h - 2 * gap), (x1 - x0, tl_h))
 
 
 def shortcut_list() -> tuple[tuple[str, str], ...]:

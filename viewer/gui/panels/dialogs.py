@@ -19,6 +19,7 @@ from .widgets import (
     GAP,
     _rect,
     centre_next_window,
+    px,
     scene_area,
 )
 
@@ -221,10 +222,41 @@ def job_dialog(p: Panels, s: Session) -> None:
     p.end_dialog(s, "job_prompt", "Start", entered, s.start_job)
 
 
+def new_show_dialog(p: Panels, s: Session) -> None:
+    if not p.modal("New show", s.new_show_prompt):
+        return
+    scene = s.editor.scene
+    when = scene.epoch.plus_seconds(s.clock.t_s).iso()
+    imgui.text(f"A show from the scene time shown ({when}),")
+    imgui.text("its first camera key the view in the window.")
+    if scene.timeline.camera_keys or scene.timeline.fades or scene.timeline.captions:
+        imgui.text_colored(AMBER, "This replaces the scene's show (Ctrl+Z brings it back).")
+    for attr, label, hint in (("duration", "duration", "30 s"), ("rate", "rate", "5 d/s"),
+                              ("fps", "frames per second", "30")):
+        imgui.align_text_to_frame_padding()
+        imgui.text(f"{label}:")
+        imgui.same_line(px(190))
+        imgui.set_next_item_width(px(160))
+        _, value = imgui.input_text_with_hint(f"##newshow{attr}", hint,
+                                              getattr(s, f"new_show_{attr}"))
+        p.report["rects"][f"newshow:{attr}"] = _rect()
+        setattr(s, f"new_show_{attr}", value)
+    imgui.align_text_to_frame_padding()
+    imgui.text("clock:")
+    for c in ("none", "date", "elapsed"):
+        imgui.same_line()
+        if imgui.radio_button(f"{c}##newshowclock", s.new_show_clock == c):
+            s.new_show_clock = c
+    p.error_lines(s.new_show_errors)
+    p.report["new_show_errors"] = list(s.new_show_errors)
+    p.end_dialog(s, "new_show_prompt", "Make the show", False, s.new_show)
+
+
 def job_progress(p: Panels, s: Session, w: float, h: float) -> None:
     job = s.job
     assert job is not None
-    x0, top, fw, fh = scene_area((int(w), int(h)), s.ui_scale, s.presenting)
+    x0, top, fw, fh = scene_area((int(w), int(h)), s.ui_scale, s.presenting,
+                                 s.show_timeline)
     width = min(620.0, fw - 2 * GAP)
     imgui.set_next_window_pos(imgui.ImVec2(x0 + 0.5 * (fw - width), top + fh - 112 - GAP),
                               imgui.Cond_.first_use_ever)

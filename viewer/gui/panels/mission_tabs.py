@@ -224,7 +224,7 @@ def _plan_details(p: Panels, s: Session, plan: TransferPlan) -> None:
     if plan.next_window_s is not None:
         imgui.same_line()
         if p.button("Jump to the next departure window"):
-            s.clock.t_s = plan.next_window_s
+            s.clock.seek_scene(plan.next_window_s)
     imgui.text_colored(DIM, f"departs at {scene.epoch.plus_seconds(t).iso()}")
     imgui.separator_text("Burns (dv: + prograde, - retrograde)")
     if imgui.begin_table("tr-burns", 4, imgui.TableFlags_.row_bg

@@ -189,7 +189,7 @@ def _contents(p: Panels, s: Session, implot: Any) -> None:
             try:
                 st.added = pick(ed, res, cell, st.added)
                 ed.select(st.added)
-                s.clock.t_s = float(res.grid.t_dep_s[cell[0]])
+                s.clock.seek_scene(float(res.grid.t_dep_s[cell[0]]))
                 s.message = (f"added the transfer {res.dep.name} to {res.arr.name} departing "
                              f"{cell_rows(scene, res, cell)[0][1]} (Ctrl+Z undoes)")
             except EditRefused as err:

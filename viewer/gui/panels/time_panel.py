@@ -10,6 +10,7 @@ from ...orbit import DAY_S
 from ...units import parse_quantity
 from ..clock import next_apsis_s
 from ..session import Session
+from ..timeline_edits import rate_text
 from .widgets import (
     DIM,
     RED,
@@ -23,7 +24,7 @@ def draw(p: Panels, s: Session, pos: tuple[float, float], size: tuple[float, flo
     ed, clock = s.editor, s.clock
     if p.window("Time", pos, size):
         if p.button("Pause" if clock.playing else "Play", imgui.ImVec2(70, 0)):
-            clock.playing = not clock.playing
+            s.toggle_play()
         imgui.same_line()
         if p.button("<|"):
             clock.step(-1)
@@ -37,7 +38,7 @@ def draw(p: Panels, s: Session, pos: tuple[float, float], size: tuple[float, flo
             if p.button(label) and b is not None:
                 t = next_apsis_s(b, clock.t_s, which)
                 if t is not None:
-                    clock.t_s = t
+                    clock.seek_scene(t)
             imgui.end_disabled()
             imgui.same_line()
         imgui.text("   rate")
@@ -45,7 +46,7 @@ def draw(p: Panels, s: Session, pos: tuple[float, float], size: tuple[float, flo
         def set_rate(text: str) -> None:
             clock.rate = parse_quantity(text, "rate", "d/s")
 
-        p.typed_field("rate", _rate_text(clock.rate), set_rate, 130, refusal=False)
+        p.typed_field("rate", rate_text(clock.rate), set_rate, 130, refusal=False)
         imgui.same_line()
         when = ed.scene.epoch.plus_seconds(clock.t_s).iso()
         imgui.text(f"   {when}   ({clock.t_s / DAY_S:+.3f} d since the scene epoch)")
@@ -56,8 +57,8 @@ def draw(p: Panels, s: Session, pos: tuple[float, float], size: tuple[float, flo
         imgui.set_next_item_width(-1)
         changed, days = imgui.slider_float("##scrub", clock.t_s / DAY_S, lo / DAY_S,
                                            hi / DAY_S, "%.2f d")
-        if changed:
-            clock.t_s = days * DAY_S
+        if changed:  # scene time: off the show (the timeline panel scrubs the show)
+            clock.seek_scene(days * DAY_S)
         _epoch(p, s)
     imgui.end()
 
@@ -81,12 +82,3 @@ def _epoch(p: Panels, s: Session) -> None:
     else:
         imgui.text_colored(DIM, "ISO date and time with UTC, TT or TDB (TDB when none); "
                            "Enter sets it. Bodies keep their own epochs.")
-
-
-def _rate_text(rate: float) -> str:
-    """A rate in the largest time unit per second that keeps it readable."""
-    for unit, f in (("yr", 365.25 * DAY_S), ("d", DAY_S), ("h", 3600.0), ("min", 60.0)):
-        if abs(rate) >= f:
-            return f"{rate / f:.6g} {unit}/s"
-    return f"{rate:.6g} s/s"
-

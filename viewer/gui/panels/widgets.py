@@ -20,6 +20,8 @@ MENU_H = 26.0
 LEFT_W = 340.0
 RIGHT_W = 490.0
 TIME_H = 118.0
+#: Height of the timeline panel, docked between the side columns above "Time".
+TIMELINE_H = 262.0
 GAP = 6.0
 #: Width of a dialog's text (its path input and its wrapped problems), px.
 DIALOG_TEXT_W = 640.0
@@ -48,17 +50,18 @@ SHOW_LABELS = tuple((m.name, m.label) for m in MARKS)
 
 
 def scene_area(size: tuple[int, int], scale: float = 1.0,
-               presenting: bool = False) -> tuple[int, int, int, int]:
+               presenting: bool = False, timeline: bool = False) -> tuple[int, int, int, int]:
     """(x, y from the top, width, height) in px of the window left for the picture
     between the panels' home places (at least a quarter of the window each way); the
-    whole window while presenting (no panels). ``scale`` is the UI scale."""
+    whole window while presenting (no panels). ``scale`` is the UI scale; ``timeline``:
+    the timeline panel is shown (above "Time", between the side columns)."""
     w, h = size
     if presenting:
         return 0, 0, w, h
     x0 = int(scale * (LEFT_W + 2 * GAP))
     x1 = int(w - scale * (RIGHT_W + 2 * GAP))
     top = int(scale * MENU_H)
-    bottom = int(h - scale * (TIME_H + 2 * GAP))
+    bottom = int(h - scale * (TIME_H + 2 * GAP + ((TIMELINE_H + GAP) if timeline else 0.0)))
     if x1 - x0 < w // 4:
         x0, x1 = 0, w
     if bottom - top < h // 4:
