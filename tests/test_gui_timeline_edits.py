@@ -179,3 +179,33 @@ def test_the_show_clock_keeps_real_time_and_the_frame_grid(scene) -> None:  # ty
     assert c.frame == 301 and c.show_s == pytest.approx(301 / 30)
     c.seek_scene(5 * 86400.0)
     assert not c.on_show and c.show_s == pytest.approx(2.5)
+
+
+def test_a_saved_show_edit_changes_only_its_own_table(tmp_path, scene) -> None:  # type: ignore[no-untyped-def]
+    import difflib
+
+    path = tmp_path / "show.toml"
+    text = SCENE.replace('[[timeline.fade]]', '# the sectors come in\n[[timeline.fade]]')
+    path.write_text(text, encoding="utf-8")
+    ed = Editor.open(path)
+    key = te.key_from_camera(replace(ed.scene.camera, look="top", width_m=3e11), 5.0)
+    ed.edit_timeline(te.add_camera_key(ed.scene.timeline, key)[0], "key")
+    ed.edit_timeline(te.move_fade_point(ed.scene.timeline, 0, 1, 6.0), "move")
+    ed.save()
+    after = path.read_text(encoding="utf-8")
+    diff = [ln for ln in difflib.unified_diff(text.splitlines(), after.splitlines(),
+                                              lineterm="", n=0)
+            if ln[:1] in "+-" and not ln.startswith(("+++", "---"))]
+    removed = [ln[1:] for ln in diff if ln.startswith("-")]
+    added = [ln[1:] for ln in diff if ln.startswith("+")]
+    # The fade table is rewritten, its comment kept; the new key is a readable table.
+    assert removed == ['at = ["2 s", "4 s"]'] or set(removed) <= {
+        '[[timeline.fade]]', 'body = "Quill"', 'mark = "sweep"', 'at = ["2 s", "4 s"]',
+        'opacity = [0, 1]', ''}
+    assert "[[timeline.camera]]" in added and 'at = "5 s"' in added
+    assert 'look = "top"' in added and "# the sectors come in" in after
+    again = Editor.open(path).scene.timeline
+    assert [k.at_s for k in again.camera_keys] == [0.0, 5.0, 10.0]
+    assert again.fades[0].at_s == (2.0, 6.0)
+    assert again.camera_keys[1].width_m == pytest.approx(3e11)
+    assert (tmp_path / "show.toml.bak").exists()

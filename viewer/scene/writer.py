@@ -224,3 +224,70 @@ def table_text(name: str, table: Mapping[str, Any], comments: Iterable[str] = ()
 def body_text(scene: Scene, body: Body, comments: Iterable[str] = ()) -> str:
     """``body`` as a ``[[body]]`` table's text, ready to append to a scene file."""
     return table_text("body", body_table(scene, body), comments)
+
+
+# --- the show's tables ------------------------------------------------------------------
+
+
+def _show_time(x_s: float) -> str:
+    return f"{number(x_s)} s"
+
+
+def camera_key_table(scene: Scene, key: Any) -> dict[str, Any]:
+    """A ``[[timeline.camera]]`` table of ``key`` (a CameraKey): ``at``, ``ease`` when not
+    the default, then the camera keys it sets, in ``[camera]``'s units."""
+    t: dict[str, Any] = {"at": _show_time(key.at_s)}
+    if key.ease != "in-out":
+        t["ease"] = key.ease
+    if getattr(key, "path", None) not in (None, "eased"):
+        t["path"] = key.path
+    lu = scene.length_unit
+    for attr, name in (("projection", "projection"), ("look", "look")):
+        v = getattr(key, attr)
+        if v is not None and not (name == "look" and v == "angles"
+                                  and key.elevation_rad is not None):
+            t[name] = v
+    for attr, name in (("elevation_rad", "elevation"), ("azimuth_rad", "azimuth")):
+        if getattr(key, attr) is not None:
+            t[name] = angle(getattr(key, attr))
+    if key.target is not None:
+        t["target"] = key.target if isinstance(key.target, str) else [
+            length(x, lu) for x in key.target]
+    for attr, name in (("width_m", "width"), ("distance_m", "distance"),
+                       ("dome_distance_m", "dome_distance")):
+        if getattr(key, attr) is not None:
+            t[name] = length(getattr(key, attr), lu)
+    for attr, name in (("fov_rad", "fov"), ("dome_elevation_rad", "dome_elevation"),
+                       ("dome_tilt_rad", "dome_tilt")):
+        if getattr(key, attr) is not None:
+            t[name] = angle(getattr(key, attr))
+    return t
+
+
+def fade_table(fade: Any) -> dict[str, Any]:
+    """A ``[[timeline.fade]]`` table of ``fade``."""
+    t: dict[str, Any] = {"body": fade.body, "mark": fade.mark,
+                         "at": [_show_time(x) for x in fade.at_s],
+                         "opacity": [float(number(x)) for x in fade.opacity]}
+    if fade.ease != "in-out":
+        t["ease"] = fade.ease
+    return t
+
+
+def caption_table(caption: Any) -> dict[str, Any]:
+    """A ``[[timeline.caption]]`` table of ``caption`` (defaults left out)."""
+    from .model import Caption
+
+    d = Caption("")
+    t: dict[str, Any] = {"text": caption.text, "start": _show_time(caption.start_s)}
+    if math.isfinite(caption.end_s):
+        t["end"] = _show_time(caption.end_s)
+    if caption.fade_s != d.fade_s:
+        t["fade"] = _show_time(caption.fade_s)
+    if caption.position != d.position:
+        t["position"] = caption.position
+    if caption.size_px != d.size_px:
+        t["size"] = caption.size_px
+    if caption.color != d.color:
+        t["color"] = color(caption.color)
+    return t
