@@ -1,0 +1,90 @@
+"""The show in the window under Xvfb: opened paused at a show time (``--show-at``), the
+picture is the frame the exporter writes; a camera key stored with K from the keyboard
+(real input through xdotool) is saved as a readable [[timeline.camera]] table, every
+other line of the file unchanged."""
+
+from __future__ import annotations
+
+import difflib
+import shutil
+import subprocess
+from pathlib import Path
+
+import numpy as np
+import pytest
+from support.xwindow import (
+    PERIFOCAL,
+    ROOT,
+    WINDOW,
+    Display,
+    press,
+    read_report,
+    running_viewer,
+    wait_for,
+)
+
+pytestmark = WINDOW
+
+
+def test_a_still_at_a_show_time_is_the_exported_frame(display: Display, tmp_path: Path) -> None:
+    from PIL import Image
+
+    scene = str(ROOT / "scenes" / "demo.toml")
+    shot = tmp_path / "window.png"
+    # UI scale 0.5 in a 540 px high window sizes labels for 1080 x 0.5 = 540 px, as the
+    # export sizes them for its 540 px height; presentation mode: no panel.
+    run = subprocess.run([*PERIFOCAL, "open", scene, "--size", "960x540", "--ui-scale", "0.5",
+                          "--present", "--show-at", "8 s", "--screenshot", str(shot),
+                          "--quit-after", "4"], env=display.env, capture_output=True,
+                         text=True, timeout=180)
+    assert run.returncode == 0, run.stderr
+    out = tmp_path / "frames"
+    run = subprocess.run([*PERIFOCAL, "render", scene, "--frames", "240:241", "--size",
+                          "960x540", "-o", f"{out}/"], capture_output=True, text=True,
+                         timeout=180)
+    assert run.returncode == 0, run.stderr
+    a = np.asarray(Image.open(shot).convert("RGB")).astype(int)
+    b = np.asarray(Image.open(out / "frame_000240.png").convert("RGB")).astype(int)
+    assert a.shape == b.shape == (540, 960, 3)
+    differ = (np.abs(a - b).max(axis=2) > 8).mean()
+    assert differ < 1e-4  # frame 240 = 8 s x 30 fps: the same picture, pixel for pixel
+    assert (b.max(axis=2) > 60).sum() > 2000  # and not an empty one
+
+
+def test_a_camera_key_from_the_keyboard_is_saved_as_a_readable_table(
+        display: Display, tmp_path: Path) -> None:
+    scene = tmp_path / "demo.toml"
+    shutil.copy(ROOT / "scenes" / "demo.toml", scene)
+    before = scene.read_text(encoding="utf-8")
+    with running_viewer(display, tmp_path, scene) as (report, origin):
+        # Step 75 frames (2.5 s) on the show with the Right key, turn to the edge view
+        # (E), store the view as a key (K) and save (Ctrl+S).
+        for _ in range(75):
+            display.xdotool("key", "Right")
+        wait_for(lambda: (r := read_report(report)) and r["frame"] == 75, what="frame 75")
+        press(display, report, "e")
+        ui = press(display, report, "k", dirty=True)
+        assert ui["show"]["camera_keys"] == [0.0, 2.5, 8.0, 18.0]
+        press(display, report, "ctrl+z", dirty=False)
+        press(display, report, "ctrl+y", dirty=True)
+        press(display, report, "ctrl+s", dirty=False)
+    after = scene.read_text(encoding="utf-8")
+    diff = [ln for ln in difflib.unified_diff(before.splitlines(), after.splitlines(),
+                                              lineterm="", n=0)
+            if ln[:1] in "+-" and not ln.startswith(("+++", "---"))]
+    assert all(ln.startswith("+") for ln in diff), diff  # no line of the file changed
+    added = [ln[1:] for ln in diff]
+    assert "[[timeline.camera]]" in added and 'at = "2.5 s"' in added
+    assert 'look = "edge"' in added
+    from viewer.scene import load_scene
+
+    keys = load_scene(scene).timeline.camera_keys
+    assert [k.at_s for k in keys] == [0.0, 2.5, 8.0, 18.0] and keys[1].look == "edge"
+
+
+@pytest.mark.parametrize("bad", ["30 s", "soon"])
+def test_a_show_time_outside_the_show_is_refused_in_one_line(bad: str) -> None:
+    run = subprocess.run([*PERIFOCAL, "open", str(ROOT / "scenes" / "demo.toml"),
+                          "--show-at", bad], capture_output=True, text=True, timeout=60)
+    assert run.returncode == 2 and "--show-at" in run.stderr
+    assert "Traceback" not in run.stderr
