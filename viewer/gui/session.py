@@ -404,6 +404,9 @@ class Session:
     def show_job(self) -> None:
         self.job_prompt = True
         self.job_errors = []
+        # A show with camera keys renders through its own camera unless asked otherwise.
+        if self.editor.scene.timeline.camera_keys:
+            self.job_window_camera = False
         if not self.job_text:
             self.job_text = str(self._stem()) + "-frames/"
 
