@@ -209,3 +209,20 @@ def test_a_saved_show_edit_changes_only_its_own_table(tmp_path, scene) -> None: 
     assert again.fades[0].at_s == (2.0, 6.0)
     assert again.camera_keys[1].width_m == pytest.approx(3e11)
     assert (tmp_path / "show.toml.bak").exists()
+
+
+def test_a_render_job_of_a_show_time_range_and_of_a_dome_master(tmp_path, scene) -> None:  # type: ignore[no-untyped-def]
+    from viewer.errors import UserInputError
+    from viewer.gui.jobs import job_request
+
+    # 4 s to 6 s at 30 frames/s: frames 120 to 179 (the frame at 6 s starts the next part).
+    req = job_request(f"{tmp_path}/f/", "", "", scene, from_text="4 s", to_text="6 s")
+    assert req.frames == range(120, 180) and req.view == "flat"
+    dome = job_request(f"{tmp_path}/d/", "", "", scene, view="dome")
+    h = scene.render.size_px[1]
+    assert dome.size_px == (h, h) and dome.spec.kind == "dome"
+    assert len(dome.frames) == scene.timeline.frame_count
+    with pytest.raises(UserInputError, match="outside the show"):
+        job_request(f"{tmp_path}/f/", "", "", scene, from_text="4 s", to_text="60 s")
+    with pytest.raises(UserInputError, match="ends after it starts"):
+        job_request(f"{tmp_path}/f/", "", "", scene, from_text="6 s", to_text="4 s")

@@ -417,7 +417,8 @@ class Session:
             return False
         try:
             request = job_request(self.job_text, self.job_size, self.job_frames,
-                                  self.editor.scene, self.job_format, self.job_quality)
+                                  self.editor.scene, self.job_format, self.job_quality,
+                                  self.job_view, self.job_from, self.job_to)
         except UserInputError as err:
             self.job_errors = _lines(err)
             return False
