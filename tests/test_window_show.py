@@ -8,6 +8,7 @@ from __future__ import annotations
 import difflib
 import shutil
 import subprocess
+import time
 from pathlib import Path
 
 import numpy as np
@@ -88,3 +89,51 @@ def test_a_show_time_outside_the_show_is_refused_in_one_line(bad: str) -> None:
                           "--show-at", bad], capture_output=True, text=True, timeout=60)
     assert run.returncode == 2 and "--show-at" in run.stderr
     assert "Traceback" not in run.stderr
+
+
+def test_playing_from_0_reaches_the_second_keys_view(display: Display, tmp_path: Path) -> None:
+    """Played from 0 s with Space (at 8 x real time, ] three times), the picture after the
+    second key (the last one here) is that key's view: the exporter's frame pixel for
+    pixel, and not the first key's."""
+    from PIL import Image
+    from support.xwindow import window_origin, window_pixels
+
+    text = (ROOT / "scenes" / "demo.toml").read_text(encoding="utf-8")
+    cut = text.index("[[timeline.camera]]\nat = \"18 s\"")
+    end = text.index("[[timeline.fade]]")
+    scene = tmp_path / "two-keys.toml"
+    scene.write_text(text[:cut] + text[end:], encoding="utf-8")
+    report = tmp_path / "ui.json"
+    with open(tmp_path / "viewer.log", "wb") as log:
+        proc = subprocess.Popen([*PERIFOCAL, "open", str(scene), "--size", "960x540",
+                                 "--ui-scale", "0.5", "--present", "--ui-report", str(report)],
+                                env=display.env, stdout=log, stderr=subprocess.STDOUT)
+    try:
+        wait_for(lambda: (r := read_report(report)) and r["frames"] >= 3, what="the window")
+        origin = window_origin(display)
+        first = window_pixels(display, origin, (960, 540))
+        for _ in range(3):
+            press(display, report, "bracketright")
+        ui = press(display, report, "space", playing=True)
+        ui = wait_for(lambda: (r := read_report(report)) and not r["playing"] and r, 60,
+                      "the show to end")
+        assert ui["show_s"] == 20.0 and ui["frame"] == 599 and ui["camera_width_m"] == pytest.approx(
+            10 * 1.495978707e11)  # key 2: width = "10 au" (IAU 2012 au)
+        time.sleep(0.5)  # the last frame on the X server
+        time_shot = window_pixels(display, origin, (960, 540))
+        display.xdotool("key", "ctrl+q")
+        assert proc.wait(timeout=60) == 0
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+    out = tmp_path / "frames"
+    run = subprocess.run([*PERIFOCAL, "render", str(scene), "--frames", "599:600", "--size",
+                          "960x540", "-o", f"{out}/"], capture_output=True, text=True,
+                         timeout=180)
+    assert run.returncode == 0, run.stderr
+    exported = np.asarray(Image.open(out / "frame_000599.png").convert("RGB")).astype(int)
+    # At the end the window shows the show's last frame, 599, as the export writes it.
+    differ = (np.abs(time_shot - exported).max(axis=2) > 8).mean()
+    moved = (np.abs(first - exported).max(axis=2) > 40).mean()
+    assert differ < 0.002 and moved > 10 * differ  # (read from the X server: a few edge
+    # pixels of text differ)
