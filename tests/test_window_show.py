@@ -138,3 +138,51 @@ def test_playing_from_0_reaches_the_second_keys_view(display: Display, tmp_path:
     moved = (np.abs(first - exported).max(axis=2) > 40).mean()
     assert differ < 0.002 and moved > 10 * differ  # (read from the X server: a few edge
     # pixels of text differ)
+
+
+def test_a_fade_point_dragged_on_the_timeline_moves_in_the_saved_show(
+        display: Display, tmp_path: Path) -> None:
+    """The demo's sector fade runs 1 s -> 4 s; its second point dragged with the mouse to
+    about 8 s is saved, and what the exporter draws follows (the opacity at 4 s is no
+    longer 1)."""
+    from viewer.scene import load_scene
+    from viewer.scene.timeline import mark_opacity
+
+    scene = tmp_path / "demo.toml"
+    shutil.copy(ROOT / "scenes" / "demo.toml", scene)
+    report = tmp_path / "ui.json"
+    with open(tmp_path / "viewer.log", "wb") as log:
+        proc = subprocess.Popen([*PERIFOCAL, "open", str(scene), "--size", "1600x900",
+                                 "--timeline", "--ui-report", str(report)],
+                                env=display.env, stdout=log, stderr=subprocess.STDOUT)
+    try:
+        ui = wait_for(lambda: (r := read_report(report)) and r["frames"] >= 3
+                      and "timeline:fade:0:1" in r["rects"] and r, what="the timeline")
+        from support.xwindow import window_origin
+
+        ox, oy = window_origin(display)
+        x0, y0, x1, y1 = ui["rects"]["timeline:fade:0:1"]
+        axis = ui["timeline_axis"]
+        to_x = axis["x0"] + (axis["x1"] - axis["x0"]) * 8.0 / axis["duration_s"]
+        cx, cy = ox + int((x0 + x1) / 2), oy + int((y0 + y1) / 2)
+        display.xdotool("mousemove", str(cx), str(cy))
+        time.sleep(0.3)
+        display.xdotool("mousedown", "1")
+        for k in range(1, 9):
+            time.sleep(0.08)
+            display.xdotool("mousemove", str(int(cx + (ox + to_x - cx) * k / 8)), str(cy))
+        time.sleep(0.3)
+        display.xdotool("mouseup", "1")
+        ui = wait_for(lambda: (r := read_report(report)) and r["dirty"] and r, what="the drag")
+        moved = ui["show"]["fades"][0][1]
+        assert 7.5 <= moved <= 8.5 and ui["show"]["fades"][0][0] == 1.0
+        press(display, report, "ctrl+s", dirty=False)
+        display.xdotool("key", "ctrl+q")
+        assert proc.wait(timeout=60) == 0
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+    saved = load_scene(scene)
+    assert saved.timeline.fades[0].at_s == pytest.approx((1.0, moved))
+    assert mark_opacity(saved, "Skerry", "sweep", 4.0) < 0.8  # was 1 at 4 s before
+    assert mark_opacity(saved, "Skerry", "sweep", moved) == pytest.approx(1.0)
