@@ -27,8 +27,14 @@ from support.xwindow import (
 pytestmark = WINDOW
 
 
-def test_a_still_at_a_show_time_is_the_exported_frame(display: Display, tmp_path: Path) -> None:
+def _rgb(path: Path) -> np.ndarray:
     from PIL import Image
+
+    with Image.open(path) as im:
+        return np.asarray(im.convert("RGB"))
+
+
+def test_a_still_at_a_show_time_is_the_exported_frame(display: Display, tmp_path: Path) -> None:
 
     scene = str(ROOT / "scenes" / "demo.toml")
     shot = tmp_path / "window.png"
@@ -44,8 +50,8 @@ def test_a_still_at_a_show_time_is_the_exported_frame(display: Display, tmp_path
                           "960x540", "-o", f"{out}/"], capture_output=True, text=True,
                          timeout=180)
     assert run.returncode == 0, run.stderr
-    a = np.asarray(Image.open(shot).convert("RGB")).astype(int)
-    b = np.asarray(Image.open(out / "frame_000240.png").convert("RGB")).astype(int)
+    a = _rgb(shot).astype(int)
+    b = _rgb(out / "frame_000240.png").astype(int)
     assert a.shape == b.shape == (540, 960, 3)
     differ = (np.abs(a - b).max(axis=2) > 8).mean()
     assert differ < 1e-4  # frame 240 = 8 s x 30 fps: the same picture, pixel for pixel
@@ -95,7 +101,6 @@ def test_playing_from_0_reaches_the_second_keys_view(display: Display, tmp_path:
     """Played from 0 s with Space (at 8 x real time, ] three times), the picture after the
     second key (the last one here) is that key's view: the exporter's frame pixel for
     pixel, and not the first key's."""
-    from PIL import Image
     from support.xwindow import window_origin, window_pixels
 
     text = (ROOT / "scenes" / "demo.toml").read_text(encoding="utf-8")
@@ -132,7 +137,7 @@ def test_playing_from_0_reaches_the_second_keys_view(display: Display, tmp_path:
                           "960x540", "-o", f"{out}/"], capture_output=True, text=True,
                          timeout=180)
     assert run.returncode == 0, run.stderr
-    exported = np.asarray(Image.open(out / "frame_000599.png").convert("RGB")).astype(int)
+    exported = _rgb(out / "frame_000599.png").astype(int)
     # At the end the window shows the show's last frame, 599, as the export writes it.
     differ = (np.abs(time_shot - exported).max(axis=2) > 8).mean()
     moved = (np.abs(first - exported).max(axis=2) > 40).mean()
