@@ -78,6 +78,8 @@ def main(argv: list[str]) -> int:
             _dome_master(renderer, load_scene(_scenes()["demo"]))
     if not wanted or "presentation" in wanted:
         _presentation(_scenes()["demo"])
+    if not wanted or "timeline" in wanted:
+        _presentation(_scenes()["demo"], "timeline.png", ["--timeline", "--show-at", "9 s"])
     return 0
 
 
@@ -102,8 +104,10 @@ def _third_law(scene_path: Path) -> None:
     print(f"wrote {target.relative_to(OUT.parent.parent)}")
 
 
-def _presentation(scene_path: Path) -> None:
-    """The window in presentation mode (every panel hidden), on a private Xvfb server."""
+def _presentation(scene_path: Path, name: str = "presentation.png",
+                  flags: tuple[str, ...] | list[str] = ("--present",)) -> None:
+    """The window in presentation mode (every panel hidden), or with ``flags`` (the
+    timeline panel at a show time), on a private Xvfb server."""
     import os
     import subprocess
     import sys
@@ -112,10 +116,10 @@ def _presentation(scene_path: Path) -> None:
     from viewer.gui.bench import _start_xvfb
 
     proc, display = _start_xvfb()
-    target = OUT / "presentation.png"
+    target = OUT / name
     config = tempfile.TemporaryDirectory()  # the user's settings stay as they are
     try:
-        subprocess.run([sys.executable, "-m", "viewer.cli", "open", str(scene_path), "--present",
+        subprocess.run([sys.executable, "-m", "viewer.cli", "open", str(scene_path), *flags,
                         "--size", "1600x900", "--screenshot", str(target), "--force",
                         "--quit-after", "4"], env={**os.environ, "DISPLAY": display,
                                                    "XDG_CONFIG_HOME": config.name},

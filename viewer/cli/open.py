@@ -18,6 +18,7 @@ EXAMPLES = """examples:
   in front of an audience: full screen on the second screen, panels hidden, larger text:
     perifocal open scenes/demo.toml --fullscreen --screen 1 --present --ui-scale 1.5
   perifocal open scenes/demo.toml --view dome --screenshot dome.png --quit-after 3
+  build a show: perifocal open scenes/demo.toml --timeline --show-at "8 s"
 
 In the window: select a body on the left, type new values with their units on the right
 ("400 km", "2.5 h", "12 deg") and press Enter; choose what is kept fixed with the lock.
@@ -91,6 +92,12 @@ def add_parser(sub: Any) -> None:
     p.add_argument("--view", choices=("flat", "dome", "panorama"), default="flat",
                    help="open in this view: the flat picture, or the dome master or "
                    "panorama as the export makes it (key V switches)")
+    p.add_argument("--show-at", metavar="T",
+                   help="open paused at T seconds into the show (\"12.5 s\"; --at is scene "
+                   "time); with --present and --screenshot the picture is the one "
+                   "'perifocal render' makes of that frame")
+    p.add_argument("--timeline", action="store_true",
+                   help="open with the timeline panel shown (Ctrl+T toggles)")
     p.add_argument("--quit-after", type=_count, metavar="N",
                    help="draw N frames, then exit 0 (for tests and the docs' screenshots)")
     p.add_argument("--ui-scale", type=_scale, metavar="S",
@@ -118,6 +125,15 @@ def run(args: argparse.Namespace) -> int:
     from ..gui.editor import Editor
 
     editor = Editor.open(args.scene)
+    show_at = None
+    if args.show_at is not None:
+        from ..gui.timeline_edits import TimelineRefused, parse_show_time
+
+        try:
+            show_at = parse_show_time(args.show_at, editor.scene.timeline.duration_s,
+                                      "--show-at")
+        except TimelineRefused as err:
+            raise UserInputError("--show-at", err.problems[0]) from None
     if args.screenshot:
         claim_output(args.screenshot, force=args.force, inputs=[args.scene],
                      flag="--screenshot")
@@ -141,4 +157,8 @@ def run(args: argparse.Namespace) -> int:
         if type(err).__module__.startswith(("pyglet", "moderngl")) or "display" in str(err):
             raise UserInputError("display", f"cannot open a window: {err}") from None
         raise
+    if show_at is not None:
+        window.session.clock.follow_show(editor.scene.timeline)
+        window.session.seek_show(show_at)
+    window.session.show_timeline = bool(args.timeline)
     return window.run(quit_after=args.quit_after, screenshot=args.screenshot)

@@ -66,8 +66,12 @@ class Clock:
 
     @property
     def frame(self) -> int:
-        """The frame of the show's grid that ``show_s`` has reached."""
-        return int(math.floor(self.show_s * self.fps + 1e-6))
+        """The frame of the show's grid that ``show_s`` has reached (at the very end, the
+        show's last frame: the renderer writes frames 0 to frame_count - 1)."""
+        k = int(math.floor(self.show_s * self.fps + 1e-6))
+        if self.timeline is not None and self.on_show:
+            k = min(k, self.timeline.frame_count - 1)
+        return max(k, 0)
 
     @property
     def frame_show_s(self) -> float:

@@ -133,10 +133,34 @@ class JobRequest:
     size_px: tuple[int, int]
     frames: range
     quality: str = "preview"
+    #: "flat", or a "dome" master or "panorama" (``spec``, an export.immersive.Immersive).
+    view: str = "flat"
+    spec: Any = None
+
+
+def show_range(from_text: str, to_text: str, scene: Scene) -> str:
+    """Frames "A:B" of the show between two show times ("4 s", "12 s"; empty: the start
+    or the end), for ``job_request``; "" when both are empty (the whole show)."""
+    from .timeline_edits import TimelineRefused, parse_show_time
+
+    if not (from_text.strip() or to_text.strip()):
+        return ""
+    tl = scene.timeline
+    try:
+        a = parse_show_time(from_text, tl.duration_s, "from") if from_text.strip() else 0.0
+        b = parse_show_time(to_text, tl.duration_s, "to") if to_text.strip() else tl.duration_s
+    except TimelineRefused as err:
+        raise UserInputError("show time", err.problems[0]) from None
+    first, end = math.ceil(a * tl.fps - 1e-6), math.ceil(b * tl.fps - 1e-6)
+    if end <= first:
+        raise UserInputError("show time", "the range ends after it starts (at least one "
+                             "frame)")
+    return f"{first}:{min(end, tl.frame_count)}"
 
 
 def job_request(out_text: str, size_text: str, frames_text: str, scene: Scene,
-                fmt: str = "png", quality: str = "preview") -> JobRequest:
+                fmt: str = "png", quality: str = "preview", view: str = "flat",
+                from_text: str = "", to_text: str = "") -> JobRequest:
     """A render job checked before it starts: a folder (a name ending in /, or an
     existing folder) for a numbered frame sequence, or a .mp4 file for a video; the size
     (default the scene's); the frames "A:B" (default the whole timeline)."""
@@ -159,11 +183,20 @@ def job_request(out_text: str, size_text: str, frames_text: str, scene: Scene,
         raise UserInputError("format", f"frames are png or jpg, not {fmt!r}")
     if quality not in VIDEO_QUALITIES:
         raise UserInputError("quality", f"video quality is one of {', '.join(VIDEO_QUALITIES)}")
-    size = parse_size(size_text, scene.render.size_px)
+    h = scene.render.size_px[1]
+    default = {"flat": scene.render.size_px, "dome": (h, h), "panorama": (2 * h, h)}[view]
+    size = parse_size(size_text, default)
+    spec = None
+    if view != "flat":
+        from ..export.immersive import Immersive
+
+        spec = Immersive(view, size, grid=2 if size[1] < 4096 else 1)
     if kind == "video":
         check_video_size(*size)
-    frames = parse_frame_range(frames_text.strip() or None, scene.timeline.frame_count)
-    return JobRequest(out, kind, fmt, size, frames, quality)
+    ranged = show_range(from_text, to_text, scene)
+    frames = parse_frame_range(ranged or frames_text.strip() or None,
+                               scene.timeline.frame_count)
+    return JobRequest(out, kind, fmt, size, frames, quality, view, spec)
 
 
 class RenderJob:

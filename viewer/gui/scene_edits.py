@@ -316,5 +316,118 @@ def save_editor_scene(scene: Scene, saved: Scene, origins: tuple[int | None, ...
             saved, file_text = bridged, text
         for key, value in scene_file_edits(scene, saved, origins, file_text):
             text = edit_text(text, {key: value})
+        text = save_timeline(scene, saved, text)
     save_text(p, text)
+    return text
+
+
+# --- the show ---------------------------------------------------------------------------
+
+_SHOW_KINDS = ("camera", "fade", "caption")
+
+
+def _header(kind: str) -> re.Pattern[str]:
+    return re.compile(r"^\s*\[\[\s*timeline\s*\.\s*" + kind + r"\s*\]\]\s*(#.*)?$")
+
+
+def _show_blocks(lines: list[str], kind: str) -> list[tuple[int, int]]:
+    """Line spans [start, end) of each ``[[timeline.KIND]]`` table: from the comment lines
+    directly above its header to the comments above the next header (or the end)."""
+    own = _header(kind)
+    spans = []
+    for n, line in enumerate(lines):
+        if own.match(line):
+            start = n
+            while start > 0 and lines[start - 1].lstrip().startswith("#"):
+                start -= 1
+            end = n + 1
+            while end < len(lines) and not _ANY_HEADER.match(lines[end]):
+                end += 1
+            back = end
+            while back > n + 1 and lines[back - 1].lstrip().startswith("#"):
+                back -= 1
+            spans.append((start, back if end < len(lines) else end))
+    return spans
+
+
+def _show_table_text(scene: Scene, kind: str, item: Any) -> str:
+    if kind == "camera":
+        table = writer.camera_key_table(item, scene.length_unit)
+    elif kind == "fade":
+        table = writer.fade_table(item)
+    else:
+        table = writer.caption_table(item)
+    return writer.table_text(f"timeline.{kind}", table)
+
+
+def save_timeline(scene: Scene, saved: Scene, text: str) -> str:
+    """``text`` (which holds ``saved``'s show) with ``scene``'s show: changed settings of
+    ``[timeline]`` edited in place; for each of camera keys, fades and captions, a table
+    that did not change keeps its lines (and the comments above it) byte for byte, a
+    changed or new one is written by the scene writer where it now stands, a removed one
+    takes only its own lines. Every other line stays as it was."""
+    tl, old = scene.timeline, saved.timeline
+    if tl == old:
+        return text
+    settings: dict[str, Any] = {}
+    if tl.duration_s != old.duration_s:
+        settings["timeline.duration"] = writer.duration(tl.duration_s)
+    if tl.rate != old.rate:
+        settings["timeline.rate"] = writer.quantity(tl.rate, "rate", "d/s")
+    if tl.fps != old.fps:
+        settings["timeline.fps"] = int(tl.fps) if tl.fps.is_integer() else tl.fps
+    if tl.clock != old.clock:
+        settings["timeline.clock"] = tl.clock
+    if tl.start_s != old.start_s:
+        settings["timeline.start"] = writer.duration(tl.start_s)
+    if settings:
+        text = edit_text(text, settings)
+    for kind in _SHOW_KINDS:
+        attr = {"camera": "camera_keys", "fade": "fades", "caption": "captions"}[kind]
+        new, was = getattr(tl, attr), getattr(old, attr)
+        if new == was:
+            continue
+        lines = text.splitlines(keepends=True)
+        if lines and not lines[-1].endswith("\n"):
+            lines[-1] += "\n"
+        spans = _show_blocks(lines, kind)
+        if len(spans) != len(was):
+            raise SaveError("timeline", f"the [[timeline.{kind}]] tables of the file could "
+                            "not be told apart; nothing was written (save as another file)")
+        texts = ["".join(lines[a:b]) for a, b in spans]
+        used: set[int] = set()
+        out = []
+        same = {k: next((j for j, w in enumerate(was) if w == item), None)
+                for k, item in enumerate(new)}
+        for k, item in enumerate(new):
+            j = same[k] if same[k] not in used else None
+            if j is not None:
+                used.add(j)
+                block = texts[j]
+            else:
+                block = _show_table_text(scene, kind, item)
+                # An edited table keeps the comment lines above it.
+                if k < len(was) and k not in same.values():
+                    head = [ln for ln in texts[k].splitlines(keepends=True)]
+                    comments = []
+                    for ln in head:
+                        if not ln.lstrip().startswith("#"):
+                            break
+                        comments.append(ln)
+                    block = "".join(comments) + block
+            out.append(block if block.endswith("\n\n") else block.rstrip("\n") + "\n\n")
+        if spans:
+            keep = [ln for n, ln in enumerate(lines)
+                    if not any(a <= n < b for a, b in spans)]
+            at = spans[0][0]
+            before = sum(1 for n in range(at) if not any(a <= n < b for a, b in spans))
+            lines = keep[:before] + out + keep[before:]
+        else:
+            if "timeline" not in tomllib.loads(text):
+                lines.append(("\n" if lines and lines[-1].strip() else "") + "[timeline]\n\n")
+            elif lines and lines[-1].strip():
+                lines.append("\n")
+            lines += out
+        text = "".join(lines)
+        text = text.rstrip("\n") + "\n"
     return text

@@ -404,6 +404,9 @@ class Session:
     def show_job(self) -> None:
         self.job_prompt = True
         self.job_errors = []
+        # A show with camera keys renders through its own camera unless asked otherwise.
+        if self.editor.scene.timeline.camera_keys:
+            self.job_window_camera = False
         if not self.job_text:
             self.job_text = str(self._stem()) + "-frames/"
 
@@ -414,7 +417,8 @@ class Session:
             return False
         try:
             request = job_request(self.job_text, self.job_size, self.job_frames,
-                                  self.editor.scene, self.job_format, self.job_quality)
+                                  self.editor.scene, self.job_format, self.job_quality,
+                                  self.job_view, self.job_from, self.job_to)
         except UserInputError as err:
             self.job_errors = _lines(err)
             return False

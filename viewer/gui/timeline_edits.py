@@ -27,6 +27,8 @@ from typing import Any
 from ..scene import spec
 from ..scene.model import Camera, CameraKey, Caption, Fade, Scene, Timeline, name_key
 from ..units import QuantityError
+from ..units.forms import ShowTimeError
+from ..units.forms import parse_show_time as forms_show_time
 from ..units.limits import parse_limited
 from .elements_edit import EditRefused
 
@@ -62,11 +64,12 @@ def _s(x: float) -> str:
 
 
 def parse_show_time(text: str, duration_s: float | None = None, what: str = "time") -> float:
-    """Seconds into the show from text ("12.5 s", "0.5 min", a bare number: seconds),
-    refused outside 0..``duration_s``."""
+    """Seconds into the show from text, in every form ``viewer.units.forms.parse_show_time``
+    reads ("12.5 s", "1:05", "121/30"; a bare number is seconds), refused outside
+    0..``duration_s`` as a TimelineRefused naming the field ``what``."""
     try:
-        x = parse_limited(text, "time", "s")
-    except QuantityError as err:
+        x = forms_show_time(text)
+    except ShowTimeError as err:
         raise _refuse(what, str(err)) from None
     _in_show(x, duration_s, what)
     return x

@@ -480,7 +480,8 @@ class ViewerWindow:
         if self._job_renderer is None:
             self._job_renderer = Renderer(self.ctx)
         # The show's keyframes, fades, captions and clock, as `perifocal render` draws them.
-        frames = ShowFrames(self._job_renderer, job.scene, job.request.size_px)
+        frames = ShowFrames(self._job_renderer, job.scene, job.request.size_px,
+                            job.request.spec)
         job.pump(frames.at, budget_s)
 
     def _end_job(self) -> None:

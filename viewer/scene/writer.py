@@ -31,7 +31,7 @@ from pathlib import Path
 from typing import Any
 
 from ..units import Epoch, unit_factor
-from .model import Body, BodyShow, CameraKey, Caption, Fade, RateKey, Scene, Timeline
+from .model import Body, BodyShow, CameraKey, Caption, RateKey, Scene, Timeline
 
 RGB = tuple[float, float, float]
 
@@ -224,44 +224,6 @@ def timeline_table(tl: Timeline) -> dict[str, Any]:
     return out
 
 
-def camera_key_table(key: CameraKey, length_unit: str = "au") -> dict[str, Any]:
-    """A ``[[timeline.camera]]`` keyframe: ``at``, ``ease``, ``path`` (when not the
-    default "eased") and the camera keys it changes (lengths in ``length_unit``)."""
-    t: dict[str, Any] = {"at": duration(key.at_s), "ease": key.ease}
-    if key.path != "eased":
-        t["path"] = key.path
-    for name in ("projection", "look"):
-        if getattr(key, name) is not None:
-            t[name] = getattr(key, name)
-    for name, field in (("elevation", "elevation_rad"), ("azimuth", "azimuth_rad"),
-                        ("fov", "fov_rad")):
-        if getattr(key, field) is not None:
-            t[name] = angle(getattr(key, field))
-    if key.target is not None:
-        t["target"] = target(key.target, length_unit)
-    for name, field in (("width", "width_m"), ("distance", "distance_m")):
-        if getattr(key, field) is not None:
-            t[name] = length(getattr(key, field), length_unit)
-    t.update(dome_framing(key, None, length_unit))
-    return t
-
-
-def fade_table(fade: Fade) -> dict[str, Any]:
-    """A ``[[timeline.fade]]`` table."""
-    return {"body": fade.body, "mark": fade.mark, "at": [duration(x) for x in fade.at_s],
-            "opacity": list(fade.opacity), "ease": fade.ease}
-
-
-def caption_table(caption: Caption) -> dict[str, Any]:
-    """A ``[[timeline.caption]]`` table (``end`` left out for a caption to the end)."""
-    t: dict[str, Any] = {"text": caption.text, "start": duration(caption.start_s)}
-    if math.isfinite(caption.end_s):
-        t["end"] = duration(caption.end_s)
-    t.update({"fade": duration(caption.fade_s), "position": caption.position,
-              "size": caption.size_px, "color": color(caption.color)})
-    return t
-
-
 def pace_table(rate_key: RateKey) -> dict[str, Any]:
     """A ``[[timeline.pace]]`` table: ``at``, ``rate`` (in s/s) and ``ease``."""
     return {"at": duration(rate_key.at_s), "rate": quantity(rate_key.rate, "rate", "s/s"),
@@ -301,3 +263,68 @@ def table_text(name: str, table: Mapping[str, Any], comments: Iterable[str] = ()
 def body_text(scene: Scene, body: Body, comments: Iterable[str] = ()) -> str:
     """``body`` as a ``[[body]]`` table's text, ready to append to a scene file."""
     return table_text("body", body_table(scene, body), comments)
+
+
+# --- the show's tables ------------------------------------------------------------------
+
+
+def _show_time(x_s: float) -> str:
+    return f"{number(x_s)} s"
+
+
+def camera_key_table(key: CameraKey, length_unit: str = "au") -> dict[str, Any]:
+    """A ``[[timeline.camera]]`` table of ``key``: ``at``, ``ease`` and ``path`` when not
+    the defaults, then the camera keys it sets (lengths in ``length_unit``)."""
+    t: dict[str, Any] = {"at": _show_time(key.at_s)}
+    if key.ease != "in-out":
+        t["ease"] = key.ease
+    if getattr(key, "path", None) not in (None, "eased"):
+        t["path"] = key.path
+    lu = length_unit
+    for attr, name in (("projection", "projection"), ("look", "look")):
+        v = getattr(key, attr)
+        if v is not None and not (name == "look" and v == "angles"
+                                  and key.elevation_rad is not None):
+            t[name] = v
+    for attr, name in (("elevation_rad", "elevation"), ("azimuth_rad", "azimuth")):
+        if getattr(key, attr) is not None:
+            t[name] = angle(getattr(key, attr))
+    if key.target is not None:
+        t["target"] = target(key.target, lu)
+    for attr, name in (("width_m", "width"), ("distance_m", "distance"),
+                       ("dome_distance_m", "dome_distance")):
+        if getattr(key, attr) is not None:
+            t[name] = length(getattr(key, attr), lu)
+    for attr, name in (("fov_rad", "fov"), ("dome_elevation_rad", "dome_elevation"),
+                       ("dome_tilt_rad", "dome_tilt")):
+        if getattr(key, attr) is not None:
+            t[name] = angle(getattr(key, attr))
+    return t
+
+
+def fade_table(fade: Any) -> dict[str, Any]:
+    """A ``[[timeline.fade]]`` table of ``fade``."""
+    t: dict[str, Any] = {"body": fade.body, "mark": fade.mark,
+                         "at": [_show_time(x) for x in fade.at_s],
+                         "opacity": [float(number(x)) for x in fade.opacity]}
+    if fade.ease != "in-out":
+        t["ease"] = fade.ease
+    return t
+
+
+def caption_table(caption: Any) -> dict[str, Any]:
+    """A ``[[timeline.caption]]`` table of ``caption`` (defaults left out)."""
+
+    d = Caption("")
+    t: dict[str, Any] = {"text": caption.text, "start": _show_time(caption.start_s)}
+    if math.isfinite(caption.end_s):
+        t["end"] = _show_time(caption.end_s)
+    if caption.fade_s != d.fade_s:
+        t["fade"] = _show_time(caption.fade_s)
+    if caption.position != d.position:
+        t["position"] = caption.position
+    if caption.size_px != d.size_px:
+        t["size"] = caption.size_px
+    if caption.color != d.color:
+        t["color"] = color(caption.color)
+    return t

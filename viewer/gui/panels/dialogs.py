@@ -189,7 +189,7 @@ def still_dialog(p: Panels, s: Session) -> None:
 
 
 def job_dialog(p: Panels, s: Session) -> None:
-    if not p.modal("Render the timeline", s.job_prompt):
+    if not p.modal("Render the show", s.job_prompt):
         return
     tl = s.editor.scene.timeline
     imgui.text(f"{tl.frame_count} frames at {tl.fps:g} frames/s ({tl.duration_s:g} s of show).")
@@ -208,9 +208,33 @@ def job_dialog(p: Panels, s: Session) -> None:
             imgui.same_line()
             if imgui.radio_button(f"{fmt}##fmt", s.job_format == fmt):
                 s.job_format = fmt
+    imgui.text("picture:")
+    for v, label in (("flat", "flat"), ("dome", "dome master"), ("panorama", "panorama")):
+        imgui.same_line()
+        if imgui.radio_button(f"{label}##jobview", s.job_view == v):
+            s.job_view = v
+    imgui.align_text_to_frame_padding()
+    imgui.text("show time from")
+    imgui.same_line()
+    imgui.set_next_item_width(px(90))
+    _, s.job_from = imgui.input_text_with_hint("##jobfrom", "0 s", s.job_from)
+    p.report["rects"]["jobfrom"] = _rect()
+    imgui.same_line()
+    imgui.text("to")
+    imgui.same_line()
+    imgui.set_next_item_width(px(90))
+    _, s.job_to = imgui.input_text_with_hint("##jobto", f"{tl.duration_s:g} s", s.job_to)
+    p.report["rects"]["jobto"] = _rect()
+    if s.clock.loop and s.clock.loop_range is not None:
+        imgui.same_line()
+        if p.button("the loop##job"):
+            a, b = s.clock.loop_range
+            s.job_from, s.job_to = f"{a:g} s", f"{b:g} s"
+    imgui.same_line()
+    imgui.text_colored(DIM, "(empty: the whole show)")
     p.size_input("jobsize", s, "job_size")
     imgui.same_line()
-    imgui.text("frames A:B")
+    imgui.text("or frames A:B")
     imgui.same_line()
     imgui.set_next_item_width(140)
     _, s.job_frames = imgui.input_text_with_hint("##jobframes", f"0:{tl.frame_count}",

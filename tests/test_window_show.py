@@ -1,0 +1,193 @@
+"""The show in the window under Xvfb: opened paused at a show time (``--show-at``), the
+picture is the frame the exporter writes; a camera key stored with K from the keyboard
+(real input through xdotool) is saved as a readable [[timeline.camera]] table, every
+other line of the file unchanged."""
+
+from __future__ import annotations
+
+import difflib
+import shutil
+import subprocess
+import time
+from pathlib import Path
+
+import numpy as np
+import pytest
+from support.xwindow import (
+    PERIFOCAL,
+    ROOT,
+    WINDOW,
+    Display,
+    press,
+    read_report,
+    running_viewer,
+    wait_for,
+)
+
+pytestmark = WINDOW
+
+
+def _rgb(path: Path) -> np.ndarray:
+    from PIL import Image
+
+    with Image.open(path) as im:
+        return np.asarray(im.convert("RGB"))
+
+
+def test_a_still_at_a_show_time_is_the_exported_frame(display: Display, tmp_path: Path) -> None:
+
+    scene = str(ROOT / "scenes" / "demo.toml")
+    shot = tmp_path / "window.png"
+    # UI scale 0.5 in a 540 px high window sizes labels for 1080 x 0.5 = 540 px, as the
+    # export sizes them for its 540 px height; presentation mode: no panel.
+    run = subprocess.run([*PERIFOCAL, "open", scene, "--size", "960x540", "--ui-scale", "0.5",
+                          "--present", "--show-at", "8 s", "--screenshot", str(shot),
+                          "--quit-after", "4"], env=display.env, capture_output=True,
+                         text=True, timeout=180)
+    assert run.returncode == 0, run.stderr
+    out = tmp_path / "frames"
+    run = subprocess.run([*PERIFOCAL, "render", scene, "--frames", "240:241", "--size",
+                          "960x540", "-o", f"{out}/"], capture_output=True, text=True,
+                         timeout=180)
+    assert run.returncode == 0, run.stderr
+    a = _rgb(shot).astype(int)
+    b = _rgb(out / "frame_000240.png").astype(int)
+    assert a.shape == b.shape == (540, 960, 3)
+    differ = (np.abs(a - b).max(axis=2) > 8).mean()
+    assert differ < 1e-4  # frame 240 = 8 s x 30 fps: the same picture, pixel for pixel
+    assert (b.max(axis=2) > 60).sum() > 2000  # and not an empty one
+
+
+def test_a_camera_key_from_the_keyboard_is_saved_as_a_readable_table(
+        display: Display, tmp_path: Path) -> None:
+    scene = tmp_path / "demo.toml"
+    shutil.copy(ROOT / "scenes" / "demo.toml", scene)
+    before = scene.read_text(encoding="utf-8")
+    with running_viewer(display, tmp_path, scene) as (report, origin):
+        # Step 75 frames (2.5 s) on the show with the Right key, turn to the edge view
+        # (E), store the view as a key (K) and save (Ctrl+S).
+        for _ in range(75):
+            display.xdotool("key", "Right")
+        wait_for(lambda: (r := read_report(report)) and r["frame"] == 75, what="frame 75")
+        press(display, report, "e")
+        ui = press(display, report, "k", dirty=True)
+        assert ui["show"]["camera_keys"] == [0.0, 2.5, 8.0, 18.0]
+        press(display, report, "ctrl+z", dirty=False)
+        press(display, report, "ctrl+y", dirty=True)
+        press(display, report, "ctrl+s", dirty=False)
+    after = scene.read_text(encoding="utf-8")
+    diff = [ln for ln in difflib.unified_diff(before.splitlines(), after.splitlines(),
+                                              lineterm="", n=0)
+            if ln[:1] in "+-" and not ln.startswith(("+++", "---"))]
+    assert all(ln.startswith("+") for ln in diff), diff  # no line of the file changed
+    added = [ln[1:] for ln in diff]
+    assert "[[timeline.camera]]" in added and 'at = "2.5 s"' in added
+    assert 'look = "edge"' in added
+    from viewer.scene import load_scene
+
+    keys = load_scene(scene).timeline.camera_keys
+    assert [k.at_s for k in keys] == [0.0, 2.5, 8.0, 18.0] and keys[1].look == "edge"
+
+
+@pytest.mark.parametrize("bad", ["30 s", "soon"])
+def test_a_show_time_outside_the_show_is_refused_in_one_line(bad: str) -> None:
+    run = subprocess.run([*PERIFOCAL, "open", str(ROOT / "scenes" / "demo.toml"),
+                          "--show-at", bad], capture_output=True, text=True, timeout=60)
+    assert run.returncode == 2 and "--show-at" in run.stderr
+    assert "Traceback" not in run.stderr
+
+
+def test_playing_from_0_reaches_the_second_keys_view(display: Display, tmp_path: Path) -> None:
+    """Played from 0 s with Space (at 8 x real time, ] three times), the picture after the
+    second key (the last one here) is that key's view: the exporter's frame pixel for
+    pixel, and not the first key's."""
+    from support.xwindow import window_origin, window_pixels
+
+    text = (ROOT / "scenes" / "demo.toml").read_text(encoding="utf-8")
+    cut = text.index("[[timeline.camera]]\nat = \"18 s\"")
+    end = text.index("[[timeline.fade]]")
+    scene = tmp_path / "two-keys.toml"
+    scene.write_text(text[:cut] + text[end:], encoding="utf-8")
+    report = tmp_path / "ui.json"
+    with open(tmp_path / "viewer.log", "wb") as log:
+        proc = subprocess.Popen([*PERIFOCAL, "open", str(scene), "--size", "960x540",
+                                 "--ui-scale", "0.5", "--present", "--ui-report", str(report)],
+                                env=display.env, stdout=log, stderr=subprocess.STDOUT)
+    try:
+        wait_for(lambda: (r := read_report(report)) and r["frames"] >= 3, what="the window")
+        origin = window_origin(display)
+        first = window_pixels(display, origin, (960, 540))
+        for _ in range(3):
+            press(display, report, "bracketright")
+        ui = press(display, report, "space", playing=True)
+        ui = wait_for(lambda: (r := read_report(report)) and not r["playing"] and r, 60,
+                      "the show to end")
+        assert ui["show_s"] == 20.0 and ui["frame"] == 599
+        # key 2: width = "10 au" (the au of IAU 2012 Resolution B2)
+        assert ui["camera_width_m"] == pytest.approx(10 * 1.495978707e11)
+        time.sleep(0.5)  # the last frame on the X server
+        time_shot = window_pixels(display, origin, (960, 540))
+        display.xdotool("key", "ctrl+q")
+        assert proc.wait(timeout=60) == 0
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+    out = tmp_path / "frames"
+    run = subprocess.run([*PERIFOCAL, "render", str(scene), "--frames", "599:600", "--size",
+                          "960x540", "-o", f"{out}/"], capture_output=True, text=True,
+                         timeout=180)
+    assert run.returncode == 0, run.stderr
+    exported = _rgb(out / "frame_000599.png").astype(int)
+    # At the end the window shows the show's last frame, 599, as the export writes it.
+    differ = (np.abs(time_shot - exported).max(axis=2) > 8).mean()
+    moved = (np.abs(first - exported).max(axis=2) > 40).mean()
+    assert differ < 0.002 and moved > 10 * differ  # (read from the X server: a few edge
+    # pixels of text differ)
+
+
+def test_a_fade_point_dragged_on_the_timeline_moves_in_the_saved_show(
+        display: Display, tmp_path: Path) -> None:
+    """The demo's sector fade runs 1 s -> 4 s; its second point dragged with the mouse to
+    about 8 s is saved, and what the exporter draws follows (the opacity at 4 s is no
+    longer 1)."""
+    from viewer.scene import load_scene
+    from viewer.scene.timeline import mark_opacity
+
+    scene = tmp_path / "demo.toml"
+    shutil.copy(ROOT / "scenes" / "demo.toml", scene)
+    report = tmp_path / "ui.json"
+    with open(tmp_path / "viewer.log", "wb") as log:
+        proc = subprocess.Popen([*PERIFOCAL, "open", str(scene), "--size", "1600x900",
+                                 "--timeline", "--ui-report", str(report)],
+                                env=display.env, stdout=log, stderr=subprocess.STDOUT)
+    try:
+        ui = wait_for(lambda: (r := read_report(report)) and r["frames"] >= 3
+                      and "timeline:fade:0:1" in r["rects"] and r, what="the timeline")
+        from support.xwindow import window_origin
+
+        ox, oy = window_origin(display)
+        x0, y0, x1, y1 = ui["rects"]["timeline:fade:0:1"]
+        axis = ui["timeline_axis"]
+        to_x = axis["x0"] + (axis["x1"] - axis["x0"]) * 8.0 / axis["duration_s"]
+        cx, cy = ox + int((x0 + x1) / 2), oy + int((y0 + y1) / 2)
+        display.xdotool("mousemove", str(cx), str(cy))
+        time.sleep(0.3)
+        display.xdotool("mousedown", "1")
+        for k in range(1, 9):
+            time.sleep(0.08)
+            display.xdotool("mousemove", str(int(cx + (ox + to_x - cx) * k / 8)), str(cy))
+        time.sleep(0.3)
+        display.xdotool("mouseup", "1")
+        ui = wait_for(lambda: (r := read_report(report)) and r["dirty"] and r, what="the drag")
+        moved = ui["show"]["fades"][0][1]
+        assert 7.5 <= moved <= 8.5 and ui["show"]["fades"][0][0] == 1.0
+        press(display, report, "ctrl+s", dirty=False)
+        display.xdotool("key", "ctrl+q")
+        assert proc.wait(timeout=60) == 0
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+    saved = load_scene(scene)
+    assert saved.timeline.fades[0].at_s == pytest.approx((1.0, moved))
+    assert mark_opacity(saved, "Skerry", "sweep", 4.0) < 0.8  # was 1 at 4 s before
+    assert mark_opacity(saved, "Skerry", "sweep", moved) == pytest.approx(1.0)
