@@ -123,6 +123,7 @@ class ViewerWindow:
         #: "flat", or "dome"/"panorama": the picture is the master the export would make.
         self.session.view_mode = view
         self._immersive: Any = None
+        self._shown: Any = None  # the last show picture, with what it was made from
         self.preview_rect: tuple[int, int, int, int] | None = None
         self._closed = False
         self.frames_drawn = 0
@@ -377,7 +378,14 @@ class ViewerWindow:
         from ..export.show import show_picture
 
         c = self.session.clock
-        return show_picture(self.editor.scene, c.t_s, c.frame_show_s if c.on_show else None)
+        show_s = c.frame_show_s if c.on_show else None
+        # The same picture while nothing changes (paused, editing a panel): the same scene
+        # object, so the frames keep their static geometry (a dome preview's five faces).
+        key = (self.editor.scene, c.t_s, show_s)
+        kept = self._shown
+        if kept is None or kept[0][0] is not key[0] or kept[0][1:] != key[1:]:
+            self._shown = kept = (key, show_picture(self.editor.scene, c.t_s, show_s))
+        return kept[1]
 
     def _draw_immersive(self, fw: int, fh: int, moving: bool = False) -> None:
         """The dome master or panorama of the scene as the export makes it (the show's
@@ -545,4 +553,8 @@ class ViewerWindow:
             self.renderer.release()
         implot.destroy_context(self.implot_ctx)
         imgui.destroy_context(self.imgui_ctx)
+        # pyglet checks glGetError after its last flush: an error left by the objects
+        # released above (a framebuffer still bound as it went) must not fail the close.
+        self.ctx.screen.use()
+        _ = self.ctx.error
         self.window.close()
