@@ -31,7 +31,7 @@ from pathlib import Path
 from typing import Any
 
 from ..units import Epoch, unit_factor
-from .model import Body, BodyShow, CameraKey, Caption, RateKey, Scene, Timeline
+from .model import Body, BodyShow, CameraKey, Caption, Fade, RateKey, Scene, Timeline
 
 RGB = tuple[float, float, float]
 
@@ -265,20 +265,13 @@ def body_text(scene: Scene, body: Body, comments: Iterable[str] = ()) -> str:
     return table_text("body", body_table(scene, body), comments)
 
 
-# --- the show's tables ------------------------------------------------------------------
-
-
-def _show_time(x_s: float) -> str:
-    return f"{number(x_s)} s"
-
-
 def camera_key_table(key: CameraKey, length_unit: str = "au") -> dict[str, Any]:
     """A ``[[timeline.camera]]`` table of ``key``: ``at``, ``ease`` and ``path`` when not
     the defaults, then the camera keys it sets (lengths in ``length_unit``)."""
-    t: dict[str, Any] = {"at": _show_time(key.at_s)}
+    t: dict[str, Any] = {"at": duration(key.at_s)}
     if key.ease != "in-out":
         t["ease"] = key.ease
-    if getattr(key, "path", None) not in (None, "eased"):
+    if key.path != "eased":
         t["path"] = key.path
     lu = length_unit
     for attr, name in (("projection", "projection"), ("look", "look")):
@@ -291,36 +284,34 @@ def camera_key_table(key: CameraKey, length_unit: str = "au") -> dict[str, Any]:
             t[name] = angle(getattr(key, attr))
     if key.target is not None:
         t["target"] = target(key.target, lu)
-    for attr, name in (("width_m", "width"), ("distance_m", "distance"),
-                       ("dome_distance_m", "dome_distance")):
+    for attr, name in (("width_m", "width"), ("distance_m", "distance")):
         if getattr(key, attr) is not None:
             t[name] = length(getattr(key, attr), lu)
-    for attr, name in (("fov_rad", "fov"), ("dome_elevation_rad", "dome_elevation"),
-                       ("dome_tilt_rad", "dome_tilt")):
-        if getattr(key, attr) is not None:
-            t[name] = angle(getattr(key, attr))
+    if key.fov_rad is not None:
+        t["fov"] = angle(key.fov_rad)
+    t.update(dome_framing(key, None, lu))
     return t
 
 
-def fade_table(fade: Any) -> dict[str, Any]:
+def fade_table(fade: Fade) -> dict[str, Any]:
     """A ``[[timeline.fade]]`` table of ``fade``."""
     t: dict[str, Any] = {"body": fade.body, "mark": fade.mark,
-                         "at": [_show_time(x) for x in fade.at_s],
+                         "at": [duration(x) for x in fade.at_s],
                          "opacity": [float(number(x)) for x in fade.opacity]}
     if fade.ease != "in-out":
         t["ease"] = fade.ease
     return t
 
 
-def caption_table(caption: Any) -> dict[str, Any]:
+def caption_table(caption: Caption) -> dict[str, Any]:
     """A ``[[timeline.caption]]`` table of ``caption`` (defaults left out)."""
 
     d = Caption("")
-    t: dict[str, Any] = {"text": caption.text, "start": _show_time(caption.start_s)}
+    t: dict[str, Any] = {"text": caption.text, "start": duration(caption.start_s)}
     if math.isfinite(caption.end_s):
-        t["end"] = _show_time(caption.end_s)
+        t["end"] = duration(caption.end_s)
     if caption.fade_s != d.fade_s:
-        t["fade"] = _show_time(caption.fade_s)
+        t["fade"] = duration(caption.fade_s)
     if caption.position != d.position:
         t["position"] = caption.position
     if caption.size_px != d.size_px:
