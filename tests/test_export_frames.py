@@ -37,8 +37,12 @@ def test_frame_ranges_are_half_open_and_checked_against_the_timeline() -> None:
     assert parse_frame_range("40:80", 600) == range(40, 80)
     assert parse_frame_range(":10", 600) == range(10)
     assert parse_frame_range("590:", 600) == range(590, 600)
+    # A step, as in a Python slice: every 30th frame of a 30 fps show is one a second.
+    assert parse_frame_range("::30", 600) == range(0, 600, 30)
+    assert list(parse_frame_range("10:100:45", 600)) == [10, 55]
     for bad, needle in (("0:601", "at most 600"), ("5:5", "0 <= A < B"), ("a:b", "not a range"),
-                        ("-1:4", "0 <= A < B"), ("1:2:3", "not a range")):
+                        ("-1:4", "0 <= A < B"), ("1:2:x", "not a range"),
+                        ("1:2:3:4", "not a range"), ("0:10:0", "step must be")):
         with pytest.raises(UserInputError, match=needle):
             parse_frame_range(bad, 600)
 

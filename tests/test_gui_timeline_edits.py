@@ -226,3 +226,74 @@ def test_a_render_job_of_a_show_time_range_and_of_a_dome_master(tmp_path, scene)
         job_request(f"{tmp_path}/f/", "", "", scene, from_text="4 s", to_text="60 s")
     with pytest.raises(UserInputError, match="ends after it starts"):
         job_request(f"{tmp_path}/f/", "", "", scene, from_text="6 s", to_text="4 s")
+
+
+AU = 1.495978707e11  # m, IAU 2012 Resolution B2
+
+
+def test_a_keyed_view_is_stored_as_a_person_would_type_it(tmp_path, scene) -> None:  # type: ignore[no-untyped-def]
+    """A view framed with the mouse has values like azimuth -99.99999999999999 deg; the key
+    stores the view rounded (4 significant digits, 0.01 deg, azimuth in [0, 360)) so the
+    file reads like a hand-written one, and the file's text gives back the very values."""
+    cam = replace(scene.camera, look="angles", elevation_rad=math.radians(40.0000001),
+                  azimuth_rad=math.radians(-99.99999999999999),
+                  target=(0.13112877632134373 * AU, 0.08702643349364793 * AU,
+                          0.12927496978785302 * AU), width_m=26.29757785467128 * AU)
+    tidy = te.tidy_view(cam, "au")
+    assert math.degrees(tidy.azimuth_rad) == pytest.approx(260.0, abs=1e-12)
+    assert math.degrees(tidy.elevation_rad) == pytest.approx(40.0, abs=1e-12)
+    assert tidy.width_m == pytest.approx(26.3 * AU, rel=1e-15)
+    # The target moves by less than 1e-4 of the picture's width (0.2 px at 1920 px).
+    moved = math.dist(tidy.target, cam.target)  # type: ignore[arg-type]
+    assert 0 < moved < 1e-4 * cam.width_m
+    path = tmp_path / "show.toml"
+    path.write_text(SCENE, encoding="utf-8")
+    ed = Editor.open(path)
+    ed.edit_timeline(te.add_camera_key(ed.scene.timeline, te.key_from_camera(tidy, 5.0))[0],
+                     "key")
+    ed.save()
+    text = path.read_text(encoding="utf-8")
+    assert 'azimuth = "260 deg"' in text and 'width = "26.3 au"' in text
+    assert 'target = ["0.131 au", "0.087 au", "0.129 au"]' in text
+    key = Editor.open(path).scene.timeline.camera_keys[1]
+    assert (key.azimuth_rad, key.width_m, key.target) == (tidy.azimuth_rad, tidy.width_m,
+                                                          tidy.target)
+
+
+def test_the_show_start_is_typed_as_scene_time_and_saved_in_the_scene_unit(
+        tmp_path, scene) -> None:  # type: ignore[no-untyped-def]
+    tl = te.set_show(scene, scene.timeline, "start", "180 d")
+    assert tl.start_s == 180 * 86400.0
+    # An epoch is the offset from the scene epoch (2030-01-01 to 2030-07-01: 181 days).
+    tl2 = te.set_show(scene, scene.timeline, "start", "2030-07-01T00:00:00 TDB")
+    assert tl2.start_s == 181 * 86400.0
+    with pytest.raises(te.TimelineRefused, match="offset from the scene epoch"):
+        te.set_show(scene, scene.timeline, "start", "soon")
+    path = tmp_path / "show.toml"
+    path.write_text(SCENE, encoding="utf-8")
+    ed = Editor.open(path)
+    ed.edit_timeline(te.set_show(ed.scene, ed.scene.timeline, "start", "180 d"), "start")
+    ed.save()
+    assert 'start = "180 d"' in path.read_text(encoding="utf-8")
+    assert Editor.open(path).scene.timeline.start_s == 180 * 86400.0
+
+
+def test_mouse_times_snap_to_a_grid_the_axis_can_show() -> None:
+    from viewer.gui.panels.timeline import snap, zoom_span
+
+    # 18.7 px per second (a 30 s show on 562 px): steps of 0.5 s are the finest 6 px apart.
+    assert snap(11.96, 18.7, 30.0) == 12.0
+    assert snap(8.3, 18.7, 30.0) == 8.5
+    # Zoomed to 100 px/s: tenths; to 400 px/s: single frames (1/30 s = 13 px).
+    assert snap(4.96, 100.0, 30.0) == pytest.approx(5.0)
+    assert snap(4.96, 400.0, 30.0) == pytest.approx(149 / 30)
+    # Alt held: the frame grid only.
+    assert snap(11.96, 18.7, 30.0, free=True) == pytest.approx(359 / 30)
+    # Zoom keeps the time under the pointer in place and stays inside the show.
+    a, b = zoom_span((0.0, 30.0), 30.0, 3.0, 15.0)  # type: ignore[misc]
+    assert b - a == pytest.approx(30 * 0.8 ** 3) and (15 - a) / (b - a) == pytest.approx(0.5)
+    a, b = zoom_span((0.0, 30.0), 30.0, 3.0, 0.0)  # type: ignore[misc]
+    assert a == 0.0
+    assert zoom_span((10.0, 20.0), 30.0, -10.0, 15.0) is None  # out to the whole show
+    a, b = zoom_span((0.0, 30.0), 30.0, 40.0, 29.0)  # type: ignore[misc]
+    assert b - a == pytest.approx(0.5) and b <= 30.0

@@ -191,3 +191,41 @@ def test_a_fade_point_dragged_on_the_timeline_moves_in_the_saved_show(
     assert saved.timeline.fades[0].at_s == pytest.approx((1.0, moved))
     assert mark_opacity(saved, "Skerry", "sweep", 4.0) < 0.8  # was 1 at 4 s before
     assert mark_opacity(saved, "Skerry", "sweep", moved) == pytest.approx(1.0)
+
+
+def _fill_extent(img: np.ndarray) -> np.ndarray:
+    """The box (x0, y0, x1, y1) px of a sector fill's orange (not its bright lines or
+    labels): the 0.5 and 99.5 percentiles of where the pixels are, so a stray pixel does
+    not count."""
+    rgb = img[..., :3].astype(int)
+    r, g, b = rgb[..., 0], rgb[..., 1], rgb[..., 2]
+    fill = (r - b > 35) & (g - b > 15) & (rgb.max(axis=2) < 170) & (r > 50)
+    ys, xs = np.nonzero(fill)
+    assert xs.size > 5000, "the sectors are not in the picture"
+    return np.array([np.percentile(xs, 0.5), np.percentile(ys, 0.5),
+                     np.percentile(xs, 99.5), np.percentile(ys, 99.5)])
+
+
+def test_with_the_timeline_up_the_window_frames_the_exported_picture(
+        display: Display, tmp_path: Path) -> None:
+    """With the panels up, the show frame (the render size fitted between the panels) holds
+    what the export shows: Skerry's equal-time sectors (their fill, #ffb347 at 0.4 in
+    demo.toml) span the same part of the frame as of the exported image, within 1 % of
+    its width. (Labels and lines keep the window's sizes, so they are not compared.)"""
+    scene = str(ROOT / "scenes" / "demo.toml")
+    shot, report = tmp_path / "window.png", tmp_path / "ui.json"
+    run = subprocess.run([*PERIFOCAL, "open", scene, "--size", "1600x900", "--timeline",
+                          "--show-at", "8 s", "--screenshot", str(shot), "--quit-after", "6",
+                          "--ui-report", str(report)], env=display.env, capture_output=True,
+                         text=True, timeout=180)
+    assert run.returncode == 0, run.stderr
+    x, y, w, h = read_report(report)["show_frame"]  # type: ignore[index]
+    assert abs(w / h - 16 / 9) < 0.01 and w > 600  # demo.toml renders 1920 x 1080
+    window = _rgb(shot)[y:y + h, x:x + w]
+    out = tmp_path / "still.png"
+    run = subprocess.run([*PERIFOCAL, "render", scene, "--show-at", "8 s", "--size",
+                          f"{w}x{h}", "-o", str(out)], capture_output=True, text=True,
+                         timeout=180)
+    assert run.returncode == 0, run.stderr
+    a, b = _fill_extent(window), _fill_extent(_rgb(out))
+    assert np.abs(a - b).max() < 0.01 * w, (a, b)

@@ -40,7 +40,8 @@ def add_parser(sub: Any) -> None:
     )
     p.add_argument("scene", metavar="SCENE", help="the show's scene file (.toml)")
     p.add_argument("folder", metavar="FOLDER", help="the folder of frames")
-    p.add_argument("--frames", metavar="A:B", help="only frames A..B-1 (default: the "
+    p.add_argument("--frames", metavar="A:B[:STEP]", help="only frames A..B-1, every STEP-th "
+                   "with A:B:STEP (default: the "
                    "whole timeline)")
     p.add_argument("--format", choices=("png", "jpg"), default="png",
                    help="the frames' image format (default png)")

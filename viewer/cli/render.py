@@ -72,7 +72,9 @@ def add_parser(sub: Any) -> None:
                    "an epoch; default the timeline start")
     p.add_argument("--show-at", metavar="T", help="time into the show of a still: \"12 s\", "
                    "\"1:05\" (m:ss), \"121/30\" or \"frame 121\" (frame 121 of the show)")
-    p.add_argument("--frames", metavar="A:B", help="timeline frames A..B-1 (sequence, video)")
+    p.add_argument("--frames", metavar="A:B[:STEP]",
+                   help="timeline frames A..B-1, every STEP-th with A:B:STEP (sequence, "
+                   "video)")
     p.add_argument("--size", metavar="WxH", help="image size in pixels, e.g. 1920x1080")
     p.add_argument("--transparent", action="store_true",
                    help="alpha background instead of the scene's background colour (PNG)")

@@ -28,7 +28,8 @@ SETTINGS_NAME = ".perifocal-frames.json"
 
 
 def parse_frame_range(text: str | None, frame_count: int) -> range:
-    """Frames A..B-1 from "A:B" (either side may be empty: ":B", "A:"), checked.
+    """Frames A..B-1 from "A:B", or every S-th of them from "A:B:S" (as a Python slice;
+    A or B may be empty: ":B", "A:", "::30"), checked.
 
     Without ``text`` the whole timeline. B past the last frame is an error.
     """
@@ -39,19 +40,23 @@ def parse_frame_range(text: str | None, frame_count: int) -> range:
         return range(frame_count)
     parts = text.split(":")
     try:
-        if len(parts) != 2:
+        if len(parts) not in (2, 3):
             raise ValueError
         a = int(parts[0]) if parts[0].strip() else 0
         b = int(parts[1]) if parts[1].strip() else frame_count
+        step = int(parts[2]) if len(parts) == 3 and parts[2].strip() else 1
     except ValueError:
-        raise UserInputError("--frames", f"{text!r} is not a range A:B of frame numbers "
-                             f"(e.g. 0:{frame_count})") from None
+        raise UserInputError("--frames", f"{text!r} is not a range A:B (or A:B:STEP) of "
+                             f"frame numbers (e.g. 0:{frame_count}, or 0:{frame_count}:30 "
+                             "for every 30th frame)") from None
     if a < 0 or b <= a:
         raise UserInputError("--frames", f"{text!r}: need 0 <= A < B")
+    if step < 1:
+        raise UserInputError("--frames", f"{text!r}: the step must be a whole number >= 1")
     if b > frame_count:
         raise UserInputError("--frames", f"{text!r}: the timeline has {frame_count} frames "
                              f"(0..{frame_count - 1}), so B may be at most {frame_count}")
-    return range(a, b)
+    return range(a, b, step)
 
 
 def frame_path(folder: Path, k: int, fmt: str) -> Path:

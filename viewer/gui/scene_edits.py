@@ -379,7 +379,7 @@ def save_timeline(scene: Scene, saved: Scene, text: str) -> str:
     if tl.clock != old.clock:
         settings["timeline.clock"] = tl.clock
     if tl.start_s != old.start_s:
-        settings["timeline.start"] = writer.duration(tl.start_s)
+        settings["timeline.start"] = writer.quantity(tl.start_s, "time", scene.time_unit)
     if settings:
         text = edit_text(text, settings)
     for kind in _SHOW_KINDS:

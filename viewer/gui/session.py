@@ -317,7 +317,7 @@ class Session:
         """Store the view as a camera key at the frame shown (the key there, if there is
         one, takes the view instead)."""
         from ..scene.timeline import resolved_keys
-        from .timeline_edits import add_camera_key, delete_camera_key, key_from_camera
+        from .timeline_edits import add_camera_key, delete_camera_key, key_from_camera, tidy_view
 
         if not self.clock.on_show:
             self.clock.seek_show(self.clock.show_s)
@@ -328,7 +328,7 @@ class Session:
         before = [c for t, _, c in resolved_keys(scene) if t < at - 1e-9]
         base = before[-1] if before else scene.camera
         ease = keys[same[0]].ease if same else "in-out"
-        key = key_from_camera(self.camera, at, base, ease)
+        key = key_from_camera(tidy_view(self.camera, scene.length_unit), at, base, ease)
 
         def edit(tl: Any) -> Any:
             if same:

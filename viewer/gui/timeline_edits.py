@@ -26,15 +26,15 @@ from typing import Any
 
 from ..scene import spec
 from ..scene.model import Camera, CameraKey, Caption, Fade, Scene, Timeline, name_key
-from ..units import QuantityError
-from ..units.forms import ShowTimeError
+from ..units import EpochError, QuantityError, unit_factor
+from ..units.forms import ShowTimeError, parse_scene_time
 from ..units.forms import parse_show_time as forms_show_time
 from ..units.limits import parse_limited
 from .elements_edit import EditRefused
 
 __all__ = ["TimelineRefused", "add_camera_key", "add_caption", "add_fade", "add_fade_point",
            "delete_camera_key", "delete_caption", "delete_fade", "delete_fade_point",
-           "key_from_camera", "move_camera_key", "move_caption", "move_fade_point",
+           "key_from_camera", "move_camera_key", "tidy_view", "move_caption", "move_fade_point",
            "new_show", "parse_show_time", "set_camera_key", "set_caption", "set_fade",
            "set_fade_point", "set_show"]
 
@@ -107,6 +107,49 @@ def _free_time(times: Sequence[float], at_s: float, what: str) -> None:
     clash = [t for t in times if abs(t - at_s) < 1e-9]
     if clash:
         raise _refuse(what, f"a key is already at {_s(at_s)}; each key needs its own time")
+
+
+#: Significant digits of a keyed view's sizes, and decimals of its angles in degrees: a
+#: view framed with the mouse has no more precision than that (1e-4 of the picture's
+#: width is a fifth of a pixel at 1920 px), and the key reads like one typed by hand.
+VIEW_DIGITS = 4
+ANGLE_DECIMALS = 2
+
+
+def _rounded(x_si: float, factor: float, digits: int) -> float:
+    """``x_si`` to ``digits`` significant digits in the unit of ``factor``, as the scene
+    reader makes it from that decimal (so the file's text gives back this very value)."""
+    return float(f"{x_si / factor:.{digits}g}") * factor
+
+
+def tidy_view(camera: Camera, length_unit: str) -> Camera:
+    """``camera`` as a key stores a view framed with the mouse: width, distances and fov
+    to ``VIEW_DIGITS`` significant digits (lengths in ``length_unit``), elevation and
+    azimuth to ``ANGLE_DECIMALS`` decimals of a degree (azimuth in [0, 360)), a target
+    point to the same 1e-4 of the picture's width. What the window shows does not move
+    by a visible amount; the file reads "azimuth = 262.5 deg", not "-97.49999999 deg"."""
+    lf, af = unit_factor(length_unit, "length"), unit_factor("deg", "angle")
+
+    def deg(x: float, wrap: bool = False) -> float:
+        d = round(math.degrees(x), ANGLE_DECIMALS)
+        return float(f"{d % 360.0 if wrap else d:.{ANGLE_DECIMALS}f}") * af
+
+    width = camera.width_m
+    if camera.projection == "perspective":
+        width = 2.0 * camera.distance_m * math.tan(0.5 * camera.fov_rad)
+    target = camera.target
+    if not isinstance(target, str):
+        q = 10.0 ** math.floor(math.log10(max(width, 1e-300) / 10.0 ** VIEW_DIGITS / lf))
+        x, y, z = (float(f"{round(v / lf / q) * q:.15g}") * lf for v in target)
+        target = (x, y, z)
+    return replace(
+        camera, target=target, width_m=_rounded(camera.width_m, lf, VIEW_DIGITS),
+        distance_m=_rounded(camera.distance_m, lf, VIEW_DIGITS),
+        fov_rad=_rounded(camera.fov_rad, af, VIEW_DIGITS),
+        elevation_rad=deg(camera.elevation_rad),
+        azimuth_rad=deg(camera.azimuth_rad, wrap=True),
+        dome_distance_m=(None if camera.dome_distance_m is None
+                         else _rounded(camera.dome_distance_m, lf, VIEW_DIGITS)))
 
 
 def key_from_camera(camera: Camera, at_s: float, base: Camera | None = None,
@@ -493,9 +536,17 @@ def _check_show(tl: Timeline) -> Timeline:
 
 
 def set_show(scene: Scene, tl: Timeline, name: str, text: str) -> Timeline:
-    """One setting of the show from text: ``duration`` (time), ``rate`` (scene time per
-    second of show, "5 d/s"), ``fps``, ``clock`` (none, date, elapsed)."""
+    """One setting of the show from text: ``start`` (the scene time the show starts at:
+    an offset from the scene epoch, "180 d", or an epoch), ``duration`` (time), ``rate``
+    (scene time per second of show, "5 d/s"), ``fps``, ``clock`` (none, date, elapsed)."""
     text = text.strip()
+    if name == "start":
+        try:
+            start = parse_scene_time(text, scene.epoch, scene.time_unit)
+        except (QuantityError, EpochError) as err:
+            raise _refuse(name, f"{err}; give an offset from the scene epoch (\"180 d\") "
+                          "or an epoch (\"2030-06-01T00:00:00 TDB\")") from None
+        return _check_show(replace(tl, start_s=start))
     if name == "duration":
         return _check_show(replace(tl, duration_s=_quantity(text, "time", "s", name)))
     if name == "rate":

@@ -12,6 +12,7 @@ No global state: the imgui context, the GL context and the session belong to the
 from __future__ import annotations
 
 import json
+import math
 import os
 import time
 from pathlib import Path
@@ -248,34 +249,64 @@ class ViewerWindow:
         cx, cy = x0 + 0.5 * w - 0.5 * fw, top + 0.5 * h - 0.5 * fh
         return (cy * view.basis[1] - cx * view.basis[0]) / view.px_per_m
 
+    def show_frame(self) -> tuple[int, int, int, int] | None:
+        """Where the export's picture is in the window while a show is being built (the
+        timeline shown, panels up, the flat view): (x, y from the top, width, height) px,
+        the scene's render size fitted into the area between the panels. The camera then
+        frames that rectangle as the export frames its image, so a view keyed in the
+        window is the view rendered; the window dims what lies outside it. None
+        otherwise (the camera's width spans the whole window, as before)."""
+        s = self.session
+        if not s.show_timeline or s.presenting or s.view_mode != "flat":
+            return None
+        ax, ay, aw, ah = self._scene_area()
+        W, H = self.editor.scene.render.size_px
+        k = min(aw / W, ah / H)
+        w, h = max(1, round(W * k)), max(1, round(H * k))
+        return ax + (aw - w) // 2, ay + (ah - h) // 2, w, h
+
+    def _window_view(self, camera: Any) -> Any:
+        """``camera``'s view at the window's size, framing the show frame when there is
+        one: an orthographic width spans the frame's width and a perspective fov its
+        height, as they span the exported image's."""
+        from dataclasses import replace
+
+        from ..geometry.camera import view_for
+
+        size = self.window.get_framebuffer_size()
+        view = view_for(self.editor.scene, self.session.clock.t_s, size, camera)
+        frame = self.show_frame()
+        if frame is None:
+            return view
+        if view.perspective:
+            half = math.atan(math.tan(0.5 * view.fov_rad) * size[1] / frame[3])
+            return replace(view, fov_rad=2.0 * half)
+        return replace(view, width_m=view.width_m * size[0] / frame[2])
+
     def _view(self) -> Any:
         """The view drawn in the window: the whole window, the target at the picture's
         centre (drawing the whole window costs less on llvmpipe than a copy)."""
         from dataclasses import replace
 
-        from ..geometry.camera import view_for
-
         s = self.session
-        size = self.window.get_framebuffer_size()
         try:
-            view = view_for(self.editor.scene, s.clock.t_s, size, s.camera)
+            view = self._window_view(s.camera)
         except KeyError:  # the followed body was renamed or removed
             s.camera = focus(s.camera, "center")
-            view = view_for(self.editor.scene, s.clock.t_s, size, s.camera)
+            view = self._window_view(s.camera)
         view = replace(view, origin_m=view.origin_m + self._shift_m(view))
-        return on_screen(view, s.ui_scale, self._scene_area())
+        # Lines, labels and captions keep the window's sizes (readable at any frame size;
+        # presentation mode shows the exported image itself).
+        return on_screen(view, s.ui_scale, self.show_frame() or self._scene_area())
 
     def _unshift(self, camera: Any) -> Any:
         """A camera made from the shifted view (its target the point at the window's
         centre) back to one whose target is the picture's centre."""
         from dataclasses import replace
 
-        from ..geometry.camera import view_for
-
         if isinstance(camera.target, str):
             return camera
-        size = self.window.get_framebuffer_size()
-        view = view_for(self.editor.scene, self.session.clock.t_s, size, camera)
+        view = self._window_view(camera)
         t = view.origin_m - self._shift_m(view)
         return replace(camera, target=(float(t[0]), float(t[1]), float(t[2])))
 
@@ -310,7 +341,10 @@ class ViewerWindow:
         if s.fit_wanted:
             s.fit_wanted = False
             size = self.window.get_framebuffer_size()
-            _, _, fw, fh = self._scene_area()
+            frame = self.show_frame()
+            _, _, fw, fh = frame or self._scene_area()
+            if frame is not None:  # the camera frames the show frame, not the window
+                size = (fw, fh)
             s.camera = fit(s.camera, self.editor.scene, s.clock.t_s, size, (fw, fh))
         self._view_state = self._view_settings()
 
@@ -358,6 +392,8 @@ class ViewerWindow:
             self.ctx.clear(*BACKGROUND)
         imgui.get_io().delta_time = 1.0 / 60.0
         imgui.new_frame()
+        if drawn and (frame := self.show_frame()) is not None:
+            self._dim_outside(frame)
         self.panels.draw(self.session, self.window.get_size())
         # A panel or dialog that sizes itself to its content settles over a few frames
         # (it grows, then is placed by its new size): draw until the layout stays put.
@@ -371,6 +407,24 @@ class ViewerWindow:
         self.frame_times_s.append(time.perf_counter() - t0)
         if self.ui_report is not None:
             self._write_report()
+
+    def _dim_outside(self, frame: tuple[int, int, int, int]) -> None:
+        """Dim the picture outside the show frame and outline it, under the panels: what
+        is inside is what the export shows. (imgui counts in window points; the
+        framebuffer may have more pixels on a high-density screen.)"""
+        imgui = self._imgui
+        fw, _ = self.window.get_framebuffer_size()
+        k = self.window.get_size()[0] / fw
+        x, y, w, h = (v * k for v in frame)
+        ax, ay, aw, ah = (v * k for v in self._scene_area())
+        dl = imgui.get_background_draw_list()
+        shade = imgui.color_convert_float4_to_u32(imgui.ImVec4(0.0, 0.0, 0.0, 0.6))
+        for a, b in (((ax, ay), (ax + aw, y)), ((ax, y + h), (ax + aw, ay + ah)),
+                     ((ax, y), (x, y + h)), ((x + w, y), (ax + aw, y + h))):
+            if b[0] > a[0] and b[1] > a[1]:
+                dl.add_rect_filled(imgui.ImVec2(*a), imgui.ImVec2(*b), shade)
+        edge = imgui.color_convert_float4_to_u32(imgui.ImVec4(0.55, 0.62, 0.78, 0.7))
+        dl.add_rect(imgui.ImVec2(x - 1, y - 1), imgui.ImVec2(x + w + 1, y + h + 1), edge)
 
     def _show_picture(self) -> Any:
         """(scene as drawn, captions and clock) at the frame shown: on the show its frame
@@ -448,6 +502,7 @@ class ViewerWindow:
         r["scene"] = str(self.editor.path) if self.editor.path else ""
         r["view"] = self.session.view_mode
         r["preview_rect"] = self.preview_rect if self.session.view_mode != "flat" else None
+        r["show_frame"] = self.show_frame()
         tmp = self.ui_report.with_name(self.ui_report.name + ".tmp")
         tmp.write_text(json.dumps(r), encoding="utf-8")
         os.replace(tmp, self.ui_report)

@@ -72,6 +72,8 @@ class Panels(Widgets):
     report: dict[str, Any] = field(default_factory=dict)
     #: A drag on the timeline's tracks: what it moves (None: the scrub bar).
     timeline_drag: dict[str, Any] | None = None
+    #: The part of the show the timeline's axis spans, (from, to) s; None: all of it.
+    timeline_span: tuple[float, float] | None = None
     _editor: Any = None
 
     def _reset_for(self, editor: Editor) -> None:

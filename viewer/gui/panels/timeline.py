@@ -6,8 +6,13 @@ there), the camera keys, one track per fade (its points and its opacity line), o
 caption (a bar from start to end) and the clock. A click selects a key, a fade point or a
 caption; dragging it moves it in time (one undo step per drag); Delete removes it; a
 double click on the camera track keys the view at that time, on a fade track adds a
-point. Under the tracks, the fields of the selection (its values and easing; a caption's
-text, times, place and size), or the show's own settings when nothing is selected.
+point. Ctrl+wheel over the tracks zooms the time axis around the pointer, Shift+wheel
+slides it, and the buttons by the time read-out zoom or show the whole show again.
+Times picked with the mouse snap to a grid that keeps about 6 px between its steps
+(whole seconds, tenths, down to single frames when zoomed in); Alt held places on any
+frame. Under the tracks, the fields of the selection (its values and easing; a
+caption's text, times, place and size), or the show's own settings when nothing is
+selected; the fields wrap onto more lines in a narrow window.
 Every change goes through ``viewer.gui.timeline_edits`` (its refusals are one line under
 the field) and the editor's history, and the picture follows at once.
 
@@ -34,7 +39,12 @@ if TYPE_CHECKING:
     from . import Panels
 
 #: Height of one track, px at UI scale 1.
-TRACK_H = 22.0
+TRACK_H = 20.0
+#: The shortest part of a show the axis zooms to (s), and the zoom per wheel notch.
+MIN_SPAN_S = 0.5
+ZOOM_PER_NOTCH = 0.8
+#: The snapping grid keeps at least this many px between its steps (UI scale 1).
+SNAP_PX = 6.0
 LABEL_COL = 150.0
 #: How near the pointer must be to a key to pick it, px at UI scale 1.
 PICK_PX = 7.0
@@ -59,13 +69,23 @@ def draw(p: Panels, s: Session, pos: tuple[float, float], size: tuple[float, flo
         _controls(p, s)
         tl = s.editor.scene.timeline
         rows = _rows(s)
-        fields_h = 2.0 * imgui.get_frame_height_with_spacing() + px(8)
+        line = imgui.get_frame_height_with_spacing()
+        # The tracks take what they need while the fields keep two lines; the fields get
+        # the rest (they scroll when the selection has more), the tracks scroll past that.
         avail = imgui.get_content_region_avail()
-        tracks_h = max(px(TRACK_H) * 2, avail.y - fields_h)
-        if imgui.begin_child("tracks", imgui.ImVec2(0, tracks_h)):
+        need = px(TRACK_H) * len(rows) + 2.0 * imgui.get_style().window_padding.y
+        tracks_h = max(px(TRACK_H) * 2, min(need, avail.y - 2.0 * line - px(10)))
+        io = imgui.get_io()
+        # Ctrl+wheel zooms and Shift+wheel slides the time axis: the list must not scroll.
+        flags = (imgui.WindowFlags_.no_scroll_with_mouse if io.key_ctrl or io.key_shift
+                 else 0)
+        if imgui.begin_child("tracks", imgui.ImVec2(0, tracks_h), 0, flags):
             _tracks(p, s, tl, rows)
         imgui.end_child()
-        _fields(p, s)
+        imgui.separator()
+        if imgui.begin_child("fields", imgui.ImVec2(0, 0)):
+            _fields(p, s)
+        imgui.end_child()
     imgui.end()
 
 
@@ -111,6 +131,17 @@ def _controls(p: Panels, s: Session) -> None:
             f"{tl.frame_count}   {when}{state}")
     imgui.text(text)
     p.report["timeline_time"] = text
+    # Zoom of the time axis (also Ctrl+wheel over the tracks; Shift+wheel slides it).
+    dur = tl.duration_s
+    span = p.timeline_span or (0.0, dur)
+    mid = min(max(c.show_s, span[0]), span[1])
+    for label, notches in (("-", -3.0), ("+", 3.0)):
+        imgui.same_line()
+        if p.button(f"{label}##zoom"):
+            p.timeline_span = zoom_span(span, dur, notches, mid)
+    imgui.same_line()
+    if p.button("whole show"):
+        p.timeline_span = None
 
 
 def _step(s: Session, frames: int) -> None:
@@ -173,6 +204,47 @@ def _item_rect() -> list[float]:
     return [a.x, a.y, b.x, b.y]
 
 
+def _span(p: Panels, s: Session, dur: float) -> tuple[float, float]:
+    """The part of the show the axis spans now, kept inside the show; while the show
+    plays, the span pages along so the play head stays on it."""
+    if p.timeline_span is None:
+        return 0.0, dur
+    a, b = p.timeline_span
+    w = min(max(b - a, min(MIN_SPAN_S, dur)), dur)
+    a = min(max(a, 0.0), dur - w)
+    t = s.clock.show_s
+    if s.clock.playing and not a <= t <= a + w:
+        a = min(max(t, 0.0), dur - w)
+    p.timeline_span = None if w >= dur else (a, a + w)
+    return a, a + w
+
+
+def zoom_span(span: tuple[float, float], dur: float, notches: float,
+              at_s: float) -> tuple[float, float] | None:
+    """``span`` zoomed by wheel ``notches`` (positive: in) keeping show time ``at_s`` where
+    it is on the axis; None when it spans the whole show again."""
+    a, b = span
+    w = min(max((b - a) * ZOOM_PER_NOTCH ** notches, min(MIN_SPAN_S, dur)), dur)
+    if w >= dur:
+        return None
+    f = (at_s - a) / (b - a) if b > a else 0.5
+    a = min(max(at_s - f * w, 0.0), dur - w)
+    return a, a + w
+
+
+def snap(t_s: float, px_per_s: float, fps: float, free: bool = False,
+         min_px: float = SNAP_PX) -> float:
+    """``t_s`` on the frame grid, and (unless ``free``) on the finest of frames, tenths,
+    fifths, halves, seconds, ... whose steps are at least ``min_px`` apart on the axis."""
+    frame = 1.0 / fps
+    if not free:
+        for q in (frame, 0.1, 0.2, 0.5, 1, 2, 5, 10, 15, 30, 60, 120, 300, 600):
+            if q >= frame and q * px_per_s >= min_px:
+                t_s = round(t_s / q) * q
+                break
+    return round(t_s * fps) / fps
+
+
 def _tracks(p: Panels, s: Session, tl: Any, rows: list[tuple[str, Any]]) -> None:
     dl = imgui.get_window_draw_list()
     origin = imgui.get_cursor_screen_pos()
@@ -181,29 +253,35 @@ def _tracks(p: Panels, s: Session, tl: Any, rows: list[tuple[str, Any]]) -> None
     x0 = origin.x + px(LABEL_COL)
     x1 = origin.x + width - px(18)
     dur = tl.duration_s
+    v0, v1 = _span(p, s, dur)
 
     def x_of(t: float) -> float:
-        return x0 + (x1 - x0) * min(max(t, 0.0), dur) / dur
+        return x0 + (x1 - x0) * (t - v0) / (v1 - v0)
 
     def t_of(x: float) -> float:
-        return min(max((x - x0) / (x1 - x0) * dur, 0.0), dur)
+        return min(max(v0 + (x - x0) / (x1 - x0) * (v1 - v0), 0.0), dur)
 
-    p.report["timeline_axis"] = {"x0": x0, "x1": x1, "duration_s": dur,
-                                 "top": origin.y, "row_h": row_h}
+    p.report["timeline_axis"] = {"x0": x0, "x1": x1, "duration_s": dur, "from_s": v0,
+                                 "to_s": v1, "top": origin.y, "row_h": row_h}
     # One invisible button over the whole area takes the clicks and drags.
     imgui.invisible_button("##tracks", imgui.ImVec2(max(width, 1.0), row_h * len(rows)))
     hovered, active = imgui.is_item_hovered(), imgui.is_item_active()
+    if hovered:
+        _wheel(p, dur, (v0, v1), t_of(imgui.get_mouse_pos().x))
     text_col, dim_col = _u32(theme.TEXT), _u32(theme.TEXT_SECONDARY)
     grid_col = _u32((0.25, 0.30, 0.42, 0.6))
+    bottom = origin.y + row_h * len(rows)
+    # Everything on the axis is clipped to it (a zoomed axis shows part of the show).
+    dl.push_clip_rect(imgui.ImVec2(x0 - px(8), origin.y), imgui.ImVec2(x1 + px(18), bottom),
+                      True)
     # Ticks every "nice" second count.
-    step = _tick_step(dur, (x1 - x0) / px(70))
-    t = 0.0
-    while t <= dur + 1e-9:
-        x = x_of(t)
-        dl.add_line(imgui.ImVec2(x, origin.y + row_h * 0.55), imgui.ImVec2(x, origin.y + row_h
-                    * len(rows)), grid_col)
-        dl.add_text(imgui.ImVec2(x + 2, origin.y), dim_col, f"{t:g}")
-        t += step
+    step = _tick_step(v1 - v0, (x1 - x0) / px(70))
+    for k in range(math.ceil(v0 / step - 1e-9), math.floor(v1 / step + 1e-9) + 1):
+        x = x_of(k * step)
+        dl.add_line(imgui.ImVec2(x, origin.y + row_h * 0.55), imgui.ImVec2(x, bottom),
+                    grid_col)
+        dl.add_text(imgui.ImVec2(x + 2, origin.y), dim_col, f"{k * step:.10g}")
+    dl.pop_clip_rect()
     picks: list[tuple[float, float, tuple[Any, ...]]] = []  # (x, y, pick) for hit tests
     pk = s.picked
     for r, (kind, i) in enumerate(rows):
@@ -217,6 +295,8 @@ def _tracks(p: Panels, s: Session, tl: Any, rows: list[tuple[str, Any]]) -> None
                     label)
         dl.pop_clip_rect()
         p.report["rects"][f"timeline:row:{kind}:{i}"] = [origin.x, y, x1, y + row_h]
+        dl.push_clip_rect(imgui.ImVec2(x0 - px(8), y), imgui.ImVec2(x1 + px(8), y + row_h),
+                          True)
         if kind == "ruler":
             p.report["rects"]["timeline:ruler"] = [x0, y, x1, y + row_h]
         elif kind == "camera":
@@ -256,13 +336,36 @@ def _tracks(p: Panels, s: Session, tl: Any, rows: list[tuple[str, Any]]) -> None
             picks.append((xa, mid, ("caption", i)))
             p.report["rects"][f"timeline:caption:{i}"] = [xa, y + 4, xb, y + row_h - 4]
         elif kind == "clock" and tl.clock != "none":
-            dl.add_rect_filled(imgui.ImVec2(x0, y + 7), imgui.ImVec2(x1, y + row_h - 7),
+            dl.add_rect_filled(imgui.ImVec2(x_of(0.0), y + 6),
+                               imgui.ImVec2(x_of(dur), y + row_h - 6),
                                _u32((0.85, 0.88, 0.95, 0.35)), 2.0)
+        dl.pop_clip_rect()
     # The play head.
     xp = x_of(s.clock.show_s)
-    dl.add_line(imgui.ImVec2(xp, origin.y), imgui.ImVec2(xp, origin.y + row_h * len(rows)),
-                _u32(PLAYHEAD), 2.0)
-    _pointer(p, s, tl, rows, picks, origin.y, row_h, x0, t_of, hovered, active)
+    if x0 - 1 <= xp <= x1 + 1:
+        dl.add_line(imgui.ImVec2(xp, origin.y), imgui.ImVec2(xp, bottom), _u32(PLAYHEAD), 2.0)
+    # What is off the zoomed axis cannot be picked.
+    picks = [pk_ for pk_ in picks if x0 - px(PICK_PX) <= pk_[0] <= x1 + px(PICK_PX)
+             or pk_[2][0] == "caption"]
+
+    def snapped(t: float) -> float:
+        return snap(t, (x1 - x0) / (v1 - v0), tl.fps, imgui.get_io().key_alt, px(SNAP_PX))
+
+    _pointer(p, s, tl, rows, picks, origin.y, row_h, x0, t_of, snapped, hovered, active)
+
+
+def _wheel(p: Panels, dur: float, span: tuple[float, float], at_s: float) -> None:
+    """Ctrl+wheel zooms the axis around ``at_s``; Shift+wheel (or a sideways wheel)
+    slides it by a tenth of its span per notch."""
+    io = imgui.get_io()
+    if io.key_ctrl and io.mouse_wheel:
+        p.timeline_span = zoom_span(span, dur, io.mouse_wheel, at_s)
+    elif p.timeline_span is not None and (io.mouse_wheel_h or (io.key_shift
+                                                               and io.mouse_wheel)):
+        a, b = span
+        d = -0.1 * (b - a) * (io.mouse_wheel_h or io.mouse_wheel)
+        d = min(max(d, -a), dur - b)
+        p.timeline_span = (a + d, b + d)
 
 
 def _samples(times: tuple[float, ...], dur: float) -> list[float]:
@@ -284,7 +387,7 @@ def _tick_step(dur: float, ticks: float) -> float:
 
 def _pointer(p: Panels, s: Session, tl: Any, rows: list[tuple[str, Any]],
              picks: list[tuple[float, float, tuple[Any, ...]]], top: float, row_h: float,
-             x0: float, t_of: Any, hovered: bool, active: bool) -> None:
+             x0: float, t_of: Any, snapped: Any, hovered: bool, active: bool) -> None:
     """Clicks and drags on the tracks: pick, move, scrub, add."""
     mouse = imgui.get_mouse_pos()
     state = p.timeline_drag
@@ -298,7 +401,7 @@ def _pointer(p: Panels, s: Session, tl: Any, rows: list[tuple[str, Any]],
                        and _in_caption(tl, pick[1], t_of(mouse.x))]
         keys = [n for n in near if n[1][0] != "caption"]
         if imgui.is_mouse_double_clicked(0) and mouse.x >= x0:
-            t = round(t_of(mouse.x) * tl.fps) / tl.fps
+            t = snapped(t_of(mouse.x))
             if kind == "camera":
                 s.seek_show(t)
                 s.sync_show()
@@ -329,18 +432,17 @@ def _pointer(p: Panels, s: Session, tl: Any, rows: list[tuple[str, Any]],
             if kind != "ruler":
                 s.picked = None
             p.timeline_drag = {"pick": None}
-            s.seek_show(t_of(mouse.x))
+            s.seek_show(snapped(t_of(mouse.x)))
     if active and state is not None and imgui.is_mouse_down(0):
         if state["pick"] is None:
-            s.seek_show(t_of(mouse.x))
+            s.seek_show(snapped(t_of(mouse.x)))
         elif abs(mouse.x - state["x"]) > 2 or state["moved"]:
             state["moved"] = True
-            t = round((t_of(mouse.x) - state["grab"]) * tl.fps) / tl.fps  # on the frame grid
-            _move(s, state["pick"], t)
+            _move(s, state["pick"], snapped(t_of(mouse.x) - state["grab"]))
     if not imgui.is_mouse_down(0):
         p.timeline_drag = None
     if hovered and mouse.x >= x0:
-        imgui.set_tooltip(f"{t_of(mouse.x):.2f} s into the show")
+        imgui.set_tooltip(f"{snapped(t_of(mouse.x)):.10g} s into the show")
 
 
 def _in_caption(tl: Any, i: int, t: float) -> bool:
@@ -379,8 +481,19 @@ def _move(s: Session, pick: tuple[Any, ...], t: float) -> None:
 # --- the fields of the selection ---------------------------------------------------------
 
 
+def _wrap(label: str, width: float) -> None:
+    """Start a new line when a field (its ``label`` and ``width`` px at UI scale 1) does
+    not fit on this one, so no field is cut off in a narrow window."""
+    style = imgui.get_style()
+    need = imgui.calc_text_size(label).x + 2 * style.item_spacing.x + px(width)
+    if imgui.get_cursor_pos_x() > style.window_padding.x + 1 and \
+            imgui.get_content_region_avail().x < need:
+        imgui.new_line()
+
+
 def _field(p: Panels, s: Session, key: str, label: str, shown: str, edit: Any, what: str,
            width: float = 110.0) -> None:
+    _wrap(label, width)
     imgui.align_text_to_frame_padding()
     imgui.text_colored(DIM, label)
     imgui.same_line()
@@ -388,6 +501,7 @@ def _field(p: Panels, s: Session, key: str, label: str, shown: str, edit: Any, w
     def commit(text: str) -> None:
         if text.strip() != shown:
             s.edit_show(lambda tl: edit(tl, text), what)
+            s.message = f"{what}: {text.strip()} (Ctrl+Z undoes)"
 
     p.typed_field(key, shown, commit, px(width), rect=key, refusal=False)
     imgui.same_line()
@@ -395,6 +509,7 @@ def _field(p: Panels, s: Session, key: str, label: str, shown: str, edit: Any, w
 
 def _choice(p: Panels, s: Session, key: str, label: str, current: str,
             choices: tuple[str, ...], edit: Any, what: str) -> None:
+    _wrap(label, 105)
     imgui.align_text_to_frame_padding()
     imgui.text_colored(DIM, label)
     imgui.same_line()
@@ -419,7 +534,6 @@ def _fields(p: Panels, s: Session) -> None:
         or (pk[0] == "caption" and pk[1] < len(tl.captions)))
     if not valid:
         s.picked = pk = None
-    imgui.separator()
     if pk is None:
         _show_fields(p, s)
     elif pk[0] == "camera":
@@ -442,6 +556,10 @@ def _show_fields(p: Panels, s: Session) -> None:
     tl = scene.timeline
     imgui.text_colored(DIM, "The show:")
     imgui.same_line()
+    from ...scene.writer import quantity
+
+    _field(p, s, "tl:start", "start", quantity(tl.start_s, "time", scene.time_unit),
+           lambda t, x: te.set_show(scene, t, "start", x), "show start", 90)
     _field(p, s, "tl:duration", "duration", f"{tl.duration_s:g} s",
            lambda t, x: te.set_show(scene, t, "duration", x), "show duration", 80)
     _field(p, s, "tl:rate", "rate", te.rate_text(tl.rate),
@@ -486,12 +604,12 @@ def _camera_fields(p: Panels, s: Session, i: int) -> None:
             setter("look"), f"look of camera key {i + 1}")
     target = key.target if isinstance(key.target, str) or key.target is None else "[a point]"
     _field(p, s, f"tl:cam:{i}:target", "target", target or "", setter("target"),
-           f"target of camera key {i + 1}", 100)
+           f"target of camera key {i + 1}", 90)
     imgui.new_line()
     for name, label in (("elevation_rad", "elevation"), ("azimuth_rad", "azimuth"),
                         ("width_m", "width"), ("distance_m", "distance"), ("fov_rad", "fov")):
         _field(p, s, f"tl:cam:{i}:{label}", label, text(name), setter(label),
-               f"{label} of camera key {i + 1}", 95)
+               f"{label} of camera key {i + 1}", 85)
 
 
 def _fade_fields(p: Panels, s: Session, pk: tuple[Any, ...]) -> None:

@@ -21,7 +21,7 @@ LEFT_W = 340.0
 RIGHT_W = 490.0
 TIME_H = 118.0
 #: Height of the timeline panel, docked between the side columns above "Time".
-TIMELINE_H = 262.0
+TIMELINE_H = 300.0
 GAP = 6.0
 #: Width of a dialog's text (its path input and its wrapped problems), px.
 DIALOG_TEXT_W = 640.0
