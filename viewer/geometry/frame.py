@@ -556,11 +556,13 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
             lines.add(tess.arc(arc), StrokeStyle(_rgba(col, 0.92 * fade.orbit),
                                                  body.line_width_px), closed=closed)
         if show.axes and fade.axes > 0:
-            for seg in marks.axes_m(el, limit):
+            axes = _static(cache, body, "axes", lambda el=el, lim=limit: marks.axes_m(el, lim))
+            for seg in axes:
                 lines.add(seg, StrokeStyle(_rgba(col, 0.55 * fade.axes), AXIS_PX,
                                            dash_px=(7.0, 5.0)))
         if show.nodes and fade.nodes > 0:
-            nodes = marks.nodes_m(el, limit)
+            nodes = _static(cache, body, "nodes",
+                            lambda el=el, lim=limit: marks.nodes_m(el, lim))
             if nodes is not None:
                 node_a, node_d = nodes
                 lines.add(np.stack([node_d, node_a]),
@@ -573,7 +575,7 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                                     fade.nodes, param=1.2 * hs)
                         obstacle(q, NODE_PX * hs)
         if show.foci and fade.foci > 0:
-            occ, emp = marks.foci_m(el)
+            occ, emp = _static(cache, body, "foci", lambda el=el: marks.foci_m(el))
             for focus_m, shape_id in ((occ, RING), (emp, CROSSHAIR)):
                 if focus_m is None:
                     continue
@@ -584,7 +586,7 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                                 fade.foci, param=1.5 * hs)
                     obstacle(q, FOCUS_RING_PX * hs)
         if show.apsides and fade.apsides > 0:
-            peri, apo = marks.apsides_m(el)
+            peri, apo = _static(cache, body, "apsides", lambda el=el: marks.apsides_m(el))
             for apsis_m, text in ((peri, "periapsis"), (apo, "apoapsis")):
                 if apsis_m is None:
                     continue
