@@ -312,3 +312,22 @@ def test_anomaly_error_is_a_value_error() -> None:
     assert issubclass(AnomalyError, ValueError)
     with pytest.raises(ValueError, match="e < 1"):
         eccentric_anomaly(0.3, 1.2)
+
+
+def test_values_past_markley_without_the_guard_match_mpmath() -> None:
+    # The values whose last Markley step lies between 1e-4 and the guard's threshold are
+    # returned without a measured residual: each must still be within a few ulps of the
+    # 50-digit root (mpmath) and meet the contract.
+    from viewer.orbit.anomaly import _GUARD_STEP, _markley
+
+    M = rng.uniform(0.0, np.pi, 200_000)
+    e = np.concatenate([rng.uniform(0, 0.99, 100_000), 1 - 10 ** rng.uniform(-12, -1, 100_000)])
+    with np.errstate(under="ignore"):
+        _, last = _markley(M.copy(), e)
+    unguarded = np.flatnonzero((np.abs(last) > 1e-4) & (np.abs(last) <= _GUARD_STEP))
+    assert unguarded.size > 1000
+    E = eccentric_anomaly(M[unguarded], e[unguarded])
+    assert np.max(kepler_residual(E, M[unguarded], e[unguarded])) <= CONTRACT_RESIDUAL
+    for k in rng.choice(unguarded.size, 80, replace=False):
+        want = float(_mp_eccentric(M[unguarded][k], e[unguarded][k]))
+        assert abs(E[k] - want) <= E_VS_MPMATH, (M[unguarded][k], e[unguarded][k])
