@@ -327,8 +327,11 @@ class ViewerWindow:
 
     def _view_settings(self) -> Any:
         s = self.session
+        # ``playing`` too: a show that stops on the frame already drawn (its last) still
+        # needs one frame, or the Play button and the report keep saying "playing".
         return (s.presenting, s.fullscreen, tuple(sorted(s.overlays.items())), s.fit_wanted,
-                s.view_mode, s.show_timeline, s.clock.on_show, s.clock.frame)
+                s.view_mode, s.show_timeline, s.clock.on_show, s.clock.frame,
+                s.clock.playing)
 
     def _apply_view_settings(self) -> None:
         """Full screen (on the chosen screen) and "fit" as the session asks."""
