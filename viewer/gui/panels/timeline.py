@@ -514,7 +514,7 @@ def _choice(p: Panels, s: Session, key: str, label: str, current: str,
     imgui.text_colored(DIM, label)
     imgui.same_line()
     imgui.set_next_item_width(px(105))
-    if imgui.begin_combo(f"##{key}", current):
+    if imgui.begin_combo(f"##{key}", current, imgui.ComboFlags_.height_largest):
         for c in choices:
             if imgui.selectable(f"{c}##{key}", c == current)[0] and c != current:
                 s.try_edit_show(lambda tl, c=c: edit(tl, c), what)
