@@ -229,3 +229,39 @@ def test_with_the_timeline_up_the_window_frames_the_exported_picture(
     assert run.returncode == 0, run.stderr
     a, b = _fill_extent(window), _fill_extent(_rgb(out))
     assert np.abs(a - b).max() < 0.01 * w, (a, b)
+
+
+def test_the_time_axis_zooms_with_ctrl_wheel_and_a_click_snaps_to_its_grid(
+        display: Display, tmp_path: Path) -> None:
+    """Real input: a click on the ruler a pixel or two off 12 s of the demo's 20 s show goes
+    to 12 s (the grid's steps are 0.5 s at 28 px/s), K keys the view there; Ctrl+wheel over
+    the tracks zooms the axis around the pointer, and "whole show" undoes the zoom."""
+    from support.xwindow import click, viewer_on_bundled, window_origin
+
+    with viewer_on_bundled(display, tmp_path, "demo.toml") as (report, origin, _scene):
+        press(display, report, "ctrl+t", show_timeline=True)
+        ui = wait_for(lambda: (r := read_report(report)) and "timeline_axis" in r
+                      and "button:whole show" in r["rects"] and r, what="the timeline")
+        ox, oy = window_origin(display)
+        axis = ui["timeline_axis"]
+        x = axis["x0"] + (axis["x1"] - axis["x0"]) * 12.0 / axis["duration_s"] + 1.6
+        y = axis["top"] + axis["row_h"] / 2
+        display.xdotool("mousemove", str(ox + int(x)), str(oy + int(y)))
+        time.sleep(0.3)
+        display.xdotool("click", "1")
+        wait_for(lambda: (r := read_report(report)) and r["show_s"] == 12.0, what="12 s")
+        ui = press(display, report, "k", dirty=True)
+        assert 12.0 in ui["show"]["camera_keys"]
+        display.xdotool("keydown", "ctrl")
+        for _ in range(3):
+            display.xdotool("click", "4")
+            time.sleep(0.1)
+        display.xdotool("keyup", "ctrl")
+        ui = wait_for(lambda: (r := read_report(report)) and r["timeline_axis"]["to_s"]
+                      - r["timeline_axis"]["from_s"] < 19.0 and r, what="the zoom")
+        a, b = ui["timeline_axis"]["from_s"], ui["timeline_axis"]["to_s"]
+        assert b - a == pytest.approx(20.0 * 0.8 ** 3, rel=1e-6)
+        assert a < 12.0 < b  # around the pointer (12 s)
+        click(display, origin, ui["rects"]["button:whole show"])
+        wait_for(lambda: (r := read_report(report)) and r["timeline_axis"]["from_s"] == 0.0
+                 and r["timeline_axis"]["to_s"] == 20.0, what="the whole show")
