@@ -40,9 +40,8 @@ def add_parser(sub: Any) -> None:
     )
     p.add_argument("scene", metavar="SCENE", help="the show's scene file (.toml)")
     p.add_argument("folder", metavar="FOLDER", help="the folder of frames")
-    p.add_argument("--frames", metavar="A:B[:STEP]", help="only frames A..B-1, every STEP-th "
-                   "with A:B:STEP (default: the "
-                   "whole timeline)")
+    p.add_argument("--frames", metavar="A:B[:STEP]", help="only frames A..B-1, every "
+                   "STEP-th with A:B:STEP (default: the whole timeline)")
     p.add_argument("--format", choices=("png", "jpg"), default="png",
                    help="the frames' image format (default png)")
     p.add_argument("--json", action="store_true", help="print the answer as JSON")

@@ -96,6 +96,13 @@ def _with_keys(tl: Timeline, keys: Sequence[CameraKey]) -> Timeline:
     return replace(tl, camera_keys=tuple(keys))
 
 
+def _without(tl: Timeline, field: str, i: int) -> Timeline:
+    """``tl`` with item ``i`` of its tuple ``field`` (camera_keys, fades, captions) taken
+    out; the caller has checked ``i``."""
+    items = getattr(tl, field)
+    return replace(tl, **{field: items[:i] + items[i + 1:]})
+
+
 def _key_index(tl: Timeline, i: int) -> CameraKey:
     if not 0 <= i < len(tl.camera_keys):
         raise _refuse("camera key", f"there is no camera key {i + 1} (the show has "
@@ -191,9 +198,7 @@ def add_camera_key(tl: Timeline, key: CameraKey) -> tuple[Timeline, int]:
 
 def delete_camera_key(tl: Timeline, i: int) -> Timeline:
     _key_index(tl, i)
-    keys = list(tl.camera_keys)
-    del keys[i]
-    return _with_keys(tl, keys)
+    return _without(tl, "camera_keys", i)
 
 
 def move_camera_key(tl: Timeline, i: int, at_s: float) -> Timeline:
@@ -339,9 +344,7 @@ def add_fade(scene: Scene, tl: Timeline, body: str, mark: str, at_s: Sequence[fl
 
 def delete_fade(tl: Timeline, i: int) -> Timeline:
     _fade_index(tl, i)
-    fades = list(tl.fades)
-    del fades[i]
-    return replace(tl, fades=tuple(fades))
+    return _without(tl, "fades", i)
 
 
 def set_fade(scene: Scene, tl: Timeline, i: int, *, body: str | None = None,
@@ -464,9 +467,7 @@ def add_caption(tl: Timeline, text: str, start_s: float, end_s: float,
 
 def delete_caption(tl: Timeline, i: int) -> Timeline:
     _caption_index(tl, i)
-    caps = list(tl.captions)
-    del caps[i]
-    return replace(tl, captions=tuple(caps))
+    return _without(tl, "captions", i)
 
 
 def _with_caption(tl: Timeline, i: int, c: Caption) -> Timeline:

@@ -343,11 +343,10 @@ class ViewerWindow:
             self._pending = SETTLE_FRAMES
         if s.fit_wanted:
             s.fit_wanted = False
-            size = self.window.get_framebuffer_size()
             frame = self.show_frame()
             _, _, fw, fh = frame or self._scene_area()
-            if frame is not None:  # the camera frames the show frame, not the window
-                size = (fw, fh)
+            # The camera spans the show frame when there is one, else the whole window.
+            size = (fw, fh) if frame else self.window.get_framebuffer_size()
             s.camera = fit(s.camera, self.editor.scene, s.clock.t_s, size, (fw, fh))
         self._view_state = self._view_settings()
 

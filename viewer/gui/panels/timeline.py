@@ -38,14 +38,14 @@ from .widgets import AMBER, DIM, px
 if TYPE_CHECKING:
     from . import Panels
 
-#: Height of one track, px at UI scale 1.
+#: Height of one track, and width of the column of track names, px at UI scale 1.
 TRACK_H = 20.0
+LABEL_COL = 150.0
 #: The shortest part of a show the axis zooms to (s), and the zoom per wheel notch.
 MIN_SPAN_S = 0.5
 ZOOM_PER_NOTCH = 0.8
 #: The snapping grid keeps at least this many px between its steps (UI scale 1).
 SNAP_PX = 6.0
-LABEL_COL = 150.0
 #: How near the pointer must be to a key to pick it, px at UI scale 1.
 PICK_PX = 7.0
 CAMERA_COLOR = (0.55, 0.78, 1.0, 1.0)
