@@ -289,11 +289,15 @@ class ImmersiveRenderer:
         size = spec.face_px()
         atlas, atlas_fbo = self._atlas(size)
         face_text = []
+        names = [n for n in FACE_NAMES if n in views]
+        geoms = dict(zip(names, self.renderer.geometries(scene, t_s, [views[n] for n in names],
+                                                          transparent, place=False),
+                         strict=True))
         for i, name in enumerate(FACE_NAMES):
             view = views.get(name)
             if view is None:
                 continue
-            geom = self.renderer.geometry(scene, t_s, view, transparent, place=False)
+            geom = geoms[name]
             face_text.append((view, geom.label_requests, geom.label_obstacles))
             geom.grid = emphasised_grid(geom.grid)
             self.renderer.draw(geom, atlas_fbo, top_row_first=False,
