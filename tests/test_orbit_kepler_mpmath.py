@@ -105,6 +105,18 @@ def test_eccentric_anomaly_matches_mpmath_on_a_grid(e: float) -> None:
     assert np.all(np.abs(E[nonzero] - ref[nonzero]) <= 8 * EPS * np.abs(ref[nonzero]))
 
 
+def test_eccentric_anomaly_matches_mpmath_next_to_apoapsis() -> None:
+    # M at pi and a few ulps below it: E is pi, where the solver's tan(E/2) (for the
+    # slope 1 - e cos E) is at its pole. Both signs, e from 0 to 1 - 1e-12.
+    top = np.nextafter(np.pi, 0.0) - np.arange(6) * np.spacing(np.pi)
+    M = np.concatenate([[np.pi, -np.pi], top, -top, np.pi - 10.0 ** -np.arange(3, 16)])
+    for e in [0.0, 0.3, 0.9, 0.999, 1 - 1e-12]:
+        E = eccentric_anomaly(M, e)
+        ref = np.array([float(_mp_eccentric(m, e)) for m in M])
+        assert np.max(np.abs(E - ref)) <= E_VS_MPMATH, e
+        assert np.max(kepler_residual(E, M, e)) <= CONTRACT_RESIDUAL, e
+
+
 def test_eccentric_anomaly_matches_mpmath_for_random_anomalies() -> None:
     # Random (M, e) in [-pi, pi) x [0, 1), with a third of e crowded towards 1.
     M = rng.uniform(-np.pi, np.pi, 600)
