@@ -126,6 +126,23 @@ def _hyperbolic_mean(F: Floats, e: Floats) -> Floats:
     return out.reshape(np.shape(F))
 
 
+#: Grid points per radian of the start of Markley's correction (``_markley``): a power of
+#: two, so a grid point is exact in float64; half a step (3e-5 rad) is small beside the
+#: starter's own error (up to 1e-3 rad).
+_GRID_PER_RAD = 2.0**14
+
+
+@functools.lru_cache(maxsize=1)
+def _sin_cos_grid() -> tuple[Floats, Floats]:
+    """np.sin and np.cos on the grid of ``_GRID_PER_RAD`` over [0, 4] rad (Markley's E for
+    M in [0, pi] lies in [0, pi]), read-only; 65,537 values each, built once (2 ms)."""
+    x = np.arange(int(4.0 * _GRID_PER_RAD) + 1) / _GRID_PER_RAD
+    tables = np.sin(x), np.cos(x)
+    for table in tables:
+        table.flags.writeable = False
+    return tables
+
+
 def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
     """E for M in [0, pi] by Markley's non-iterative method, and the last correction.
 
@@ -172,32 +189,44 @@ def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
     E /= den
     E += M
     E /= d
-    # Fifth-order correction (Markley eq. 29-31); f2 = e sin E, f3 = e cos E. f0 needs
-    # sin E to the last bit (its error goes straight into E), so that is np.sin; f1 and
-    # f3 only scale the correction, so they come from h = sin^2(E/2) = t^2 / (1 + t^2),
-    # t = tan(E/2): numpy's tan is vectorised where its float64 cos is not (about 2 ns a
-    # value against 13 here), and f1 = (1 - e) + 2 e h is the cancellation-free form for
-    # every E. Where E - e sin E would cancel (e -> 1, E -> 0), f0 is redone in the
-    # cancellation-free form of ``_elliptic_mean`` with the same sin E.
-    sin_E = np.sin(E)
-    f2 = np.multiply(sin_E, e, out=d)
-    h = np.multiply(E, 0.5, out=ad)
-    np.tan(h, out=h)
-    h *= h
-    h /= np.add(h, 1.0, out=M2)
-    h *= e
-    h *= 2.0  # now 2 e sin^2(E/2) = e (1 - cos E)
-    f1 = np.add(one_m_e, h, out=M2)
-    f3 = np.subtract(e, h, out=h)
-    f0 = E - f2
+    # Fifth-order correction (Markley eq. 29-31) from E0, the starter rounded to the grid
+    # of ``_sin_cos_grid``: sin E0 and cos E0 are then two table reads holding np.sin and
+    # np.cos of E0 (so f0 = E0 - e sin E0 - M is as exact as before), where computing
+    # them took 9-13 ns a value each (numpy's float64 sin and cos are not vectorised).
+    # Rounding moves the start by at most half a grid step, far inside the correction's
+    # reach wherever the slope 1 - e cos E is not small. Where it is (e -> 1, E -> 0:
+    # the cancellation-free forms are needed), the start stays E and f0 and f1 are redone
+    # in cancellation-free forms, f1 = (1 - e) + 2 e sin^2(E/2).
+    sin_grid, cos_grid = _sin_cos_grid()
+    E0 = np.multiply(E, _GRID_PER_RAD)
+    np.rint(E0, out=E0)
+    np.clip(E0, 0.0, sin_grid.size - 1, out=E0)
+    at = E0.astype(np.intp)
+    E0 *= 1.0 / _GRID_PER_RAD  # an integer times a power of two: exact
+    f2 = np.take(sin_grid, at, out=d)
+    f2 *= e
+    f3 = np.take(cos_grid, at, out=ad)
+    f3 *= e
+    f0 = E0 - f2
     f0 -= M
+    f1 = np.subtract(1.0, f3, out=M2)
     t = np.multiply(E, E, out=r)
     t /= 6.0
     t += one_m_e
     near = np.flatnonzero(t < 0.25)
     if near.size:
-        En, sn = E[near], sin_E[near]
-        f0[near] = ((1.0 - e[near]) * sn + _odd_tail(En, -1.0, sn)) - M[near]
+        En, en = E[near], e[near]
+        sn = np.sin(En)
+        E0[near] = En
+        f2[near] = en * sn
+        f0[near] = ((1.0 - en) * sn + _odd_tail(En, -1.0, sn)) - M[near]
+        # 2 e sin^2(E/2) from tan(E/2), vectorised in numpy where cos is not.
+        h = np.tan(0.5 * En)
+        h *= h
+        h /= h + 1.0
+        h *= 2.0 * en
+        f1[near] = (1.0 - en) + h
+        f3[near] = en - h
     neg_f0 = np.negative(f0, out=f0)
     half_f2 = np.multiply(f2, 0.5, out=q)
     x = np.multiply(neg_f0, -0.5, out=w)  # d3 = -f0 / (f1 - 0.5 f0 f2 / f1)
@@ -219,8 +248,8 @@ def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
     z *= d4
     z += f1
     d5 = np.divide(neg_f0, z, out=z)
-    E += d5
-    return E, d5
+    E0 += d5
+    return E0, d5
 
 
 #: Elements per block for large arrays: the solver's dozens of temporaries (32 kB each)
