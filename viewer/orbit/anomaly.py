@@ -19,7 +19,7 @@ from __future__ import annotations
 import contextvars
 import functools
 import os
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
 from typing import Any, TypeVar
 
 import numpy as np
@@ -143,37 +143,51 @@ def _sin_cos_grid() -> tuple[Floats, Floats]:
     return tables
 
 
-def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
+def _workspace(n: int) -> tuple[Floats, NDArray[np.intp]]:
+    """Work arrays for ``_elliptic`` on up to ``n`` values: 11 rows of floats, one of ints."""
+    return np.empty((11, n)), np.empty(n, dtype=np.intp)
+
+
+def _markley(M: Floats, e: Floats,
+             work: tuple[Floats, NDArray[np.intp]] | None = None) -> tuple[Floats, Floats]:
     """E for M in [0, pi] by Markley's non-iterative method, and the last correction.
 
     F. L. Markley, "Kepler equation solver", Celestial Mechanics and Dynamical Astronomy
     63 (1995) 101-111: a Pade-based cubic starter and one fifth-order correction
     (equations recalled from the paper, "from memory"; the tests check the result against
-    mpmath at 50 digits, so a slip here cannot pass unseen).
+    mpmath at 50 digits, so a slip here cannot pass unseen). M, e: 1-d arrays of one
+    length, never written; ``work`` (from ``_workspace``, rows 0-8 used) holds every
+    intermediate, so a block allocates nothing but the few values near periapsis. The
+    two arrays returned are rows of ``work``.
     """
-    # Written with in-place operations on a few work arrays (the same operations in the
-    # same order as the plain formulas, so the same bits; about a third faster on large
-    # blocks). M and e are never written. M, e: 1-d arrays of one length.
+    # In-place operations on the rows of ``work``: the same operations in the same order
+    # as the plain formulas, so the same bits, with no temporaries to allocate (a
+    # temporary of 32k values or more is mapped afresh by malloc and faulted in page by
+    # page; with threads the allocations also contend).
+    n = M.size
+    rows, at = work if work is not None else _workspace(n)
+    W = rows[:, :n]
+    at = at[:n]
     pi2 = np.pi * np.pi
-    one_m_e = 1.0 - e
-    alpha = np.pi - M  # alpha = (3 pi^2 + 1.6 pi (pi - M) / (1 + e)) / (pi^2 - 6)
+    one_m_e = np.subtract(1.0, e, out=W[0])
+    alpha = np.subtract(np.pi, M, out=W[1])  # (3 pi^2 + 1.6 pi (pi - M) / (1 + e)) / (pi^2 - 6)
     alpha *= 1.6 * np.pi
-    u = 1.0 + e
+    u = np.add(e, 1.0, out=W[2])
     alpha /= u
     alpha += 3.0 * pi2
     alpha /= pi2 - 6.0
-    d = 3.0 * one_m_e  # d = 3 (1 - e) + alpha e
+    d = np.multiply(one_m_e, 3.0, out=W[3])  # d = 3 (1 - e) + alpha e
     d += np.multiply(alpha, e, out=u)
-    M2 = M * M
+    M2 = np.multiply(M, M, out=W[4])
     ad = np.multiply(alpha, d, out=alpha)
-    q = 2.0 * ad  # q = 2 alpha d (1 - e) - M^2
+    q = np.multiply(ad, 2.0, out=W[5])  # q = 2 alpha d (1 - e) - M^2
     q *= one_m_e
     q -= M2
-    r = 3.0 * ad  # r = 3 alpha d (d - 1 + e) M + M^3
+    r = np.multiply(ad, 3.0, out=W[6])  # r = 3 alpha d (d - 1 + e) M + M^3
     r *= np.subtract(d, one_m_e, out=u)
     r *= M
     r += np.multiply(M2, M, out=u)
-    w = q * q  # w = cbrt(|r| + sqrt(q^3 + r^2))^2
+    w = np.multiply(q, q, out=W[7])  # w = cbrt(|r| + sqrt(q^3 + r^2))^2
     w *= q
     w += np.multiply(r, r, out=u)
     np.sqrt(w, out=w)
@@ -184,7 +198,7 @@ def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
     den = np.multiply(w, w, out=u)  # E = (2 r w / (w^2 + w q + q^2) + M) / d
     den += np.multiply(w, q, out=M2)
     den += np.multiply(q, q, out=M2)
-    E = 2.0 * r
+    E = np.multiply(r, 2.0, out=W[8])
     E *= w
     E /= den
     E += M
@@ -198,19 +212,19 @@ def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
     # the cancellation-free forms are needed), the start stays E and f0 and f1 are redone
     # in cancellation-free forms, f1 = (1 - e) + 2 e sin^2(E/2).
     sin_grid, cos_grid = _sin_cos_grid()
-    E0 = np.multiply(E, _GRID_PER_RAD)
+    E0 = np.multiply(E, _GRID_PER_RAD, out=W[3])
     np.rint(E0, out=E0)
     np.clip(E0, 0.0, sin_grid.size - 1, out=E0)
-    at = E0.astype(np.intp)
+    np.copyto(at, E0, casting="unsafe")  # whole numbers: the cast is exact
     E0 *= 1.0 / _GRID_PER_RAD  # an integer times a power of two: exact
-    f2 = np.take(sin_grid, at, out=d)
+    f2 = np.take(sin_grid, at, out=W[1])
     f2 *= e
-    f3 = np.take(cos_grid, at, out=ad)
+    f3 = np.take(cos_grid, at, out=W[2])
     f3 *= e
-    f0 = E0 - f2
+    f0 = np.subtract(E0, f2, out=W[4])
     f0 -= M
-    f1 = np.subtract(1.0, f3, out=M2)
-    t = np.multiply(E, E, out=r)
+    f1 = np.subtract(1.0, f3, out=W[5])
+    t = np.multiply(E, E, out=W[6])
     t /= 6.0
     t += one_m_e
     near = np.flatnonzero(t < 0.25)
@@ -228,13 +242,13 @@ def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
         f1[near] = (1.0 - en) + h
         f3[near] = en - h
     neg_f0 = np.negative(f0, out=f0)
-    half_f2 = np.multiply(f2, 0.5, out=q)
-    x = np.multiply(neg_f0, -0.5, out=w)  # d3 = -f0 / (f1 - 0.5 f0 f2 / f1)
+    half_f2 = np.multiply(f2, 0.5, out=W[7])
+    x = np.multiply(neg_f0, -0.5, out=W[6])  # d3 = -f0 / (f1 - 0.5 f0 f2 / f1)
     x *= f2
     x /= f1
     np.subtract(f1, x, out=x)
     d3 = np.divide(neg_f0, x, out=x)
-    y = np.multiply(d3, f3, out=u)  # d4 = -f0 / (f1 + d3 (0.5 f2 + d3 f3 / 6))
+    y = np.multiply(d3, f3, out=W[0])  # d4 = -f0 / (f1 + d3 (0.5 f2 + d3 f3 / 6))
     y /= 6.0
     y += half_f2
     y *= d3
@@ -252,12 +266,12 @@ def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
     return E0, d5
 
 
-#: Elements per block for large arrays: the solver's dozens of temporaries (32 kB each)
-#: then stay in the CPU cache and are reused by the allocator instead of being mapped
-#: afresh (blocks of 32k values, 256 kB temporaries, spent half their time in page
-#: faults; docs/performance.md), and blocks are shared among the cores (numpy's ufuncs
-#: release the GIL).
-_BLOCK = 32_768
+#: Elements per block for large arrays: a block's work arrays (``_workspace``, 11 rows
+#: of 512 kB) stay in the core's 2 MB cache share, and each of the block's ufunc calls is
+#: long enough (20-40 us) that two threads gain from numpy releasing the GIL; with 32k
+#: blocks the calls were so short that handing the GIL between two threads cost more
+#: than the second core gave (docs/performance.md, "Kepler solve, session 6").
+_BLOCK = 65_536
 
 
 def _cores() -> int:
@@ -276,48 +290,66 @@ def _cores() -> int:
 _GUARD_STEP = 1e-3
 
 
-def _elliptic(M: Floats, e: Floats, tol: float) -> Floats:
-    """E for any M (same shape as e): reduce to [-pi, pi], Markley on |M|, the guard."""
-    turns = np.rint(M * (1.0 / TWO_PI))
-    Mr = M - turns * TWO_PI  # [-pi, pi], as accurate as float64 allows
-    Ma = np.abs(Mr)
-    E, last = _markley(Ma, e)
-    check = np.flatnonzero(np.abs(last) > _GUARD_STEP)
+def _elliptic(M: Floats, e: Floats, tol: float, out: Floats | None = None,
+              work: tuple[Floats, NDArray[np.intp]] | None = None) -> Floats:
+    """E for any M (1-d, same length as e): reduce to [-pi, pi], Markley on |M|, the guard.
+
+    Written into ``out`` if given; ``work`` as for ``_markley`` (rows 0-10 used).
+    """
+    n = M.size
+    work = work if work is not None else _workspace(n)
+    W = work[0][:, :n]
+    turns = np.multiply(M, 1.0 / TWO_PI, out=W[9])
+    np.rint(turns, out=turns)
+    Mr = np.multiply(turns, TWO_PI, out=W[9])
+    np.subtract(M, Mr, out=Mr)  # [-pi, pi], as accurate as float64 allows
+    Ma = np.abs(Mr, out=W[10])
+    E, last = _markley(Ma, e, work)
+    check = np.flatnonzero(np.abs(last, out=last) > _GUARD_STEP)
     if check.size:
-        Ec, Mc, ec = E.flat[check], Ma.flat[check], e.flat[check]
+        Ec, Mc, ec = E[check], Ma[check], e[check]
         for _ in range(8):
             f = _elliptic_mean(Ec, ec) - Mc
             if not np.any(np.abs(f) > tol):
                 break
             Ec = Ec - f / ((1.0 - ec) + 2.0 * ec * np.sin(0.5 * Ec) ** 2)
-        E.flat[check] = Ec
+        E[check] = Ec
     # E in the turn of M: M + (E - |Mr|) * sign keeps the small difference exact.
-    return M + np.copysign(E - Ma, Mr)
+    E -= Ma
+    np.copysign(E, Mr, out=E)
+    return np.add(M, E, out=out)
 
 
 def _elliptic_blocks(M: Floats, e: Floats, tol: float, threads: int | None = None) -> Floats:
     """``_elliptic`` over blocks of a large array, on ``threads`` (default one per core).
 
-    Each block is solved on its own (the guard's Newton steps run per block). The
-    threads run in a copy of the caller's context, so its ``np.errstate`` holds there.
+    Each block is solved on its own (the guard's Newton steps run per block), into the
+    result, with the work arrays of its thread. The threads take the next block as they
+    finish one (a core that is busy elsewhere then takes fewer), and run in a copy of the
+    caller's context, so its ``np.errstate`` holds there.
     """
     Mf = np.ascontiguousarray(M).reshape(-1)
     ef = np.ascontiguousarray(e).reshape(-1)
     E = np.empty_like(Mf)
     starts = range(0, Mf.size, _BLOCK)
+    _sin_cos_grid()  # built once here, not by two threads at once
 
-    def solve(i: int) -> None:
-        E[i:i + _BLOCK] = _elliptic(Mf[i:i + _BLOCK], ef[i:i + _BLOCK], tol)
+    def solve(blocks: Iterator[int]) -> None:
+        work = _workspace(_BLOCK)
+        for i in blocks:  # shared among the threads: each next() holds the GIL
+            j = i + _BLOCK
+            _elliptic(Mf[i:j], ef[i:j], tol, out=E[i:j], work=work)
 
     threads = min(threads or _cores(), len(starts))
     if threads <= 1:
-        for i in starts:
-            solve(i)
+        solve(iter(starts))
     else:
         import concurrent.futures
 
+        blocks = iter(starts)
         with concurrent.futures.ThreadPoolExecutor(max_workers=threads) as pool:
-            runs = [pool.submit(contextvars.copy_context().run, solve, i) for i in starts]
+            runs = [pool.submit(contextvars.copy_context().run, solve, blocks)
+                    for _ in range(threads)]
             for run in runs:
                 run.result()
     return E.reshape(M.shape)
