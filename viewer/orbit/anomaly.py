@@ -217,9 +217,9 @@ def _markley(M: Floats, e: Floats,
     np.clip(E0, 0.0, sin_grid.size - 1, out=E0)
     np.copyto(at, E0, casting="unsafe")  # whole numbers: the cast is exact
     E0 *= 1.0 / _GRID_PER_RAD  # an integer times a power of two: exact
-    f2 = np.take(sin_grid, at, out=W[1])
+    f2 = np.take(sin_grid, at, out=W[1], mode="clip")  # "clip": in range, so no checks
     f2 *= e
-    f3 = np.take(cos_grid, at, out=W[2])
+    f3 = np.take(cos_grid, at, out=W[2], mode="clip")
     f3 *= e
     f0 = np.subtract(E0, f2, out=W[4])
     f0 -= M
@@ -266,11 +266,11 @@ def _markley(M: Floats, e: Floats,
     return E0, d5
 
 
-#: Elements per block for large arrays: a block's work arrays (``_workspace``, 11 rows
-#: of 512 kB) stay in the core's 2 MB cache share, and each of the block's ufunc calls is
-#: long enough (20-40 us) that two threads gain from numpy releasing the GIL; with 32k
-#: blocks the calls were so short that handing the GIL between two threads cost more
-#: than the second core gave (docs/performance.md, "Kepler solve, session 6").
+#: Elements per block for large arrays. A block's ufunc calls must be long enough (about
+#: 20 us each at 65,536 values) that two threads gain from numpy releasing the GIL: with
+#: 32k blocks, handing the GIL between the threads cost about what the second core gave.
+#: Larger blocks spill the work arrays (``_workspace``, 11 rows) out of the core's cache
+#: (docs/performance.md, "Kepler solve, session 6").
 _BLOCK = 65_536
 
 
