@@ -128,7 +128,8 @@ def _hyperbolic_mean(F: Floats, e: Floats) -> Floats:
 
 #: Grid points per radian of the start of Markley's correction (``_markley``): a power of
 #: two, so a grid point is exact in float64; half a step (3e-5 rad) is small beside the
-#: starter's own error (up to 1e-3 rad).
+#: starter's own error (its correction was at most 4.4e-4 rad on 2.1e6 random values, and
+#: the guard takes over above 1e-3).
 _GRID_PER_RAD = 2.0**14
 
 
