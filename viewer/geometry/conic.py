@@ -266,16 +266,15 @@ def tessellate_views(batches: Sequence[CurveBatch], views: Sequence[View],
     c0, c1, c2, P, Q, u0, u1 = (column(k) for k in ("c0", "c1", "c2", "P", "Q", "u0", "u1"))
     tol = column("tol_px") * _SAFETY
 
-    def cam_at(cid: Ints, u: Floats) -> Floats:
+    def cam_at(cid: Ints, u: Floats, rows: list[Ints]) -> Floats:
+        """Camera coordinates of the curves ``cid`` at ``u``; ``rows``: each view's rows."""
         world = _eval(kind[cid], c0[cid], c1[cid], c2[cid], P[cid], Q[cid], u)
         if len(views) == 1:
             return view.to_camera(world)
         cam = np.empty_like(world)
-        face = face_of[cid]
-        for f, v in enumerate(views):
-            rows = np.flatnonzero(face == f)
-            if rows.size:
-                cam[rows] = v.to_camera(world[rows])
+        for v, mine in zip(views, rows, strict=True):
+            if mine.size:
+                cam[mine] = v.to_camera(world[mine])
         return cam
 
     k = np.arange(_START_INTERVALS)
@@ -289,12 +288,14 @@ def tessellate_views(batches: Sequence[CurveBatch], views: Sequence[View],
     done_a: list[Floats] = []
     for _level in range(_MAX_LEVELS):
         m = 0.5 * (a + b)
-        ca, cb, cm = cam_at(cid, a), cam_at(cid, b), cam_at(cid, m)
+        face = face_of[cid]
+        rows = [np.flatnonzero(face == f) for f in range(len(views))] if len(views) > 1 \
+            else []
+        ca, cb, cm = cam_at(cid, a, rows), cam_at(cid, b, rows), cam_at(cid, m, rows)
         vis = _visible(view, ca, cb, cm, margin_px)
         dev, front = _deviation_px(view, ca, cb, cm)
         split = vis & (~front | (dev > tol[cid]))
         # Each view on its own stops splitting where it would hold too many intervals.
-        face = face_of[cid]
         over = (np.bincount(face, minlength=len(views))
                 + np.bincount(face[split], minlength=len(views))) > _MAX_INTERVALS
         if np.any(over):
