@@ -258,7 +258,18 @@ class StaticCache:
         kept = entry.get("state")
         if kept is not None and kept[0] == t_s:  # type: ignore[index]
             return kept[1], kept[2]  # type: ignore[index]
-        r, v = _state_at(body, t_s)
+        if body.track is None:
+            # As Body.elements_at and Elements.after do, term for term (the same bits),
+            # with the mean anomaly at epoch and the mean motion kept: they do not change.
+            if "mean" not in entry:
+                el = body.elements
+                entry["mean"] = (np.asarray(el.mean_anomaly), np.asarray(el.mean_motion))
+            mean: tuple[Floats, Floats] = entry["mean"]  # type: ignore[assignment]
+            M = mean[0] + mean[1] * np.asarray(t_s - body.epoch_offset_s)
+            r, v = state_from_elements(body.elements.at_mean_anomaly(M))
+            r, v = np.asarray(r, dtype=np.float64), np.asarray(v, dtype=np.float64)
+        else:
+            r, v = _state_at(body, t_s)
         entry["state"] = (t_s, r, v)
         return r, v
 
