@@ -150,13 +150,14 @@ class Immersive:
                                  f"{have / 2**30:.1f} GiB is free; at most about {w}x{side} "
                                  "fits here now")
 
-    def directions(self, n: int = 128) -> NDArray[np.float64]:
+    def directions(self, n: int = 128, reach: float = 1.01) -> NDArray[np.float64]:
         """A grid of this output's camera-basis directions (to find the needed faces),
-        reaching 1 % past the dome's edge so sub-pixel samples there are covered, and
-        the edge itself sampled finely: a face seen only in a sliver of the dome must
-        cross its edge (a face spans 90 deg, far more than the grid's step)."""
+        reaching ``reach`` times the dome's field (1 % past its edge, so sub-pixel
+        samples there are covered), and the edge itself sampled finely: a face seen only
+        in a sliver of the dome must cross its edge (a face spans 90 deg, far more than
+        the grid's step)."""
         if self.kind == "dome":
-            fov = min(360.0, self.fov_deg * 1.01)
+            fov = min(360.0, self.fov_deg * reach)
             d, inside = dome_directions(n, fov, self.tilt_deg)
             phi = np.linspace(0.0, 2.0 * np.pi, 8 * n, endpoint=False)
             theta = np.radians(fov) / 2.0
@@ -180,9 +181,9 @@ def preview_size(kind: str, screen_px: tuple[int, int]) -> tuple[int, int]:
 
 
 @functools.lru_cache(maxsize=16)
-def needed_faces(spec: Immersive) -> tuple[str, ...]:
+def needed_faces(spec: Immersive, reach: float = 1.01) -> tuple[str, ...]:
     """The faces that some output direction falls on (others are not drawn)."""
-    d = spec.directions()
+    d = spec.directions(reach=reach)
     fwd = np.array([CUBE_FACES[k][0] for k in FACE_NAMES])
     hit = set(np.unique(np.argmax(d @ fwd.T, axis=1)).tolist())
     return tuple(name for i, name in enumerate(FACE_NAMES) if i in hit)
@@ -199,15 +200,15 @@ def style_height(spec: Immersive, dome: DomeSettings) -> float:
     return 1080.0 * face_px / 2.0
 
 
-def face_views(base: View, spec: Immersive, dome: DomeSettings | None = None
-               ) -> dict[str, View]:
+def face_views(base: View, spec: Immersive, dome: DomeSettings | None = None,
+               reach: float = 1.01) -> dict[str, View]:
     """One perspective View per needed face, from the base view's eye."""
     r, u, f = base.basis[0], base.basis[1], -base.basis[2]
     eye = base.eye_m
     size = spec.face_px()
     style = style_height(spec, dome or DomeSettings())
     views = {}
-    for name in needed_faces(spec):
+    for name in needed_faces(spec, reach):
         (fx, fy, fz), (ux, uy, uz) = CUBE_FACES[name]
         F = fx * r + fy * u + fz * f
         U = ux * r + uy * u + uz * f
@@ -217,6 +218,30 @@ def face_views(base: View, spec: Immersive, dome: DomeSettings | None = None
             origin_m=eye + base.distance_m * F, basis=np.vstack([R, U, -F]),
             fov_rad=math.pi / 2, style_height_px=style)  # type: ignore[arg-type]
     return views
+
+
+#: The turn of the zenith a draft dome is drawn with: the dome's axis then lies on the
+#: edge between the front and up faces, and a dome of up to 180 deg needs four faces.
+DRAFT_TILT_DEG = -45.0
+
+
+def draft_rig(base: View, spec: Immersive) -> tuple[View, Immersive]:
+    """The same dome from the same eye, through a cube turned about the image's right
+    axis so the dome's axis lies on a face edge (``DRAFT_TILT_DEG``): four faces instead
+    of five or six for a dome of up to 180 deg. A draft, for the window while the
+    picture moves: the faces sample the sky at other points than the master's, so its
+    pixels differ slightly from the master's (never its geometry)."""
+    if spec.kind != "dome" or spec.fov_deg > 180.0:
+        return base, spec
+    turn = math.radians(spec.tilt_deg - DRAFT_TILT_DEG)
+    r, u, d = base.basis
+    c, s = math.cos(turn), math.sin(turn)
+    # A direction (x, y, z) in (r, u, -d) turned by ``tilt`` lands on the same world
+    # direction when the basis turns the other way about r (projection.tilt).
+    u2, d2 = c * u - s * d, c * d + s * u
+    eye = base.eye_m
+    rig = replace(base, basis=np.vstack([r, u2, d2]), origin_m=eye - base.distance_m * d2)
+    return rig, replace(spec, tilt_deg=DRAFT_TILT_DEG)
 
 
 #: The reference-plane grid's opacity on dome masters and panoramas, times the flat one's:
@@ -274,16 +299,22 @@ class ImmersiveRenderer:
         return self.renderer.read(fbo, spec.size_px, transparent, out)
 
     def draw(self, scene: Scene, t_s: float, spec: Immersive, camera: Camera | None = None,
-             transparent: bool = False, overlay: Sequence[OverlayText] = ()) -> Any:
+             transparent: bool = False, overlay: Sequence[OverlayText] = (),
+             draft: bool = False) -> Any:
         """Draw what ``render`` returns into the renderer's offscreen framebuffer of the
         output's size (top row first) and return that framebuffer (the window's preview
-        shows it without reading it back)."""
+        shows it without reading it back). ``draft``: through ``draft_rig``'s fewer
+        faces (the window while the picture moves)."""
         cam = scene.camera if camera is None else camera
         spec = spec.framed(cam)
-        omap = spec.output_map()
         base = view_for(scene, t_s, spec.size_px,
                         replace(cam, distance_m=cam.immersive_distance_m))
-        views = face_views(base, spec, scene.dome)
+        reach = 1.01
+        if draft:
+            base, spec = draft_rig(base, spec)
+            reach = 0.999  # the shader samples inside the dome's circle only
+        omap = spec.output_map()
+        views = face_views(base, spec, scene.dome, reach)
         prog, vao = self._program(spec.grid)
         size = spec.face_px()
         atlas, atlas_fbo = self._atlas(size)

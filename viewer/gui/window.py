@@ -449,8 +449,9 @@ class ViewerWindow:
     def _draw_immersive(self, fw: int, fh: int, moving: bool = False) -> None:
         """The dome master or panorama of the scene as the export makes it (the show's
         camera, fades, captions and clock), at most 1024 px high, centred in the picture
-        area between the panels. While the picture ``moving``, one sample per pixel in
-        place of the export's 2 x 2 (a draft, twice as fast); still, exactly the export."""
+        area between the panels. While the picture ``moving``, a draft: one sample per
+        pixel in place of the export's 2 x 2, and a dome through four cube faces
+        (immersive.draft_rig); still, exactly the export."""
         from ..export.immersive import Immersive, ImmersiveRenderer, preview_size
 
         if self._immersive is None:
@@ -461,7 +462,8 @@ class ViewerWindow:
                          grid=1 if moving or size[1] >= 4096 else 2)
         # As ShowFrames.at makes the exported frame, without reading it back.
         shown, overlay = self._show_picture()
-        fbo = self._immersive.draw(shown, self.session.clock.t_s, spec, overlay=overlay)
+        fbo = self._immersive.draw(shown, self.session.clock.t_s, spec, overlay=overlay,
+                                   draft=moving)
         self.ctx.screen.use()
         self.ctx.clear(0.0, 0.0, 0.0, 1.0)
         # The master is drawn top row first: blit it flipped, centred in the area (GL
