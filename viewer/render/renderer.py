@@ -32,6 +32,7 @@ from ..geometry.frame import MARKER_FLOATS, FrameGeometry, StaticCache, build_fr
 from ..geometry.labels import PlacedLabel
 from ..geometry.population import (
     PopulationConstants,
+    SplatScratch,
     composite_population,
     mean_anomaly_at,
     population_constants,
@@ -91,6 +92,9 @@ class _PopulationGPU:
     anomaly: Any
     pixels: Any
     vao: Any
+    mean64: NDArray[np.float64]     # this frame's mean anomalies, float64 then float32
+    mean32: NDArray[np.float32]
+    px_seen: NDArray[np.float32]    # the stage's output, read back: (N, 3)
 
 
 class Renderer:
@@ -275,8 +279,7 @@ class Renderer:
         (both are wholly rewritten before use, so no frame sees another's values)."""
         bufs = self._backdrop_np.get((w, h))
         if bufs is None:
-            bufs = (np.empty((h, w, 4), dtype=np.uint8),
-                    np.zeros(w * h + w + 2, dtype=np.float32))
+            bufs = (np.empty((h, w, 4), dtype=np.uint8), SplatScratch())
             self._backdrop_np = {(w, h): bufs}
         return bufs
 
@@ -284,6 +287,7 @@ class Renderer:
         """(N, 3) float32 rows (x px, y px, seen) of a population at the frame's time.
 
         Runs the transform-feedback stage; a framebuffer of this context must be bound.
+        The rows are the renderer's own buffer, valid until the next call.
         """
         gpu = self._populations.get(id(pop))
         if gpu is None or gpu.population is not pop:
@@ -294,7 +298,8 @@ class Renderer:
         c = gpu.constants
         if c.count == 0:
             return None
-        gpu.anomaly.write(mean_anomaly_at(c, geom.t_s).astype(np.float32).tobytes())
+        gpu.mean32[:] = mean_anomaly_at(c, geom.t_s, out=gpu.mean64)
+        gpu.anomaly.write(gpu.mean32)
         v = geom.view
         p = self.p_pop
         p["u_size_px"].value = (float(v.size_px[0]), float(v.size_px[1]))
@@ -308,7 +313,8 @@ class Renderer:
         p["u_distance_m"].value = float(v.distance_m)
         p["u_near_m"].value = float(v.near_m)
         gpu.vao.transform(gpu.pixels, self._mgl.POINTS, vertices=c.count)
-        return np.frombuffer(gpu.pixels.read(), dtype=np.float32).reshape(c.count, 3)
+        gpu.pixels.read_into(gpu.px_seen)
+        return gpu.px_seen
 
     def _upload_population(self, pop: Population) -> _PopulationGPU:
         c = population_constants(pop)
@@ -321,7 +327,9 @@ class Renderer:
         pbuf = self.ctx.buffer(reserve=max(12 * c.count, 12), dynamic=True)
         vao = self.ctx.vertex_array(self.p_pop, [(sbuf, "3f 3f 1f", "in_aP", "in_bQ", "in_e"),
                                                  (abuf, "1f", "in_M")])
-        return _PopulationGPU(pop, c, sbuf, abuf, pbuf, vao)
+        return _PopulationGPU(pop, c, sbuf, abuf, pbuf, vao, np.empty(c.count),
+                              np.empty(c.count, dtype=np.float32),
+                              np.empty((c.count, 3), dtype=np.float32))
 
     def _release_population(self, gpu: _PopulationGPU) -> None:
         gpu.vao.release()
