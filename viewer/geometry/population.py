@@ -14,7 +14,6 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Any
 
 import numpy as np
 from numpy.typing import NDArray
@@ -82,14 +81,14 @@ class SplatScratch:
     is wholly rewritten before it is read, so no frame sees another's values."""
 
     density: NDArray[np.float32] = field(default_factory=lambda: np.zeros(0, np.float32))
-    index: NDArray[np.int32] = field(default_factory=lambda: np.zeros(0, np.int32))
+    index: NDArray[np.intp] = field(default_factory=lambda: np.zeros(0, np.intp))
     weight: NDArray[np.float32] = field(default_factory=lambda: np.zeros(0, np.float32))
 
     def sized(self, pixels: int, corners: int) -> SplatScratch:
         if self.density.size < pixels:
             self.density = np.zeros(pixels, dtype=np.float32)
         if self.index.size < corners:
-            self.index = np.empty(corners, dtype=np.int32)
+            self.index = np.empty(corners, dtype=np.intp)
             self.weight = np.empty(corners, dtype=np.float32)
         return self
 
@@ -112,7 +111,7 @@ def splat_density(px_seen: NDArray[np.float32], size_px: tuple[int, int],
 
 
 def _splat(px_seen: NDArray[np.float32], size_px: tuple[int, int], scratch: SplatScratch
-           ) -> tuple[int, NDArray[np.float32], NDArray[np.int32]]:
+           ) -> tuple[int, NDArray[np.float32], NDArray[np.intp]]:
     """``splat_density``, and the index (from the first pixel) of every corner each
     point's weight went to: the pixels touched, some more than once."""
     w, h = size_px
@@ -123,21 +122,21 @@ def _splat(px_seen: NDArray[np.float32], size_px: tuple[int, int], scratch: Spla
     y = y[ok]
     m = x.size
     if m == 0:
-        return 0, np.zeros(0, dtype=np.float32), np.zeros(0, dtype=np.int32)
+        return 0, np.zeros(0, dtype=np.float32), np.zeros(0, dtype=np.intp)
     s = scratch.sized(w * h + w + 2, 4 * m)
-    ix = x.astype(np.int32)  # floor, as x >= 0
-    iy = y.astype(np.int32)
+    ix = x.astype(np.intp)  # floor, as x >= 0
+    iy = y.astype(np.intp)
     fx = x - ix.astype(np.float32)
     fy = y - iy.astype(np.float32)
     idx = s.index[:4 * m]
     base = idx[:m]
-    np.multiply(iy, np.int32(w), out=base)
+    np.multiply(iy, w, out=base)
     base += ix
     lo = int(base.min())
-    base -= np.int32(lo)
+    base -= lo
     span = int(base.max()) + w + 2
     for k, step in enumerate((1, w, w + 1), start=1):
-        np.add(base, np.int32(step), out=idx[k * m:(k + 1) * m])
+        np.add(base, step, out=idx[k * m:(k + 1) * m])
     gx = np.float32(1.0) - fx
     gy = np.float32(1.0) - fy
     wts = s.weight[:4 * m]
@@ -166,7 +165,7 @@ def composite_population(image: NDArray[np.uint8], px_seen: NDArray[np.float32],
     """
     h, w = image.shape[:2]
     lo, dens, corners = _splat(px_seen, (w, h), scratch or SplatScratch())
-    pix: NDArray[np.integer[Any]] = corners
+    pix: NDArray[np.intp] = corners
     if dens.size == 0:
         return
     if point_size_px >= 1.8:
