@@ -31,22 +31,24 @@ in vec4 in_bQz;
 in vec4 in_e;
 in vec4 in_M;
 
-// x, y (px), 1 if in front of the eye else 0: one row per body, in the bodies' order.
-out vec3 v_px_seen0;
-out vec3 v_px_seen1;
-out vec3 v_px_seen2;
-out vec3 v_px_seen3;
+// x, y (px) of bodies 4 k, 4 k + 1 and of 4 k + 2, 4 k + 3: one (x, y) row per body, in
+// the bodies' order. A body behind the eye gets BEHIND_EYE_PX for both, far off the image
+// (viewer.geometry.population.BEHIND_EYE_PX): two floats a body, not three, as
+// llvmpipe's feedback costs by the float written.
+out vec4 v_px01;
+out vec4 v_px23;
 
-vec3 project(vec3 r) {
+const float BEHIND_EYE_PX = -1.0e30;
+
+vec2 project(vec3 r) {
     vec3 rel = r - u_origin_m;
     vec3 cam = vec3(dot(u_right, rel), dot(u_up, rel), dot(u_back, rel));
     if (u_perspective == 1) {
         float depth = u_distance_m - cam.z;
-        float seen = depth > u_near_m ? 1.0 : 0.0;
         vec2 px = 0.5 * u_size_px + vec2(cam.x, -cam.y) * (u_focal_px / max(depth, u_near_m));
-        return vec3(px, seen);
+        return depth > u_near_m ? px : vec2(BEHIND_EYE_PX);
     }
-    return vec3(0.5 * u_size_px + vec2(cam.x, -cam.y) * u_px_per_m, 1.0);
+    return 0.5 * u_size_px + vec2(cam.x, -cam.y) * u_px_per_m;
 }
 
 void main() {
@@ -66,8 +68,6 @@ void main() {
     vec4 rx = c * in_aPx + s * in_bQx;
     vec4 ry = c * in_aPy + s * in_bQy;
     vec4 rz = c * in_aPz + s * in_bQz;
-    v_px_seen0 = project(vec3(rx[0], ry[0], rz[0]));
-    v_px_seen1 = project(vec3(rx[1], ry[1], rz[1]));
-    v_px_seen2 = project(vec3(rx[2], ry[2], rz[2]));
-    v_px_seen3 = project(vec3(rx[3], ry[3], rz[3]));
+    v_px01 = vec4(project(vec3(rx[0], ry[0], rz[0])), project(vec3(rx[1], ry[1], rz[1])));
+    v_px23 = vec4(project(vec3(rx[2], ry[2], rz[2])), project(vec3(rx[3], ry[3], rz[3])));
 }

@@ -23,6 +23,10 @@ from ..scene.model import Population
 
 Floats = NDArray[np.float64]
 
+#: Image coordinates (px) given to a body behind the eye (shaders/population.vert): off
+#: any image, so the splat leaves it out.
+BEHIND_EYE_PX = -1.0e30
+
 
 @dataclass(frozen=True)
 class PopulationConstants:
@@ -93,7 +97,7 @@ class SplatScratch:
         return self
 
 
-def splat_density(px_seen: NDArray[np.float32], size_px: tuple[int, int],
+def splat_density(px: NDArray[np.float32], size_px: tuple[int, int],
                   scratch: SplatScratch | None = None
                   ) -> tuple[int, NDArray[np.float32]]:
     """Density of the seen points over the image, as (first pixel index, values).
@@ -102,22 +106,22 @@ def splat_density(px_seen: NDArray[np.float32], size_px: tuple[int, int],
     dot moving by a fraction of a pixel moves its light smoothly (no crawling from pixel
     to pixel). Pixel k of the flat image (row-major, top row first) holds
     ``values[k - first]``; the values span only the rows the points reach.
-    ``px_seen`` rows are (x, y, seen) in image pixels (y down), as the renderer's
-    transform-feedback stage writes them. ``scratch`` is reused instead of new arrays,
-    and the values are a view into it.
+    ``px`` rows are (x, y) in image pixels (y down), as the renderer's
+    transform-feedback stage writes them (a body behind the eye at ``BEHIND_EYE_PX``).
+    ``scratch`` is reused instead of new arrays, and the values are a view into it.
     """
-    lo, dens, _ = _splat(px_seen, size_px, scratch or SplatScratch())
+    lo, dens, _ = _splat(px, size_px, scratch or SplatScratch())
     return lo, dens
 
 
-def _splat(px_seen: NDArray[np.float32], size_px: tuple[int, int], scratch: SplatScratch
+def _splat(px: NDArray[np.float32], size_px: tuple[int, int], scratch: SplatScratch
            ) -> tuple[int, NDArray[np.float32], NDArray[np.intp]]:
     """``splat_density``, and the index (from the first pixel) of every corner each
     point's weight went to: the pixels touched, some more than once."""
     w, h = size_px
-    x = px_seen[:, 0] - np.float32(0.5)
-    y = px_seen[:, 1] - np.float32(0.5)
-    ok = (px_seen[:, 2] > 0) & (x >= 0) & (x < w - 1) & (y >= 0) & (y < h - 1)
+    x = px[:, 0] - np.float32(0.5)
+    y = px[:, 1] - np.float32(0.5)
+    ok = (x >= 0) & (x < w - 1) & (y >= 0) & (y < h - 1)
     x = x[ok]
     y = y[ok]
     m = x.size
@@ -148,7 +152,7 @@ def _splat(px_seen: NDArray[np.float32], size_px: tuple[int, int], scratch: Spla
     return lo, dens, idx
 
 
-def composite_population(image: NDArray[np.uint8], px_seen: NDArray[np.float32],
+def composite_population(image: NDArray[np.uint8], px: NDArray[np.float32],
                          rgb: tuple[float, float, float], point_size_px: float,
                          opacity: float = 0.9,
                          uniform_under: NDArray[np.uint8] | None = None,
@@ -164,7 +168,7 @@ def composite_population(image: NDArray[np.uint8], px_seen: NDArray[np.float32],
     ``scratch`` is passed on to the splat.
     """
     h, w = image.shape[:2]
-    lo, dens, corners = _splat(px_seen, (w, h), scratch or SplatScratch())
+    lo, dens, corners = _splat(px, (w, h), scratch or SplatScratch())
     pix: NDArray[np.intp] = corners
     if dens.size == 0:
         return

@@ -97,7 +97,7 @@ class _PopulationGPU:
     vao: Any
     mean64: NDArray[np.float64]     # this frame's mean anomalies, float64 then float32
     mean32: NDArray[np.float32]
-    px_seen: NDArray[np.float32]    # the stage's output, read back: (N, 3)
+    px: NDArray[np.float32]         # the stage's output, read back: (N, 2)
 
 
 class Renderer:
@@ -120,7 +120,7 @@ class Renderer:
         self.p_marker = load_program(ctx, "marker")
         self.p_points = load_program(ctx, "points")
         self.p_pop = load_program(ctx, "population",
-                                  varyings=tuple(f"v_px_seen{j}" for j in range(BODIES_PER_VERTEX)))
+                                  varyings=("v_px01", "v_px23"))
         self.p_backdrop = load_program(ctx, "backdrop")
         self._backdrop_vao = ctx.vertex_array(self.p_backdrop, [])
         self._backdrop_tex: dict[tuple[int, int], Any] = {}
@@ -288,7 +288,8 @@ class Renderer:
         return bufs
 
     def population_pixels(self, pop: Population, geom: FrameGeometry) -> Any:
-        """(N, 3) float32 rows (x px, y px, seen) of a population at the frame's time.
+        """(N, 2) float32 rows (x px, y px) of a population at the frame's time; a body
+        behind the eye at ``BEHIND_EYE_PX`` (viewer.geometry.population).
 
         Runs the transform-feedback stage; a framebuffer of this context must be bound.
         The rows are the renderer's own buffer, valid until the next call.
@@ -317,8 +318,8 @@ class Renderer:
         p["u_distance_m"].value = float(v.distance_m)
         p["u_near_m"].value = float(v.near_m)
         gpu.vao.transform(gpu.pixels, self._mgl.POINTS, vertices=len(gpu.mean32) // 4)
-        gpu.pixels.read_into(gpu.px_seen)
-        return gpu.px_seen[:c.count]
+        gpu.pixels.read_into(gpu.px)
+        return gpu.px[:c.count]
 
     def _upload_population(self, pop: Population) -> _PopulationGPU:
         c = population_constants(pop)
@@ -332,13 +333,13 @@ class Renderer:
         grouped = static.reshape(-1, BODIES_PER_VERTEX, 7).transpose(0, 2, 1)
         sbuf = self.ctx.buffer(np.ascontiguousarray(grouped).tobytes())
         abuf = self.ctx.buffer(reserve=4 * padded, dynamic=True)
-        pbuf = self.ctx.buffer(reserve=12 * padded, dynamic=True)
+        pbuf = self.ctx.buffer(reserve=8 * padded, dynamic=True)
         names = ("in_aPx", "in_aPy", "in_aPz", "in_bQx", "in_bQy", "in_bQz", "in_e")
         vao = self.ctx.vertex_array(self.p_pop, [(sbuf, " ".join(["4f"] * 7), *names),
                                                  (abuf, "4f", "in_M")])
         return _PopulationGPU(pop, c, sbuf, abuf, pbuf, vao, np.empty(c.count),
                               np.zeros(padded, dtype=np.float32),
-                              np.empty((padded, 3), dtype=np.float32))
+                              np.empty((padded, 2), dtype=np.float32))
 
     def _release_population(self, gpu: _PopulationGPU) -> None:
         gpu.vao.release()
