@@ -105,6 +105,18 @@ def test_eccentric_anomaly_matches_mpmath_on_a_grid(e: float) -> None:
     assert np.all(np.abs(E[nonzero] - ref[nonzero]) <= 8 * EPS * np.abs(ref[nonzero]))
 
 
+def test_eccentric_anomaly_matches_mpmath_next_to_apoapsis() -> None:
+    # M at pi and a few ulps below it: E is pi, where the solver's tan(E/2) (for the
+    # slope 1 - e cos E) is at its pole. Both signs, e from 0 to 1 - 1e-12.
+    top = np.nextafter(np.pi, 0.0) - np.arange(6) * np.spacing(np.pi)
+    M = np.concatenate([[np.pi, -np.pi], top, -top, np.pi - 10.0 ** -np.arange(3, 16)])
+    for e in [0.0, 0.3, 0.9, 0.999, 1 - 1e-12]:
+        E = eccentric_anomaly(M, e)
+        ref = np.array([float(_mp_eccentric(m, e)) for m in M])
+        assert np.max(np.abs(E - ref)) <= E_VS_MPMATH, e
+        assert np.max(kepler_residual(E, M, e)) <= CONTRACT_RESIDUAL, e
+
+
 def test_eccentric_anomaly_matches_mpmath_for_random_anomalies() -> None:
     # Random (M, e) in [-pi, pi) x [0, 1), with a third of e crowded towards 1.
     M = rng.uniform(-np.pi, np.pi, 600)
@@ -144,6 +156,37 @@ def test_a_large_array_solved_in_blocks_on_threads_matches_mpmath() -> None:
         condition = 1.0 / float(1 - e[k] * mp.cos(_mp_eccentric(M[k], e[k])))
         allowed = E_VS_MPMATH + 4 * EPS * abs(M[k]) * condition
         assert abs(E[k] - float(_mp_eccentric(M[k], e[k]))) <= allowed, (M[k], e[k])
+
+
+def test_a_large_array_gives_the_same_bits_on_any_number_of_threads() -> None:
+    # Frames must not depend on the machine's core count (a show rendered on a cluster is
+    # byte-identical to one rendered on one machine): blocks, threads and the unblocked
+    # solve give the same E to the bit, including near periapsis at e -> 1, where the
+    # correction starts from the starter itself rather than from the grid.
+    from viewer.orbit.anomaly import _BLOCK, _elliptic, _elliptic_blocks
+
+    n = 3 * _BLOCK + 1234
+    M = rng.uniform(-20.0, 20.0, n)
+    e = np.concatenate([rng.uniform(0, 1, n // 2), 1 - 10 ** rng.uniform(-12, -1, n - n // 2)])
+    with np.errstate(under="ignore"):
+        whole = _elliptic(M, e, 1e-13)
+        for threads in (1, 2, 3):
+            assert np.array_equal(_elliptic_blocks(M, e, 1e-13, threads=threads), whole)
+    assert np.array_equal(eccentric_anomaly(M, e), whole)
+
+
+def test_the_correction_starts_from_numpys_own_sines_on_its_grid() -> None:
+    # Markley's correction starts on a grid of 2^-14 rad whose sines and cosines are
+    # read from a table: they must be numpy's np.sin and np.cos of the grid points (so
+    # f0 = E0 - e sin E0 - M is as exact as with a direct call), over all of [0, pi].
+    from viewer.orbit.anomaly import _GRID_PER_RAD, _sin_cos_grid
+
+    sin_grid, cos_grid = _sin_cos_grid()
+    points = np.arange(sin_grid.size) / _GRID_PER_RAD
+    assert points[-1] >= np.pi
+    assert np.array_equal(sin_grid, np.sin(points))
+    assert np.array_equal(cos_grid, np.cos(points))
+    assert not sin_grid.flags.writeable and not cos_grid.flags.writeable
 
 
 @settings(max_examples=150, deadline=None)

@@ -32,6 +32,7 @@ from numpy.typing import NDArray
 from ..errors import UserInputError
 from ..geometry.camera import View, view_for
 from ..geometry.labels import place_labels
+from ..render.context import flush
 from ..render.renderer import Renderer
 from ..render.shaders import load_program
 from ..scene.model import Camera, DomeSettings, Scene
@@ -280,8 +281,6 @@ class ImmersiveRenderer:
         cam = scene.camera if camera is None else camera
         spec = spec.framed(cam)
         omap = spec.output_map()
-        source = str(scene.source) if scene.source else "scene"
-        captions = caption_requests(overlay, scene.dome, omap, self.renderer.measure, source)
         base = view_for(scene, t_s, spec.size_px,
                         replace(cam, distance_m=cam.immersive_distance_m))
         views = face_views(base, spec, scene.dome)
@@ -289,15 +288,31 @@ class ImmersiveRenderer:
         size = spec.face_px()
         atlas, atlas_fbo = self._atlas(size)
         face_text = []
+        names = [n for n in FACE_NAMES if n in views]
+        geoms = dict(zip(names, self.renderer.geometries(scene, t_s, [views[n] for n in names],
+                                                          transparent, place=False),
+                         strict=True))
         for i, name in enumerate(FACE_NAMES):
             view = views.get(name)
             if view is None:
                 continue
-            geom = self.renderer.geometry(scene, t_s, view, transparent, place=False)
+            geom = geoms[name]
             face_text.append((view, geom.label_requests, geom.label_obstacles))
             geom.grid = emphasised_grid(geom.grid)
             self.renderer.draw(geom, atlas_fbo, top_row_first=False,
                                origin_px=((i % 3) * size, (i // 3) * size))
+        # llvmpipe rasterises the faces on its threads while the labels are placed here.
+        flush(self.ctx)
+        source = str(scene.source) if scene.source else "scene"
+        captions = caption_requests(overlay, scene.dome, omap, self.renderer.measure, source)
+        grid_strokes, grid_labels = (dome_grid(omap) if spec.dome_grid or scene.dome.grid
+                                     else (None, []))
+        placed: list[Any] = []
+        if face_text:
+            k = label_scale(scene.dome, omap, body_label_px(face_text[0][0]))
+            requests, boxes = output_requests(face_text, base, omap, k)
+            placed = place_labels(captions + grid_labels + requests, self.renderer.measure,
+                                  spec.size_px, boxes, omap.outside)
         atlas.use(location=0)
         prog["u_atlas"].value = 0
         prog["u_face_px"].value = float(size)
@@ -320,14 +335,9 @@ class ImmersiveRenderer:
         self.ctx.disable(self.renderer._mgl.BLEND)
         vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
         self.ctx.enable(self.renderer._mgl.BLEND)
-        grid_strokes, grid_labels = (dome_grid(omap) if spec.dome_grid or scene.dome.grid
-                                     else (None, []))
         if face_text:
-            k = label_scale(scene.dome, omap, body_label_px(face_text[0][0]))
-            requests, boxes = output_requests(face_text, base, omap, k)
-            placed = place_labels(captions + grid_labels + requests, self.renderer.measure,
-                                  spec.size_px, boxes, omap.outside)
             self.renderer.draw_labels(placed, fbo, spec.size_px, strokes=grid_strokes)
+        flush(self.ctx)
         return fbo
 
     def release(self) -> None:

@@ -170,6 +170,13 @@ class View:
         return px, front
 
 
+def intrinsics(view: View) -> tuple[object, ...]:
+    """What turns camera coordinates into pixels: views alike in this differ only in
+    where they stand and look (the cube faces of a dome master)."""
+    return (view.size_px, view.projection, view.fov_rad, view.near_m, view.width_m,
+            view.distance_m)
+
+
 def target_position_m(scene: Scene, camera: Camera, t_s: float) -> Floats:
     """Where the camera's target is at scene time t_s (m, from the central body)."""
     target = camera.target

@@ -20,14 +20,16 @@ which is what lets a 40 au orbit be drawn inside a field of 1e-4 au.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 from numpy.typing import NDArray
 
 from ..orbit import Elements, asymptote_true_anomaly
 from ..orbit.anomaly import eccentric_from_true, hyperbolic_from_true
-from .camera import View
+from .camera import View, intrinsics
 
 Floats = NDArray[np.float64]
 Ints = NDArray[np.int64]
@@ -235,21 +237,45 @@ def tessellate(batch: CurveBatch, view: View, margin_px: float = 16.0) -> Tessel
 
     Returns parameters and world points (m, float64) of each arc, ends included.
     """
-    n = len(batch)
-    if n == 0:
-        return Tessellation(np.zeros(0), np.zeros((0, 3)), np.zeros(1, dtype=np.int64))
-    kind = np.asarray(batch.kind, dtype=np.int64)
-    c0 = np.asarray(batch.c0)
-    c1 = np.asarray(batch.c1)
-    c2 = np.asarray(batch.c2)
-    P = np.asarray(batch.P)
-    Q = np.asarray(batch.Q)
-    tol = np.asarray(batch.tol_px) * _SAFETY
-    u0 = np.asarray(batch.u0)
-    u1 = np.asarray(batch.u1)
+    return tessellate_views([batch], [view], margin_px)[0]
 
-    def cam_at(cid: Ints, u: Floats) -> Floats:
-        return view.to_camera(_eval(kind[cid], c0[cid], c1[cid], c2[cid], P[cid], Q[cid], u))
+
+def tessellate_views(batches: Sequence[CurveBatch], views: Sequence[View],
+                     margin_px: float = 16.0) -> list[Tessellation]:
+    """``tessellate(batches[i], views[i])`` for every i, refined in one loop when the
+    views share their intrinsics (the faces of a dome master): the same numpy calls
+    serve all of them. Each view's points go through its own ``to_camera`` on the rows it
+    would have alone, in the same order, and everything else is row by row, so each
+    result is bit-identical to tessellating it on its own."""
+    if len({intrinsics(v) for v in views}) > 1:
+        return [tessellate_views([b], [v], margin_px)[0] for b, v in zip(batches, views,
+                                                                          strict=True)]
+    sizes = [len(b) for b in batches]
+    n = sum(sizes)
+    if n == 0:
+        return [Tessellation(np.zeros(0), np.zeros((0, 3)), np.zeros(1, dtype=np.int64))
+                for _ in batches]
+    view = views[0]
+    face_of = np.repeat(np.arange(len(batches)), sizes)  # each curve's view
+    filled = [b for b in batches if len(b)]
+
+    def column(name: str, dtype: type = np.float64) -> Any:
+        return np.concatenate([np.asarray(getattr(b, name), dtype=dtype) for b in filled])
+
+    kind = column("kind", np.int64)
+    c0, c1, c2, P, Q, u0, u1 = (column(k) for k in ("c0", "c1", "c2", "P", "Q", "u0", "u1"))
+    tol = column("tol_px") * _SAFETY
+
+    def cam_at(cid: Ints, u: Floats, rows: list[Ints]) -> Floats:
+        """Camera coordinates of the curves ``cid`` at ``u``; ``rows``: each view's rows."""
+        world = _eval(kind[cid], c0[cid], c1[cid], c2[cid], P[cid], Q[cid], u)
+        if len(views) == 1:
+            return view.to_camera(world)
+        cam = np.empty_like(world)
+        for v, mine in zip(views, rows, strict=True):
+            if mine.size:
+                cam[mine] = v.to_camera(world[mine])
+        return cam
 
     k = np.arange(_START_INTERVALS)
     cid = np.repeat(np.arange(n), _START_INTERVALS)
@@ -262,12 +288,18 @@ def tessellate(batch: CurveBatch, view: View, margin_px: float = 16.0) -> Tessel
     done_a: list[Floats] = []
     for _level in range(_MAX_LEVELS):
         m = 0.5 * (a + b)
-        ca, cb, cm = cam_at(cid, a), cam_at(cid, b), cam_at(cid, m)
+        face = face_of[cid]
+        rows = [np.flatnonzero(face == f) for f in range(len(views))] if len(views) > 1 \
+            else []
+        ca, cb, cm = cam_at(cid, a, rows), cam_at(cid, b, rows), cam_at(cid, m, rows)
         vis = _visible(view, ca, cb, cm, margin_px)
         dev, front = _deviation_px(view, ca, cb, cm)
         split = vis & (~front | (dev > tol[cid]))
-        if a.size + np.count_nonzero(split) > _MAX_INTERVALS:
-            split[:] = False
+        # Each view on its own stops splitting where it would hold too many intervals.
+        over = (np.bincount(face, minlength=len(views))
+                + np.bincount(face[split], minlength=len(views))) > _MAX_INTERVALS
+        if np.any(over):
+            split &= ~over[face]
         keep = ~split
         done_c.append(cid[keep])
         done_a.append(a[keep])
@@ -282,10 +314,16 @@ def tessellate(batch: CurveBatch, view: View, margin_px: float = 16.0) -> Tessel
         done_a.append(a)
     all_c = np.concatenate(done_c + [np.arange(n)])
     all_u = np.concatenate(done_a + [u1])
-    order = np.lexsort((all_u, all_c))
+    order = np.lexsort((all_u, all_c))  # curves are numbered view by view
     all_c = all_c[order]
     all_u = all_u[order]
     counts = np.bincount(all_c, minlength=n)
     starts = np.concatenate([[0], np.cumsum(counts)]).astype(np.int64)
     pts = _eval(kind[all_c], c0[all_c], c1[all_c], c2[all_c], P[all_c], Q[all_c], all_u)
-    return Tessellation(all_u, pts, starts)
+    out = []
+    first = 0
+    for size in sizes:
+        lo, hi = starts[first], starts[first + size]
+        out.append(Tessellation(all_u[lo:hi], pts[lo:hi], starts[first:first + size + 1] - lo))
+        first += size
+    return out

@@ -15,7 +15,7 @@ hides them, so an orbit goes behind the planet and in front of it as it should.
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Generator, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -28,13 +28,13 @@ from ..scene.timeline import OverlayText
 from ..units import unit_factor
 from ..units.format import format_sig, label_speed
 from . import marks
-from .camera import View
+from .camera import View, intrinsics
 from .conic import (
     ConicShape,
     CurveBatch,
     Tessellation,
     default_limit_radius_m,
-    tessellate,
+    tessellate_views,
     whole_orbit_range,
 )
 from .fills import FILL_FLOATS, fan_triangles, fill_vertices
@@ -46,6 +46,7 @@ from .strokes import (
     StrokeStyle,
     hidden_by_sphere,
     stroke_vertices,
+    stroke_vertices_views,
 )
 
 Floats = NDArray[np.float64]
@@ -257,7 +258,18 @@ class StaticCache:
         kept = entry.get("state")
         if kept is not None and kept[0] == t_s:  # type: ignore[index]
             return kept[1], kept[2]  # type: ignore[index]
-        r, v = _state_at(body, t_s)
+        if body.track is None:
+            # As Body.elements_at and Elements.after do, term for term (the same bits),
+            # with the mean anomaly at epoch and the mean motion kept: they do not change.
+            if "mean" not in entry:
+                el = body.elements
+                entry["mean"] = (np.asarray(el.mean_anomaly), np.asarray(el.mean_motion))
+            mean: tuple[Floats, Floats] = entry["mean"]  # type: ignore[assignment]
+            M = mean[0] + mean[1] * np.asarray(t_s - body.epoch_offset_s)
+            r, v = state_from_elements(body.elements.at_mean_anomaly(M))
+            r, v = np.asarray(r, dtype=np.float64), np.asarray(v, dtype=np.float64)
+        else:
+            r, v = _state_at(body, t_s)
         entry["state"] = (t_s, r, v)
         return r, v
 
@@ -313,20 +325,41 @@ def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
     leaves the labels unplaced (``labels`` empty, ``label_requests`` filled): the dome and
     the panorama place them in their own pixels.
     """
+    return build_frames(scene, t_s, [view], measure, transparent, starfield, cache, overlay,
+                        place)[0]
+
+
+def build_frames(scene: Scene, t_s: float, views: Sequence[View], measure: Measure,
+                 transparent: bool = False, starfield: Starfield | None = None,
+                 cache: StaticCache | None = None,
+                 overlay: Sequence[OverlayText] = (), place: bool = True
+                 ) -> list[FrameGeometry]:
+    """``build_frame`` for each of ``views`` at once (the cube faces of a dome master or
+    a panorama): the same frames, made with one tessellation and one stroking pass for
+    all the views whose time-independent part is not kept in ``cache``."""
     scene = scene.osculating(t_s).swept_at(t_s)
+    owners = (scene.bodies, scene.center, scene.render)
+    keys = [(_view_key(v), id(scene.bodies), id(scene.center), id(scene.render),
+             scene.length_unit) for v in views]
+    statics = [cache.frame_part(k, owners) if cache is not None else None for k in keys]
+    missing = [i for i, st in enumerate(statics) if st is None]
+    made = _static_parts(scene, [views[i] for i in missing], measure, starfield, cache)
+    for i, part in zip(missing, made, strict=True):
+        statics[i] = part
+        if cache is not None:
+            cache.keep_frame_part(keys[i], owners, part)
+    return [_frame(scene, t_s, v, st, measure, transparent, cache, overlay, place)
+            for v, st in zip(views, statics, strict=True) if st is not None]
+
+
+def _frame(scene: Scene, t_s: float, view: View, static: _StaticPart, measure: Measure,
+           transparent: bool, cache: StaticCache | None, overlay: Sequence[OverlayText],
+           place: bool) -> FrameGeometry:
+    """One view's frame: its kept time-independent part and the bodies at ``t_s``."""
     w, h = view.size_px
     hs = view.style_scale
     bg = scene.render.background
     background = (bg[0], bg[1], bg[2], 0.0 if transparent else 1.0)
-    key = (_view_key(view), id(scene.bodies), id(scene.center), id(scene.render),
-           scene.length_unit)
-    static = cache.frame_part(key, (scene.bodies, scene.center, scene.render)) \
-        if cache is not None else None
-    if static is None:
-        static = _static_part(scene, view, measure, starfield, cache)
-        if cache is not None:
-            cache.keep_frame_part(key, (scene.bodies, scene.center, scene.render), static)
-
     lines = PolylineBatch.empty()
     markers = _Marks()
     arrows = _Marks()
@@ -421,9 +454,38 @@ def _seen_px(view: View, p: Floats, occluder: tuple[Floats, float] | None
     return q[0], seen
 
 
-def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfield | None,
-                 cache: StaticCache | None) -> _StaticPart:
-    """Grid, sectors, the central body, orbits, axes, nodes, foci and apsides."""
+def _static_parts(scene: Scene, views: Sequence[View], measure: Measure,
+                  starfield: Starfield | None, cache: StaticCache | None) -> list[_StaticPart]:
+    """``_static_steps`` for each view, with the tessellation and the strokes of all of
+    them made together (one set of numpy calls for the five faces of a dome master; each
+    result is bit-identical to the view's own)."""
+    if len({(intrinsics(v), v.style_scale) for v in views}) > 1:
+        return [_static_parts(scene, [v], measure, starfield, cache)[0] for v in views]
+    steps = [_static_steps(scene, v, measure, starfield, cache) for v in views]
+    curves = [next(s) for s in steps]
+    tess = tessellate_views(curves, views)
+    lines = [s.send(t) for s, t in zip(steps, tess, strict=True)]
+    hs = views[0].style_scale if views else 1.0
+    grid = stroke_vertices_views([g for g, _l, _o in lines], views, height_scale=hs,
+                                 occluders=[o for _g, _l, o in lines])
+    strokes = stroke_vertices_views([ln for _g, ln, _o in lines], views, height_scale=hs,
+                                    occluders=[o for _g, _l, o in lines])
+    parts = []
+    for s, g, k in zip(steps, grid, strokes, strict=True):
+        try:
+            s.send((g, k))
+        except StopIteration as done:
+            parts.append(done.value)
+    return parts
+
+
+def _static_steps(scene: Scene, view: View, measure: Measure, starfield: Starfield | None,
+                  cache: StaticCache | None
+                  ) -> Generator[Any, Any, _StaticPart]:
+    """Grid, sectors, the central body, orbits, axes, nodes, foci and apsides, in three
+    steps so that several views can share the costly ones (see _static_parts): it yields
+    the curves to tessellate and is sent their Tessellation; it yields the grid lines,
+    the lines and the occluder and is sent their stroke vertices; it returns the part."""
     hs = view.style_scale
     unit = scene.length_unit
     unit_m = unit_factor(unit, "length")
@@ -477,7 +539,7 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                              lambda body=body, shape=shape: _sector_params(body, shape))
             sector_arcs[k] = [(curves.add(shape, u0, u1, 0.2), t0, t1, whole)
                               for u0, u1, t0, t1, whole in params]
-    tess: Tessellation = tessellate(curves, view)
+    tess: Tessellation = yield curves
 
     for arc, _r in grid_arcs:
         grid_lines.add(tess.arc(arc), StrokeStyle(_rgba(GRID_RGB, 0.30), GRID_PX), closed=True)
@@ -611,16 +673,13 @@ def _static_part(scene: Scene, view: View, measure: Measure, starfield: Starfiel
                                            _rgba(_lighten(GRID_RGB, 0.2), 0.7), 50,
                                            required=False))
 
+    grid_vertices, stroke_rows = yield grid_lines, lines, occluder
     stars = (star_points(starfield or make_starfield(), view, hs) if scene.render.stars
              else np.zeros((0, 7)))
     fills = (fill_vertices(view, np.concatenate(fill_tris), np.concatenate(fill_cols))
              if fill_tris else np.zeros((0, FILL_FLOATS)))
     return _StaticPart(
-        grid=stroke_vertices(grid_lines, view, height_scale=hs, occluder=occluder)
-        if grid_lines.points else np.zeros((0, STROKE_FLOATS)),
-        fills=fills, glows=glows.array(),
-        strokes=stroke_vertices(lines, view, height_scale=hs, occluder=occluder)
-        if lines.points else np.zeros((0, STROKE_FLOATS)),
+        grid=grid_vertices, fills=fills, glows=glows.array(), strokes=stroke_rows,
         markers=markers.array(), labels=labels, obstacles=obstacles, occluder=occluder,
         stars=stars, vector=VectorParts(grid_lines, lines, sector_rings))
 

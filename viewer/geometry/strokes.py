@@ -20,12 +20,13 @@ then r, g, b, a (straight alpha, 0..1).
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import NDArray
 
-from .camera import View
+from .camera import View, intrinsics
 
 Floats = NDArray[np.float64]
 Ints = NDArray[np.int64]
@@ -96,7 +97,8 @@ def _clip_near(c0: Floats, c1: Floats, near: float) -> tuple[Floats, Floats, Boo
 
 
 def _clip_rect(p0: Floats, p1: Floats, lo: Floats, hi: Floats) -> tuple[Floats, Floats]:
-    """Liang-Barsky: the parameter range [t0, t1] of each segment inside the box."""
+    """Liang-Barsky: the parameter range [t0, t1] of each segment inside the box (its
+    corners ``lo`` and ``hi``, one for all segments or one row per segment)."""
     d = p1 - p0
     t0 = np.zeros(len(p0))
     t1 = np.ones(len(p0))
@@ -104,11 +106,11 @@ def _clip_rect(p0: Floats, p1: Floats, lo: Floats, hi: Floats) -> tuple[Floats, 
         dd = d[:, axis]
         par = np.abs(dd) < 1e-300
         safe = np.where(par, 1.0, dd)
-        ta = (lo[axis] - p0[:, axis]) / safe
-        tb = (hi[axis] - p0[:, axis]) / safe
+        ta = (lo[..., axis] - p0[:, axis]) / safe
+        tb = (hi[..., axis] - p0[:, axis]) / safe
         tmin = np.minimum(ta, tb)
         tmax = np.maximum(ta, tb)
-        outside = par & ((p0[:, axis] < lo[axis]) | (p0[:, axis] > hi[axis]))
+        outside = par & ((p0[:, axis] < lo[..., axis]) | (p0[:, axis] > hi[..., axis]))
         t0 = np.where(par, t0, np.maximum(t0, tmin))
         t1 = np.where(par, t1, np.minimum(t1, tmax))
         t1 = np.where(outside, -1.0, t1)
@@ -238,20 +240,50 @@ def stroke_vertices(batch: PolylineBatch, view: View, margin_px: float = 8.0,
     ``occluder`` (centre m, radius m) is a sphere that hides what passes behind it (the
     central body as drawn).
     """
-    if not batch.points:
-        return np.zeros((0, STROKE_FLOATS))
-    if occluder is not None:
-        batch = _split_around_occluder(view, batch, occluder)
-    counts = np.array([len(p) for p in batch.points])
-    pts = np.concatenate(batch.points)
+    return stroke_vertices_views([batch], [view], margin_px, height_scale, [occluder])[0]
+
+
+def stroke_vertices_views(batches: Sequence[PolylineBatch], views: Sequence[View],
+                          margin_px: float = 8.0, height_scale: float = 1.0,
+                          occluders: Sequence[tuple[Floats, float] | None] | None = None
+                          ) -> list[Floats]:
+    """``stroke_vertices(batches[i], views[i], occluder=occluders[i])`` for every i, in
+    one pass when the views share their intrinsics (the faces of a dome master). Each
+    view's points go through its own ``to_camera``, its along-line distances are summed
+    on their own, and the rest is row by row, so each result is bit-identical to the
+    view's own call."""
+    occ = list(occluders) if occluders is not None else [None] * len(views)
+    if len({intrinsics(v) for v in views}) > 1:
+        return [stroke_vertices_views([b], [v], margin_px, height_scale, [o])[0]
+                for b, v, o in zip(batches, views, occ, strict=True)]
+    empty = np.zeros((0, STROKE_FLOATS))
+    batches = [_split_around_occluder(v, b, o) if o is not None and b.points else b
+               for b, v, o in zip(batches, views, occ, strict=True)]
+    faces = [f for f, b in enumerate(batches) if b.points]
+    if not faces:
+        return [empty for _ in batches]
+    views = [views[f] for f in faces]
+    occ = [occ[f] for f in faces]
+    lines_per = [len(batches[f].points) for f in faces]
+    view = views[0]
+    points = [p for f in faces for p in batches[f].points]
+    styles = [st for f in faces for st in batches[f].styles]
+    closed = np.asarray([c for f in faces for c in batches[f].closed])
+    counts = np.array([len(p) for p in points])
+    pts = np.concatenate(points)
     starts = np.concatenate([[0], np.cumsum(counts)])
     nline = len(counts)
-    # Segments i -> i+1 inside each polyline.
+    # Segments i -> i+1 inside each polyline; lines, points and segments run view by view.
     seg_line = np.repeat(np.arange(nline), counts - 1)
     first_seg = np.concatenate([[0], np.cumsum(counts - 1)])[:-1]
     local = np.arange(len(seg_line)) - first_seg[seg_line]
     i0 = starts[seg_line] + local
-    cam = view.to_camera(pts)
+    line_at = np.concatenate([[0], np.cumsum(lines_per)])
+    seg_at = np.concatenate([first_seg, [len(seg_line)]])[line_at]
+    pt_at = starts[line_at]
+    cam = np.concatenate([v.to_camera(pts[pt_at[f]:pt_at[f + 1]])
+                          for f, v in enumerate(views)]) if len(views) > 1 \
+        else view.to_camera(pts)
     c0, c1 = cam[i0], cam[i0 + 1]
     nseg = len(i0)
     cut0 = np.zeros(nseg, dtype=bool)
@@ -262,25 +294,31 @@ def stroke_vertices(batch: PolylineBatch, view: View, margin_px: float = 8.0,
     p0 = view.camera_to_px(np.where(kept[:, None], c0, [0.0, 0.0, -1.0]))
     p1 = view.camera_to_px(np.where(kept[:, None], c1, [0.0, 0.0, -1.0]))
     # Along-line distance from each polyline's start (before any other clipping, so
-    # that dashes run on across a gap).
+    # that dashes run on across a gap), summed view by view.
     seg_len = np.where(kept, np.linalg.norm(p1 - p0, axis=1), 0.0)
-    cum = np.cumsum(seg_len)
-    line_base = np.concatenate([[0.0], cum])[first_seg][seg_line]
-    along0 = cum - seg_len - line_base
-    if occluder is not None:
+    along0 = np.empty(nseg)
+    for f in range(len(views)):
+        s0, s1 = seg_at[f], seg_at[f + 1]
+        cum = np.cumsum(seg_len[s0:s1])
+        base = np.concatenate([[0.0], cum])[first_seg[line_at[f]:line_at[f + 1]] - s0]
+        along0[s0:s1] = cum - seg_len[s0:s1] - base[seg_line[s0:s1] - line_at[f]]
+    if any(o is not None for o in occ):
         c0, c1 = c0.copy(), c1.copy()
-        _clip_occluded(view, c0, c1, kept, cut0, cut1, occluder)
+        for f, (v, o) in enumerate(zip(views, occ, strict=True)):
+            if o is not None:
+                part = slice(seg_at[f], seg_at[f + 1])
+                _clip_occluded(v, c0[part], c1[part], kept[part], cut0[part], cut1[part], o)
         n0 = view.camera_to_px(np.where(kept[:, None], c0, [0.0, 0.0, -1.0]))
         n1 = view.camera_to_px(np.where(kept[:, None], c1, [0.0, 0.0, -1.0]))
         along0 = along0 + np.linalg.norm(n0 - p0, axis=1)
         p0, p1 = n0, n1
         seg_len = np.where(kept, np.linalg.norm(p1 - p0, axis=1), 0.0)
     # Clip to the image plus a margin that holds the widest stroke.
-    styles = batch.styles
     hw_line = np.array([0.5 * s.width_px * height_scale for s in styles])
     w, h = view.size_px
-    m = margin_px + 2.0 * float(hw_line.max()) + 2.0
-    t0, t1 = _clip_rect(p0, p1, np.array([-m, -m]), np.array([w + m, h + m]))
+    m = np.repeat([margin_px + 2.0 * float(hw_line[line_at[f]:line_at[f + 1]].max()) + 2.0
+                   for f in range(len(views))], np.diff(seg_at))[:, None]
+    t0, t1 = _clip_rect(p0, p1, np.broadcast_to(-m, (nseg, 2)), np.array([w, h]) + m)
     kept &= t1 > t0
     d = p1 - p0
     q0 = p0 + t0[:, None] * d
@@ -292,7 +330,6 @@ def stroke_vertices(batch: PolylineBatch, view: View, margin_px: float = 8.0,
     L = np.linalg.norm(q1 - q0, axis=1)
     kept &= L > 1e-6
     # Neighbours: previous/next segment of the same polyline (wrapping when closed).
-    closed = np.asarray(batch.closed)
     last_local = counts[seg_line] - 2
     prev = i_prev = np.arange(nseg) - 1
     i_next = np.arange(nseg) + 1
@@ -359,7 +396,12 @@ def stroke_vertices(batch: PolylineBatch, view: View, margin_px: float = 8.0,
     out[:, :, 6] = hw_eff[sel, None]
     out[:, :, 7:9] = dash[sel][:, None, :]
     out[:, :, 9:13] = rgba[sel][:, None, :]
-    return out.reshape(-1, STROKE_FLOATS)
+    rows = out.reshape(-1, STROKE_FLOATS)
+    made = [empty for _ in batches]
+    ends = np.searchsorted(sel, seg_at) * 6  # each view's rows, in view order
+    for f, face in enumerate(faces):
+        made[face] = rows[ends[f]:ends[f + 1]]
+    return made
 
 
 def stroke_coverage(across_px: Floats, along_px: Floats, half_width_px: float,

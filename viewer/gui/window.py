@@ -124,6 +124,8 @@ class ViewerWindow:
         #: "flat", or "dome"/"panorama": the picture is the master the export would make.
         self.session.view_mode = view
         self._immersive: Any = None
+        #: The dome preview drawn this frame, copied to the screen under the panels.
+        self._blit: tuple[Any, tuple[int, int], int, int] | None = None
         self._shown: Any = None  # the last show picture, with what it was made from
         self.preview_rect: tuple[int, int, int, int] | None = None
         self._closed = False
@@ -403,6 +405,7 @@ class ViewerWindow:
         if layout != self._last_layout:
             self._pending = max(self._pending, 1)
         self._last_layout = layout
+        self._blit_preview()
         imgui.render()
         self.panel_renderer.render(imgui.get_draw_data(), (fw, fh))
         self.frames_drawn += 1
@@ -448,8 +451,6 @@ class ViewerWindow:
         camera, fades, captions and clock), at most 1024 px high, centred in the picture
         area between the panels. While the picture ``moving``, one sample per pixel in
         place of the export's 2 x 2 (a draft, twice as fast); still, exactly the export."""
-        from pyglet import gl
-
         from ..export.immersive import Immersive, ImmersiveRenderer, preview_size
 
         if self._immersive is None:
@@ -469,6 +470,17 @@ class ViewerWindow:
         y0 = fh - (ay + (ah + size[1]) // 2)
         #: Where the preview is on the window: (x, y from the top, width, height) px.
         self.preview_rect = (x0, fh - y0 - size[1], size[0], size[1])
+        self._blit = (fbo, size, x0, y0)
+
+    def _blit_preview(self) -> None:
+        """Copy the preview drawn by _draw_immersive onto the screen. Called after the
+        panels are laid out, so llvmpipe draws the preview while Python lays them out."""
+        from pyglet import gl
+
+        if self._blit is None:
+            return
+        fbo, size, x0, y0 = self._blit
+        self._blit = None
         gl.glBindFramebuffer(gl.GL_READ_FRAMEBUFFER, fbo.glo)
         gl.glBindFramebuffer(gl.GL_DRAW_FRAMEBUFFER, 0)
         gl.glBlitFramebuffer(0, 0, size[0], size[1], x0, y0 + size[1], x0 + size[0], y0,

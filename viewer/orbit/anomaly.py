@@ -19,7 +19,7 @@ from __future__ import annotations
 import contextvars
 import functools
 import os
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
 from typing import Any, TypeVar
 
 import numpy as np
@@ -72,14 +72,15 @@ def wrap_two_pi(x: ArrayLike) -> float | Floats:
 # --- ellipse -----------------------------------------------------------------------
 
 
-def _odd_tail(x: Floats, sign: float) -> Floats:
+def _odd_tail(x: Floats, sign: float, sin_x: Floats | None = None) -> Floats:
     """x - sin x (``sign`` = -1) or sinh x - x (``sign`` = +1) without cancellation.
 
     For |x| < 1 the odd series x^3/3! + sign x^5/5! + ... (9 terms: below 1e-18
     relative), else the direct difference. Near periapsis of a near-parabolic conic,
     E - e sin E and e sinh F - F are tiny differences of nearly equal numbers; written as
     (1 - e) sin E + (E - sin E) and (e - 1) sinh F + (sinh F - F) they keep full relative
-    precision (the accuracy tests against mpmath at e = 1 -+ 1e-12 need it).
+    precision (the accuracy tests against mpmath at e = 1 -+ 1e-12 need it). ``sin_x``,
+    if given, is ``np.sin(x)`` already computed (the same bits as computing it here).
     """
     small = np.abs(x) < 1.0
     xs = np.where(small, x, 0.0)
@@ -90,7 +91,10 @@ def _odd_tail(x: Floats, sign: float) -> Floats:
         series += term
         term = sign * term * x2 / ((2 * k) * (2 * k + 1))
     big = np.where(small, 0.0, x)
-    direct = big - np.sin(big) if sign < 0 else np.sinh(big) - big
+    if sign > 0:
+        direct = np.sinh(big) - big
+    else:
+        direct = big - (np.sin(big) if sin_x is None else sin_x)
     return np.where(small, series, direct)
 
 
@@ -122,37 +126,69 @@ def _hyperbolic_mean(F: Floats, e: Floats) -> Floats:
     return out.reshape(np.shape(F))
 
 
-def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
+#: Grid points per radian of the start of Markley's correction (``_markley``): a power of
+#: two, so a grid point is exact in float64; half a step (3e-5 rad) is small beside the
+#: starter's own error (its correction was at most 4.4e-4 rad on 2.1e6 random values, and
+#: the guard takes over above 1e-3).
+_GRID_PER_RAD = 2.0**14
+
+
+@functools.lru_cache(maxsize=1)
+def _sin_cos_grid() -> tuple[Floats, Floats]:
+    """np.sin and np.cos on the grid of ``_GRID_PER_RAD`` over [0, 4] rad (Markley's E for
+    M in [0, pi] lies in [0, pi]), read-only; 65,537 values each, built once (2 ms)."""
+    x = np.arange(int(4.0 * _GRID_PER_RAD) + 1) / _GRID_PER_RAD
+    tables = np.sin(x), np.cos(x)
+    for table in tables:
+        table.flags.writeable = False
+    return tables
+
+
+def _workspace(n: int) -> tuple[Floats, NDArray[np.intp]]:
+    """Work arrays for ``_elliptic`` on up to ``n`` values: 11 rows of floats, one of ints."""
+    return np.empty((11, n)), np.empty(n, dtype=np.intp)
+
+
+def _markley(M: Floats, e: Floats,
+             work: tuple[Floats, NDArray[np.intp]] | None = None) -> tuple[Floats, Floats]:
     """E for M in [0, pi] by Markley's non-iterative method, and the last correction.
 
     F. L. Markley, "Kepler equation solver", Celestial Mechanics and Dynamical Astronomy
     63 (1995) 101-111: a Pade-based cubic starter and one fifth-order correction
     (equations recalled from the paper, "from memory"; the tests check the result against
-    mpmath at 50 digits, so a slip here cannot pass unseen).
+    mpmath at 50 digits, so a slip here cannot pass unseen). M, e: 1-d arrays of one
+    length, never written; ``work`` (from ``_workspace``, rows 0-8 used) holds every
+    intermediate, so a block allocates nothing but the few values near periapsis. The
+    two arrays returned are rows of ``work``.
     """
-    # Written with in-place operations on a few work arrays (the same operations in the
-    # same order as the plain formulas, so the same bits; about a third faster on large
-    # blocks). M and e are never written. M, e: 1-d arrays of one length.
+    # In-place operations on the rows of ``work``: the same operations in the same order
+    # as the plain formulas, so the same bits, with no temporaries to allocate (a
+    # temporary of 32k values or more is mapped afresh by malloc and faulted in page by
+    # page; with threads the allocations also contend).
+    n = M.size
+    rows, at = work if work is not None else _workspace(n)
+    W = rows[:, :n]
+    at = at[:n]
     pi2 = np.pi * np.pi
-    one_m_e = 1.0 - e
-    alpha = np.pi - M  # alpha = (3 pi^2 + 1.6 pi (pi - M) / (1 + e)) / (pi^2 - 6)
+    one_m_e = np.subtract(1.0, e, out=W[0])
+    alpha = np.subtract(np.pi, M, out=W[1])  # (3 pi^2 + 1.6 pi (pi - M) / (1 + e)) / (pi^2 - 6)
     alpha *= 1.6 * np.pi
-    u = 1.0 + e
+    u = np.add(e, 1.0, out=W[2])
     alpha /= u
     alpha += 3.0 * pi2
     alpha /= pi2 - 6.0
-    d = 3.0 * one_m_e  # d = 3 (1 - e) + alpha e
+    d = np.multiply(one_m_e, 3.0, out=W[3])  # d = 3 (1 - e) + alpha e
     d += np.multiply(alpha, e, out=u)
-    M2 = M * M
+    M2 = np.multiply(M, M, out=W[4])
     ad = np.multiply(alpha, d, out=alpha)
-    q = 2.0 * ad  # q = 2 alpha d (1 - e) - M^2
+    q = np.multiply(ad, 2.0, out=W[5])  # q = 2 alpha d (1 - e) - M^2
     q *= one_m_e
     q -= M2
-    r = 3.0 * ad  # r = 3 alpha d (d - 1 + e) M + M^3
+    r = np.multiply(ad, 3.0, out=W[6])  # r = 3 alpha d (d - 1 + e) M + M^3
     r *= np.subtract(d, one_m_e, out=u)
     r *= M
     r += np.multiply(M2, M, out=u)
-    w = q * q  # w = cbrt(|r| + sqrt(q^3 + r^2))^2
+    w = np.multiply(q, q, out=W[7])  # w = cbrt(|r| + sqrt(q^3 + r^2))^2
     w *= q
     w += np.multiply(r, r, out=u)
     np.sqrt(w, out=w)
@@ -163,37 +199,57 @@ def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
     den = np.multiply(w, w, out=u)  # E = (2 r w / (w^2 + w q + q^2) + M) / d
     den += np.multiply(w, q, out=M2)
     den += np.multiply(q, q, out=M2)
-    E = 2.0 * r
+    E = np.multiply(r, 2.0, out=W[8])
     E *= w
     E /= den
     E += M
     E /= d
-    # Fifth-order correction (Markley eq. 29-31); f2 = e sin E, f3 = e cos E. Where
-    # E - e sin E and 1 - e cos E would cancel (e -> 1, E -> 0), f0 and f1 are redone in
-    # cancellation-free forms, f1 = (1 - e) + 2 e sin^2(E/2).
-    f2 = np.sin(E)
+    # Fifth-order correction (Markley eq. 29-31) from E0, the starter rounded to the grid
+    # of ``_sin_cos_grid``: sin E0 and cos E0 are then two table reads holding np.sin and
+    # np.cos of E0 (so f0 = E0 - e sin E0 - M is as exact as before), where computing
+    # them took 9-13 ns a value each (numpy's float64 sin and cos are not vectorised).
+    # Rounding moves the start by at most half a grid step, far inside the correction's
+    # reach wherever the slope 1 - e cos E is not small. Where it is (e -> 1, E -> 0:
+    # the cancellation-free forms are needed), the start stays E and f0 and f1 are redone
+    # in cancellation-free forms, f1 = (1 - e) + 2 e sin^2(E/2).
+    sin_grid, cos_grid = _sin_cos_grid()
+    E0 = np.multiply(E, _GRID_PER_RAD, out=W[3])
+    np.rint(E0, out=E0)
+    np.clip(E0, 0.0, sin_grid.size - 1, out=E0)
+    np.copyto(at, E0, casting="unsafe")  # whole numbers: the cast is exact
+    E0 *= 1.0 / _GRID_PER_RAD  # an integer times a power of two: exact
+    f2 = np.take(sin_grid, at, out=W[1], mode="clip")  # "clip": in range, so no checks
     f2 *= e
-    f3 = np.cos(E)
+    f3 = np.take(cos_grid, at, out=W[2], mode="clip")
     f3 *= e
-    f0 = E - f2
+    f0 = np.subtract(E0, f2, out=W[4])
     f0 -= M
-    f1 = 1.0 - f3
-    t = np.multiply(E, E, out=r)
+    f1 = np.subtract(1.0, f3, out=W[5])
+    t = np.multiply(E, E, out=W[6])
     t /= 6.0
     t += one_m_e
     near = np.flatnonzero(t < 0.25)
     if near.size:
         En, en = E[near], e[near]
-        f0[near] = _elliptic_mean(En, en) - M[near]
-        f1[near] = (1.0 - en) + 2.0 * en * np.sin(0.5 * En) ** 2
+        sn = np.sin(En)
+        E0[near] = En
+        f2[near] = en * sn
+        f0[near] = ((1.0 - en) * sn + _odd_tail(En, -1.0, sn)) - M[near]
+        # 2 e sin^2(E/2) from tan(E/2), vectorised in numpy where cos is not.
+        h = np.tan(0.5 * En)
+        h *= h
+        h /= h + 1.0
+        h *= 2.0 * en
+        f1[near] = (1.0 - en) + h
+        f3[near] = en - h
     neg_f0 = np.negative(f0, out=f0)
-    half_f2 = np.multiply(f2, 0.5, out=q)
-    x = np.multiply(neg_f0, -0.5, out=w)  # d3 = -f0 / (f1 - 0.5 f0 f2 / f1)
+    half_f2 = np.multiply(f2, 0.5, out=W[7])
+    x = np.multiply(neg_f0, -0.5, out=W[6])  # d3 = -f0 / (f1 - 0.5 f0 f2 / f1)
     x *= f2
     x /= f1
     np.subtract(f1, x, out=x)
     d3 = np.divide(neg_f0, x, out=x)
-    y = np.multiply(d3, f3, out=u)  # d4 = -f0 / (f1 + d3 (0.5 f2 + d3 f3 / 6))
+    y = np.multiply(d3, f3, out=W[0])  # d4 = -f0 / (f1 + d3 (0.5 f2 + d3 f3 / 6))
     y /= 6.0
     y += half_f2
     y *= d3
@@ -207,16 +263,16 @@ def _markley(M: Floats, e: Floats) -> tuple[Floats, Floats]:
     z *= d4
     z += f1
     d5 = np.divide(neg_f0, z, out=z)
-    E += d5
-    return E, d5
+    E0 += d5
+    return E0, d5
 
 
-#: Elements per block for large arrays: the solver's dozens of temporaries (32 kB each)
-#: then stay in the CPU cache and are reused by the allocator instead of being mapped
-#: afresh (blocks of 32k values, 256 kB temporaries, spent half their time in page
-#: faults; docs/performance.md), and blocks are shared among the cores (numpy's ufuncs
-#: release the GIL).
-_BLOCK = 32_768
+#: Elements per block for large arrays. A block's ufunc calls must be long enough (about
+#: 20 us each at 65,536 values) that two threads gain from numpy releasing the GIL: with
+#: 32k blocks, handing the GIL between the threads cost about what the second core gave.
+#: Larger blocks spill the work arrays (``_workspace``, 11 rows) out of the core's cache
+#: (docs/performance.md, "Kepler solve, session 6").
+_BLOCK = 65_536
 
 
 def _cores() -> int:
@@ -235,48 +291,66 @@ def _cores() -> int:
 _GUARD_STEP = 1e-3
 
 
-def _elliptic(M: Floats, e: Floats, tol: float) -> Floats:
-    """E for any M (same shape as e): reduce to [-pi, pi], Markley on |M|, the guard."""
-    turns = np.rint(M * (1.0 / TWO_PI))
-    Mr = M - turns * TWO_PI  # [-pi, pi], as accurate as float64 allows
-    Ma = np.abs(Mr)
-    E, last = _markley(Ma, e)
-    check = np.flatnonzero(np.abs(last) > _GUARD_STEP)
+def _elliptic(M: Floats, e: Floats, tol: float, out: Floats | None = None,
+              work: tuple[Floats, NDArray[np.intp]] | None = None) -> Floats:
+    """E for any M (1-d, same length as e): reduce to [-pi, pi], Markley on |M|, the guard.
+
+    Written into ``out`` if given; ``work`` as for ``_markley`` (rows 0-10 used).
+    """
+    n = M.size
+    work = work if work is not None else _workspace(n)
+    W = work[0][:, :n]
+    turns = np.multiply(M, 1.0 / TWO_PI, out=W[9])
+    np.rint(turns, out=turns)
+    Mr = np.multiply(turns, TWO_PI, out=W[9])
+    np.subtract(M, Mr, out=Mr)  # [-pi, pi], as accurate as float64 allows
+    Ma = np.abs(Mr, out=W[10])
+    E, last = _markley(Ma, e, work)
+    check = np.flatnonzero(np.abs(last, out=last) > _GUARD_STEP)
     if check.size:
-        Ec, Mc, ec = E.flat[check], Ma.flat[check], e.flat[check]
+        Ec, Mc, ec = E[check], Ma[check], e[check]
         for _ in range(8):
             f = _elliptic_mean(Ec, ec) - Mc
             if not np.any(np.abs(f) > tol):
                 break
             Ec = Ec - f / ((1.0 - ec) + 2.0 * ec * np.sin(0.5 * Ec) ** 2)
-        E.flat[check] = Ec
+        E[check] = Ec
     # E in the turn of M: M + (E - |Mr|) * sign keeps the small difference exact.
-    return M + np.copysign(E - Ma, Mr)
+    E -= Ma
+    np.copysign(E, Mr, out=E)
+    return np.add(M, E, out=out)
 
 
 def _elliptic_blocks(M: Floats, e: Floats, tol: float, threads: int | None = None) -> Floats:
     """``_elliptic`` over blocks of a large array, on ``threads`` (default one per core).
 
-    Each block is solved on its own (the guard's Newton steps run per block). The
-    threads run in a copy of the caller's context, so its ``np.errstate`` holds there.
+    Each block is solved on its own (the guard's Newton steps run per block), into the
+    result, with the work arrays of its thread. The threads take the next block as they
+    finish one (a core that is busy elsewhere then takes fewer), and run in a copy of the
+    caller's context, so its ``np.errstate`` holds there.
     """
     Mf = np.ascontiguousarray(M).reshape(-1)
     ef = np.ascontiguousarray(e).reshape(-1)
     E = np.empty_like(Mf)
     starts = range(0, Mf.size, _BLOCK)
+    _sin_cos_grid()  # built once here, not by two threads at once
 
-    def solve(i: int) -> None:
-        E[i:i + _BLOCK] = _elliptic(Mf[i:i + _BLOCK], ef[i:i + _BLOCK], tol)
+    def solve(blocks: Iterator[int]) -> None:
+        work = _workspace(_BLOCK)
+        for i in blocks:  # shared among the threads: each next() holds the GIL
+            j = i + _BLOCK
+            _elliptic(Mf[i:j], ef[i:j], tol, out=E[i:j], work=work)
 
     threads = min(threads or _cores(), len(starts))
     if threads <= 1:
-        for i in starts:
-            solve(i)
+        solve(iter(starts))
     else:
         import concurrent.futures
 
+        blocks = iter(starts)
         with concurrent.futures.ThreadPoolExecutor(max_workers=threads) as pool:
-            runs = [pool.submit(contextvars.copy_context().run, solve, i) for i in starts]
+            runs = [pool.submit(contextvars.copy_context().run, solve, blocks)
+                    for _ in range(threads)]
             for run in runs:
                 run.result()
     return E.reshape(M.shape)

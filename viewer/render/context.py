@@ -7,6 +7,8 @@ one line that says which packages to install.
 
 from __future__ import annotations
 
+import ctypes
+import functools
 import os
 from typing import Any
 
@@ -42,3 +44,25 @@ def headless_context() -> Any:
     except Exception as err:  # glcontext raises bare Exceptions for a missing libEGL
         raise GLUnavailable(str(err).splitlines()[0] if str(err) else type(err).__name__) \
             from err
+
+
+@functools.lru_cache(maxsize=1)
+def _gl_flush() -> Any:
+    """glFlush from the GL dispatch library shared by EGL and GLX contexts (glvnd)."""
+    for name in ("libOpenGL.so.0", "libGL.so.1"):
+        try:
+            return ctypes.CDLL(name).glFlush
+        except (OSError, AttributeError):
+            continue
+    return None
+
+
+def flush(ctx: Any) -> None:
+    """Hand the commands queued on ``ctx`` (current) to the GL without waiting for them
+    (glFlush; moderngl wraps only glFinish). llvmpipe then rasterises them on its own
+    threads while Python goes on with work that needs no GL, such as placing labels. A
+    GL without the dispatch library simply starts the work later."""
+    del ctx  # the flush applies to the current context, which ``ctx`` is
+    gl_flush = _gl_flush()
+    if gl_flush is not None:
+        gl_flush()

@@ -28,7 +28,7 @@ from numpy.typing import NDArray
 
 from ..geometry.camera import View, view_for
 from ..geometry.fills import FILL_FLOATS
-from ..geometry.frame import MARKER_FLOATS, FrameGeometry, StaticCache, build_frame
+from ..geometry.frame import MARKER_FLOATS, FrameGeometry, StaticCache, build_frame, build_frames
 from ..geometry.labels import PlacedLabel
 from ..geometry.population import (
     PopulationConstants,
@@ -159,6 +159,13 @@ class Renderer:
         """The frame's geometry (viewer.geometry.frame.build_frame with this font)."""
         return build_frame(scene, t_s, view, self.measure, transparent, self.starfield,
                            self.static, overlay, place)
+
+    def geometries(self, scene: Scene, t_s: float, views: Sequence[View],
+                   transparent: bool = False, place: bool = True) -> list[FrameGeometry]:
+        """``geometry`` for each of ``views`` (the faces of a dome master), made together
+        (viewer.geometry.frame.build_frames): the same frames, fewer numpy calls."""
+        return build_frames(scene, t_s, views, self.measure, transparent, self.starfield,
+                            self.static, (), place)
 
     # --- drawing ------------------------------------------------------------------------
 
