@@ -270,3 +270,48 @@ def test_the_vertex_stage_solves_kepler_like_the_float64_reference_for_any_eccen
     # float32 keeps about 1e-7 of a position (3 au at 200 px per au: ~1e-4 px); a solver
     # that had not converged would be off by whole pixels.
     assert np.all(front) and err.max() < 0.01
+
+
+def test_every_body_of_a_population_lands_where_it_would_on_its_own(renderer):
+    """The vertex stage packs four bodies a vertex (and pads the last vertex): each row
+    that comes back is its own body's position, against that body propagated alone
+    through Elements.after and state_from_elements (Vallado 4th ed., alg. 10 COE2RV: an
+    independent path from the population's constants), seen in perspective; a body
+    behind the eye comes back off the image."""
+    from dataclasses import replace
+
+    from viewer.geometry.camera import view_for
+    from viewer.geometry.population import BEHIND_EYE_PX
+    from viewer.scene import Population
+
+    n = 4 * 250 + 3  # not a multiple of four: the padded last vertex is exercised
+    k = np.arange(n)
+    el = Elements(a=(1.0 + (k % 11) * 0.2) * AU_M, e=0.9 * (k % 37) / 36.0,
+                  i=0.4 * np.cos(k), raan=k * 0.9, argp=k * 2.1, nu=k * 0.53, mu=GM_SUN)
+    pop = Population("sample", el, 0.0, (1, 1, 1), 1.0)
+    cam = Camera(projection="perspective", look="angles", elevation_rad=0.5, azimuth_rad=1.1,
+                 distance_m=1.8 * AU_M)  # inside the outer orbits: some bodies behind the eye
+    scene = replace(plain_scene((Body("B", elements(1, 0), show=NOTHING),), cam, (W, H)),
+                    populations=(pop,))
+    t = 41.5 * DAY_S
+    view = view_for(scene, t, (W, H))
+    renderer.target((W, H)).use()
+    got = renderer.population_pixels(pop, renderer.geometry(scene, t, view))
+    seen = behind = 0
+    assert got.shape == (n, 2)
+    for j in [*range(0, n, 7), n - 3, n - 2, n - 1]:
+        one = Elements(float(el.a[j]), float(el.e[j]), float(el.i[j]), float(el.raan[j]),
+                       float(el.argp[j]), float(el.nu[j]), mu=GM_SUN)
+        r, _ = state_from_elements(one.after(t))
+        ref, front = view.project(r)
+        if not front:
+            assert np.all(got[j] == BEHIND_EYE_PX), j
+            behind += 1
+            continue
+        # On and around the image (a body close to the eye's plane lands far off it, where
+        # float32 pixels are coarse). float32 in the shader: about 1e-7 of the scene's
+        # size, far below a pixel here.
+        if np.all(np.abs(ref - (W / 2, H / 2)) < (W, H)):
+            assert np.linalg.norm(got[j] - ref) < 0.01, j
+            seen += 1
+    assert seen > 10 and behind > 3

@@ -8,9 +8,9 @@ buffers are reused between frames, but nothing drawn depends on an earlier frame
 
 Per frame: one clear and about eight draw calls (stars, grid, sector fills, glows,
 lines, markers, one per label size). Populations (100,000 bodies and more) cost one
-transform-feedback pass each (Kepler's equation in the vertex stage, no rasterising):
-their pixels come back and are splatted, on the CPU, into the backdrop that replaces
-the clear. llvmpipe spends about 0.1 us per point primitive but only ns per touched
+transform-feedback pass each (Kepler's equation in the vertex stage, four bodies a vertex, no
+rasterising): their pixels come back and are splatted, on the CPU, into the backdrop that
+replaces the clear. llvmpipe spends about 0.1 us per point primitive but only ns per touched
 pixel in numpy, so this is several times faster than drawing points. No depth buffer
 (draw order does the layering), no MSAA (the shaders anti-alias), premultiplied alpha
 throughout.
@@ -32,6 +32,7 @@ from ..geometry.frame import MARKER_FLOATS, FrameGeometry, StaticCache, build_fr
 from ..geometry.labels import PlacedLabel
 from ..geometry.population import (
     PopulationConstants,
+    SplatScratch,
     composite_population,
     mean_anomaly_at,
     population_constants,
@@ -44,6 +45,9 @@ from .shaders import load_program
 from .text import TEXT_FLOATS, FontCache, GlyphAtlas
 
 UInt8s = NDArray[np.uint8]
+
+#: Bodies of a population per vertex of its transform-feedback stage (shaders/population.vert).
+BODIES_PER_VERTEX = 4
 
 #: Dark halo behind label glyphs (premultiplied in the shader).
 HALO_RGBA = (0.0, 0.0, 0.0, 0.92)
@@ -91,6 +95,9 @@ class _PopulationGPU:
     anomaly: Any
     pixels: Any
     vao: Any
+    mean64: NDArray[np.float64]     # this frame's mean anomalies, float64 then float32
+    mean32: NDArray[np.float32]
+    px: NDArray[np.float32]         # the stage's output, read back: (N, 2)
 
 
 class Renderer:
@@ -112,7 +119,8 @@ class Renderer:
         self.p_fill = load_program(ctx, "fill")
         self.p_marker = load_program(ctx, "marker")
         self.p_points = load_program(ctx, "points")
-        self.p_pop = load_program(ctx, "population", varyings=("v_px_seen",))
+        self.p_pop = load_program(ctx, "population",
+                                  varyings=("v_px01", "v_px23"))
         self.p_backdrop = load_program(ctx, "backdrop")
         self._backdrop_vao = ctx.vertex_array(self.p_backdrop, [])
         self._backdrop_tex: dict[tuple[int, int], Any] = {}
@@ -282,15 +290,16 @@ class Renderer:
         (both are wholly rewritten before use, so no frame sees another's values)."""
         bufs = self._backdrop_np.get((w, h))
         if bufs is None:
-            bufs = (np.empty((h, w, 4), dtype=np.uint8),
-                    np.zeros(w * h + w + 2, dtype=np.float32))
+            bufs = (np.empty((h, w, 4), dtype=np.uint8), SplatScratch())
             self._backdrop_np = {(w, h): bufs}
         return bufs
 
     def population_pixels(self, pop: Population, geom: FrameGeometry) -> Any:
-        """(N, 3) float32 rows (x px, y px, seen) of a population at the frame's time.
+        """(N, 2) float32 rows (x px, y px) of a population at the frame's time; a body
+        behind the eye at ``BEHIND_EYE_PX`` (viewer.geometry.population).
 
         Runs the transform-feedback stage; a framebuffer of this context must be bound.
+        The rows are the renderer's own buffer, valid until the next call.
         """
         gpu = self._populations.get(id(pop))
         if gpu is None or gpu.population is not pop:
@@ -301,7 +310,8 @@ class Renderer:
         c = gpu.constants
         if c.count == 0:
             return None
-        gpu.anomaly.write(mean_anomaly_at(c, geom.t_s).astype(np.float32).tobytes())
+        gpu.mean32[:c.count] = mean_anomaly_at(c, geom.t_s, out=gpu.mean64)
+        gpu.anomaly.write(gpu.mean32)
         v = geom.view
         p = self.p_pop
         p["u_size_px"].value = (float(v.size_px[0]), float(v.size_px[1]))
@@ -314,21 +324,29 @@ class Renderer:
         p["u_focal_px"].value = float(v.focal_px)
         p["u_distance_m"].value = float(v.distance_m)
         p["u_near_m"].value = float(v.near_m)
-        gpu.vao.transform(gpu.pixels, self._mgl.POINTS, vertices=c.count)
-        return np.frombuffer(gpu.pixels.read(), dtype=np.float32).reshape(c.count, 3)
+        gpu.vao.transform(gpu.pixels, self._mgl.POINTS, vertices=len(gpu.mean32) // 4)
+        gpu.pixels.read_into(gpu.px)
+        return gpu.px[:c.count]
 
     def _upload_population(self, pop: Population) -> _PopulationGPU:
         c = population_constants(pop)
-        static = np.empty((c.count, 7), dtype=np.float32)
-        static[:, 0:3] = c.aP_m
-        static[:, 3:6] = c.bQ_m
-        static[:, 6] = c.e
-        sbuf = self.ctx.buffer(static.tobytes() if c.count else b"\0" * 28)
-        abuf = self.ctx.buffer(reserve=max(4 * c.count, 4), dynamic=True)
-        pbuf = self.ctx.buffer(reserve=max(12 * c.count, 12), dynamic=True)
-        vao = self.ctx.vertex_array(self.p_pop, [(sbuf, "3f 3f 1f", "in_aP", "in_bQ", "in_e"),
-                                                 (abuf, "1f", "in_M")])
-        return _PopulationGPU(pop, c, sbuf, abuf, pbuf, vao)
+        # BODIES_PER_VERTEX bodies per vertex (the last vertex padded with still bodies at
+        # the centre): per vertex, each of the seven constants of its bodies side by side.
+        padded = max(1, -(-c.count // BODIES_PER_VERTEX)) * BODIES_PER_VERTEX
+        static = np.zeros((padded, 7), dtype=np.float32)
+        static[:c.count, 0:3] = c.aP_m
+        static[:c.count, 3:6] = c.bQ_m
+        static[:c.count, 6] = c.e
+        grouped = static.reshape(-1, BODIES_PER_VERTEX, 7).transpose(0, 2, 1)
+        sbuf = self.ctx.buffer(np.ascontiguousarray(grouped).tobytes())
+        abuf = self.ctx.buffer(reserve=4 * padded, dynamic=True)
+        pbuf = self.ctx.buffer(reserve=8 * padded, dynamic=True)
+        names = ("in_aPx", "in_aPy", "in_aPz", "in_bQx", "in_bQy", "in_bQz", "in_e")
+        vao = self.ctx.vertex_array(self.p_pop, [(sbuf, " ".join(["4f"] * 7), *names),
+                                                 (abuf, "4f", "in_M")])
+        return _PopulationGPU(pop, c, sbuf, abuf, pbuf, vao, np.empty(c.count),
+                              np.zeros(padded, dtype=np.float32),
+                              np.empty((padded, 2), dtype=np.float32))
 
     def _release_population(self, gpu: _PopulationGPU) -> None:
         gpu.vao.release()
