@@ -25,6 +25,8 @@ uniform vec3 u_face_up[6];
 uniform vec4 u_outside;        // colour outside the dome's circle (premultiplied)
 uniform sampler2D u_atlas;     // the six faces side by side, 3 across and 2 down
 uniform float u_face_px;       // one face's size in texels
+uniform vec2 u_origin;         // where the output starts in the framebuffer (px)
+uniform bool u_rows_up;        // rows counted from the bottom (a window's screen)
 
 out vec4 f_color;
 
@@ -70,12 +72,15 @@ vec4 sample_at(vec2 xy, out bool inside) {
 }
 
 void main() {
-    // gl_FragCoord.y counts from the first row in memory, which is the image's top row.
+    // gl_FragCoord.y counts from the first row in memory, which is the image's top row
+    // (on a screen, from the bottom row: u_rows_up turns it into the same image row).
+    vec2 frag = gl_FragCoord.xy - u_origin;
+    if (u_rows_up) frag.y = u_out_size.y - frag.y;
     vec4 sum = vec4(0.0);
     float n = float(GRID);
     for (int i = 0; i < GRID; ++i) {
         for (int j = 0; j < GRID; ++j) {
-            vec2 px = floor(gl_FragCoord.xy) + (vec2(float(i), float(j)) + 0.5) / n;
+            vec2 px = floor(frag) + (vec2(float(i), float(j)) + 0.5) / n;
             vec2 xy = vec2(2.0 * px.x / u_out_size.x - 1.0, 1.0 - 2.0 * px.y / u_out_size.y);
             bool inside;
             vec4 s = sample_at(xy, inside);

@@ -300,11 +300,13 @@ class ImmersiveRenderer:
 
     def draw(self, scene: Scene, t_s: float, spec: Immersive, camera: Camera | None = None,
              transparent: bool = False, overlay: Sequence[OverlayText] = (),
-             draft: bool = False) -> Any:
+             draft: bool = False, screen: tuple[Any, tuple[int, int]] | None = None) -> Any:
         """Draw what ``render`` returns into the renderer's offscreen framebuffer of the
         output's size (top row first) and return that framebuffer (the window's preview
         shows it without reading it back). ``draft``: through ``draft_rig``'s fewer
-        faces (the window while the picture moves)."""
+        faces (the window while the picture moves). ``screen`` (framebuffer, (x, y)
+        of the picture's bottom-left corner there): draw into that framebuffer instead,
+        rows counted from the bottom, as a window's screen counts them."""
         cam = scene.camera if camera is None else camera
         spec = spec.framed(cam)
         base = view_for(scene, t_s, spec.size_px,
@@ -360,14 +362,18 @@ class ImmersiveRenderer:
         tilt = math.radians(spec.tilt_deg)
         prog["u_tilt_cs"].value = (math.cos(tilt), math.sin(tilt))
         prog["u_outside"].value = (0.0, 0.0, 0.0, 0.0 if transparent else 1.0)
-        fbo = self.renderer.target(spec.size_px)
+        fbo, origin = screen if screen is not None else (self.renderer.target(spec.size_px),
+                                                           (0, 0))
+        prog["u_origin"].value = (float(origin[0]), float(origin[1]))
+        prog["u_rows_up"].value = screen is not None
         fbo.use()
-        self.ctx.viewport = (0, 0, *spec.size_px)
+        self.ctx.viewport = (*origin, *spec.size_px)
         self.ctx.disable(self.renderer._mgl.BLEND)
         vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
         self.ctx.enable(self.renderer._mgl.BLEND)
         if face_text:
-            self.renderer.draw_labels(placed, fbo, spec.size_px, strokes=grid_strokes)
+            self.renderer.draw_labels(placed, fbo, spec.size_px, screen is None,
+                                      grid_strokes, origin)
         flush(self.ctx)
         return fbo
 

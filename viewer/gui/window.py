@@ -460,19 +460,21 @@ class ViewerWindow:
         size = preview_size(self.session.view_mode, (aw, ah))
         spec = Immersive(self.session.view_mode, size,
                          grid=1 if moving or size[1] >= 4096 else 2)
-        # As ShowFrames.at makes the exported frame, without reading it back.
-        shown, overlay = self._show_picture()
-        fbo = self._immersive.draw(shown, self.session.clock.t_s, spec, overlay=overlay,
-                                   draft=moving)
-        self.ctx.screen.use()
-        self.ctx.clear(0.0, 0.0, 0.0, 1.0)
-        # The master is drawn top row first: blit it flipped, centred in the area (GL
-        # counts rows from the bottom of the screen).
+        # Centred in the area; GL counts rows from the bottom of the screen.
         x0 = ax + (aw - size[0]) // 2
         y0 = fh - (ay + (ah + size[1]) // 2)
         #: Where the preview is on the window: (x, y from the top, width, height) px.
         self.preview_rect = (x0, fh - y0 - size[1], size[0], size[1])
-        self._blit = (fbo, size, x0, y0)
+        self.ctx.screen.use()
+        self.ctx.clear(0.0, 0.0, 0.0, 1.0)
+        # As ShowFrames.at makes the exported frame, without reading it back. The draft
+        # goes straight onto the screen; the still frame is the export's own (top row
+        # first), blitted flipped under the panels (_blit_preview).
+        shown, overlay = self._show_picture()
+        fbo = self._immersive.draw(shown, self.session.clock.t_s, spec, overlay=overlay,
+                                   draft=moving,
+                                   screen=(self.ctx.screen, (x0, y0)) if moving else None)
+        self._blit = None if moving else (fbo, size, x0, y0)
 
     def _blit_preview(self) -> None:
         """Copy the preview drawn by _draw_immersive onto the screen. Called after the

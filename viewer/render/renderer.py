@@ -211,13 +211,15 @@ class Renderer:
 
     def draw_labels(self, labels: Sequence[PlacedLabel], framebuffer: Any,
                     size_px: tuple[int, int], top_row_first: bool = True,
-                    strokes: NDArray[np.float64] | None = None) -> None:
+                    strokes: NDArray[np.float64] | None = None,
+                    origin_px: tuple[int, int] = (0, 0)) -> None:
         """Draw stroke vertices, then placed labels (pixels of ``size_px``, y down), over
         what ``framebuffer`` holds: the dome master's and the panorama's text and the
-        dome grid, drawn after the reprojection."""
+        dome grid, drawn after the reprojection (``origin_px``: where that picture starts
+        in the framebuffer)."""
         ctx = self.ctx
         framebuffer.use()
-        ctx.viewport = (0, 0, *size_px)
+        ctx.viewport = (*origin_px, *size_px)
         for prog in (self.p_text, self.p_stroke):
             prog["u_size_px"].value = (float(size_px[0]), float(size_px[1]))
             prog["u_y_sign"].value = -1.0 if top_row_first else 1.0
