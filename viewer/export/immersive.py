@@ -349,13 +349,6 @@ class ImmersiveRenderer:
         atlas.use(location=0)
         prog["u_atlas"].value = 0
         prog["u_face_px"].value = float(size)
-        # The faces' vectors in the camera basis (r, u, f): the shader works there.
-        rfu = np.vstack([base.basis[0], base.basis[1], -base.basis[2]])
-        for row, name in ((2, "u_face_fwd"), (0, "u_face_right"), (1, "u_face_up")):
-            sign = -1.0 if row == 2 else 1.0
-            vecs = [sign * rfu @ views[n].basis[row] if n in views else np.zeros(3)
-                    for n in FACE_NAMES]
-            prog[name].write(np.ascontiguousarray(vecs, dtype="f4").tobytes())
         prog["u_mode"].value = 0 if spec.kind == "dome" else 1
         prog["u_out_size"].value = tuple(float(x) for x in spec.size_px)
         prog["u_half_fov"].value = math.radians(spec.fov_deg) / 2
