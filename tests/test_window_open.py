@@ -254,3 +254,18 @@ def test_the_playing_dome_draft_matches_the_still_preview(display: Display,
     # Upright: mirrored rows would move the lit pixels' centre far from the still's.
     rows = np.nonzero(lit)[0].mean(), np.nonzero(draft.max(axis=2) > 60)[0].mean()
     assert abs(rows[0] - rows[1]) < 2.0
+
+
+@pytest.mark.parametrize(("name", "has_field"), [("demo.toml", False), ("laws.toml", True)])
+def test_the_time_panel_offers_a_rate_only_off_the_show(display: Display, tmp_path: Path,
+                                                        name: str, has_field: bool) -> None:
+    """On a show the clock runs at the show's pace, so the Time panel says so instead of
+    offering a rate that would change nothing (demo.toml has a show; laws.toml has none)."""
+    report = tmp_path / "ui.json"
+    run = subprocess.run([*PERIFOCAL, "open", str(ROOT / "scenes" / name), "--size",
+                          "1600x900", "--quit-after", "3", "--ui-report", str(report)],
+                         env=display.env, capture_output=True, text=True, timeout=180)
+    assert run.returncode == 0, run.stderr
+    ui = read_report(report)
+    assert ui is not None and ui["on_show"] is not has_field, ui
+    assert ("rate" in ui["rects"]) is has_field

@@ -41,12 +41,18 @@ def draw(p: Panels, s: Session, pos: tuple[float, float], size: tuple[float, flo
                     clock.seek_scene(t)
             imgui.end_disabled()
             imgui.same_line()
-        imgui.text("   rate")
-        imgui.same_line()
-        def set_rate(text: str) -> None:
-            clock.rate = parse_quantity(text, "rate", "d/s")
+        if clock.on_show:
+            # On the show the clock runs at the show's pace, not at this rate: say so
+            # rather than offer a field that would change nothing.
+            imgui.text_colored(DIM, "   rate: the show's pace (Timeline panel)")
+        else:
+            imgui.text("   rate")
+            imgui.same_line()
 
-        p.typed_field("rate", rate_text(clock.rate), set_rate, 130, refusal=False)
+            def set_rate(text: str) -> None:
+                clock.rate = parse_quantity(text, "rate", "d/s")
+
+            p.typed_field("rate", rate_text(clock.rate), set_rate, 130, refusal=False)
         imgui.same_line()
         when = ed.scene.epoch.plus_seconds(clock.t_s).iso()
         imgui.text(f"   {when}   ({clock.t_s / DAY_S:+.3f} d since the scene epoch)")
