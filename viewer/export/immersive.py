@@ -321,21 +321,16 @@ class ImmersiveRenderer:
         size = spec.face_px()
         atlas, atlas_fbo = self._atlas(size)
         face_text = []
-        names = [n for n in FACE_NAMES if n in views]
-        geoms = dict(zip(names, self.renderer.geometries(scene, t_s, [views[n] for n in names],
-                                                          transparent, place=False),
-                         strict=True))
-        for i, name in enumerate(FACE_NAMES):
-            view = views.get(name)
-            if view is None:
-                continue
-            geom = geoms[name]
+        drawn = [(i, views[n]) for i, n in enumerate(FACE_NAMES) if n in views]
+        geoms = self.renderer.geometries(scene, t_s, [v for _i, v in drawn], transparent,
+                                         place=False)
+        for (i, view), geom in zip(drawn, geoms, strict=True):
             face_text.append((view, geom.label_requests, geom.label_obstacles))
             geom.grid = emphasised_grid(geom.grid)
             self.renderer.draw(geom, atlas_fbo, top_row_first=False,
                                origin_px=((i % 3) * size, (i // 3) * size))
         # llvmpipe rasterises the faces on its threads while the labels are placed here.
-        flush(self.ctx)
+        flush()
         source = str(scene.source) if scene.source else "scene"
         captions = caption_requests(overlay, scene.dome, omap, self.renderer.measure, source)
         grid_strokes, grid_labels = (dome_grid(omap) if spec.dome_grid or scene.dome.grid
@@ -367,7 +362,7 @@ class ImmersiveRenderer:
         if face_text:
             self.renderer.draw_labels(placed, fbo, spec.size_px, screen is None,
                                       grid_strokes, origin)
-        flush(self.ctx)
+        flush()
         return fbo
 
     def release(self) -> None:

@@ -258,18 +258,7 @@ class StaticCache:
         kept = entry.get("state")
         if kept is not None and kept[0] == t_s:  # type: ignore[index]
             return kept[1], kept[2]  # type: ignore[index]
-        if body.track is None:
-            # As Body.elements_at and Elements.after do, term for term (the same bits),
-            # with the mean anomaly at epoch and the mean motion kept: they do not change.
-            if "mean" not in entry:
-                el = body.elements
-                entry["mean"] = (np.asarray(el.mean_anomaly), np.asarray(el.mean_motion))
-            mean: tuple[Floats, Floats] = entry["mean"]  # type: ignore[assignment]
-            M = mean[0] + mean[1] * np.asarray(t_s - body.epoch_offset_s)
-            r, v = state_from_elements(body.elements.at_mean_anomaly(M))
-            r, v = np.asarray(r, dtype=np.float64), np.asarray(v, dtype=np.float64)
-        else:
-            r, v = _state_at(body, t_s)
+        r, v = _state_at(body, t_s)
         entry["state"] = (t_s, r, v)
         return r, v
 
@@ -341,15 +330,15 @@ def build_frames(scene: Scene, t_s: float, views: Sequence[View], measure: Measu
     owners = (scene.bodies, scene.center, scene.render)
     keys = [(_view_key(v), id(scene.bodies), id(scene.center), id(scene.render),
              scene.length_unit) for v in views]
-    statics = [cache.frame_part(k, owners) if cache is not None else None for k in keys]
-    missing = [i for i, st in enumerate(statics) if st is None]
-    made = _static_parts(scene, [views[i] for i in missing], measure, starfield, cache)
-    for i, part in zip(missing, made, strict=True):
-        statics[i] = part
-        if cache is not None:
+    kept = [cache.frame_part(k, owners) if cache is not None else None for k in keys]
+    missing = [i for i, st in enumerate(kept) if st is None]
+    made = dict(zip(missing, _static_parts(scene, [views[i] for i in missing], measure,
+                                           starfield, cache), strict=True))
+    if cache is not None:
+        for i, part in made.items():
             cache.keep_frame_part(keys[i], owners, part)
-    return [_frame(scene, t_s, v, st, measure, transparent, cache, overlay, place)
-            for v, st in zip(views, statics, strict=True) if st is not None]
+    return [_frame(scene, t_s, v, st or made[i], measure, transparent, cache, overlay, place)
+            for i, (v, st) in enumerate(zip(views, kept, strict=True))]
 
 
 def _frame(scene: Scene, t_s: float, view: View, static: _StaticPart, measure: Measure,

@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, replace
+from functools import cached_property
 from typing import Any
 
 import numpy as np
@@ -158,9 +159,11 @@ class Elements:
 
     # --- dynamics (need mu) -----------------------------------------------------
 
-    @property
+    @cached_property
     def mean_motion(self) -> Any:
-        """Rate of the conic's mean anomaly, rad/s: sqrt(mu/|a|^3), or 2 sqrt(mu/p^3)."""
+        """Rate of the conic's mean anomaly, rad/s: sqrt(mu/|a|^3), or 2 sqrt(mu/p^3).
+        Kept once made (the elements are frozen), as ``mean_anomaly``: a body's state at a
+        new time (``after``) is then one Kepler solve, not three scalar chains."""
         mu = self._mu()
         e = np.asarray(self.e, dtype=np.float64)
         a = np.abs(np.asarray(self.a, dtype=np.float64))
@@ -241,7 +244,7 @@ class Elements:
         with np.errstate(invalid="ignore"):
             return _f(np.where(e > 1.0, 2.0 * np.arcsin(1.0 / np.maximum(e, 1.0)), np.nan))
 
-    @property
+    @cached_property
     def mean_anomaly(self) -> Any:
         """The conic's mean anomaly at ``nu`` (see viewer.orbit.anomaly), rad."""
         return mean_from_true(self.nu, self.e)

@@ -57,12 +57,11 @@ def _gl_flush() -> Any:
     return None
 
 
-def flush(ctx: Any) -> None:
-    """Hand the commands queued on ``ctx`` (current) to the GL without waiting for them
-    (glFlush; moderngl wraps only glFinish). llvmpipe then rasterises them on its own
-    threads while Python goes on with work that needs no GL, such as placing labels. A
-    GL without the dispatch library simply starts the work later."""
-    del ctx  # the flush applies to the current context, which ``ctx`` is
+def flush() -> None:
+    """Hand the commands queued on the current context to the GL without waiting for
+    them (glFlush; moderngl wraps only glFinish). llvmpipe then rasterises them on its
+    own threads while Python goes on with work that needs no GL, such as placing labels.
+    A GL without the dispatch library simply starts the work later."""
     gl_flush = _gl_flush()
     if gl_flush is not None:
         gl_flush()

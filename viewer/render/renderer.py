@@ -28,7 +28,13 @@ from numpy.typing import NDArray
 
 from ..geometry.camera import View, view_for
 from ..geometry.fills import FILL_FLOATS
-from ..geometry.frame import MARKER_FLOATS, FrameGeometry, StaticCache, build_frame, build_frames
+from ..geometry.frame import (
+    MARKER_FLOATS,
+    FrameGeometry,
+    StaticCache,
+    build_frame,
+    build_frames,
+)
 from ..geometry.labels import PlacedLabel
 from ..geometry.population import (
     PopulationConstants,
@@ -326,7 +332,8 @@ class Renderer:
         p["u_focal_px"].value = float(v.focal_px)
         p["u_distance_m"].value = float(v.distance_m)
         p["u_near_m"].value = float(v.near_m)
-        gpu.vao.transform(gpu.pixels, self._mgl.POINTS, vertices=len(gpu.mean32) // 4)
+        gpu.vao.transform(gpu.pixels, self._mgl.POINTS,
+                          vertices=len(gpu.mean32) // BODIES_PER_VERTEX)
         gpu.pixels.read_into(gpu.px)
         return gpu.px[:c.count]
 
