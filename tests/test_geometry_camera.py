@@ -96,3 +96,16 @@ def test_points_behind_a_perspective_eye_are_not_in_front():
     view = view_for(_scene(cam), 0.0)
     _, front = view.project(np.array([[0, 0, 3 * AU_M], [0, 0, 1 * AU_M]]))
     assert list(front) == [False, True]
+
+
+def test_camera_px_of_camera_coordinates_is_project_of_the_world_points():
+    # The frame builder projects a body once and keeps its camera coordinates
+    # (frame._seen_px): the pixels must be project's own, bit for bit, in front and behind.
+    cam = Camera(projection="perspective", look="angles", elevation_rad=0.4, azimuth_rad=1.0,
+                 distance_m=6 * AU_M, fov_rad=45 * DEG)
+    view = view_for(_scene(cam), 0.0)
+    pts = np.random.default_rng(3).normal(scale=8 * AU_M, size=(50, 3))
+    px, front = view.project(pts)
+    px2, front2 = view.camera_px(view.to_camera(pts))
+    assert not front.all() and front.any()
+    assert np.array_equal(px, px2) and np.array_equal(front, front2)

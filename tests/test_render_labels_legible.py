@@ -156,3 +156,19 @@ def test_labels_stay_whole_inside_the_area_the_panels_leave_free(
         width, ascent, descent = renderer.measure(lab.text, lab.size_px)
         assert free[0] <= lab.x_px and lab.x_px + width <= free[0] + free[2], lab
         assert free[1] <= lab.y_px - ascent and lab.y_px + descent <= free[1] + free[3], lab
+
+
+def test_kept_pen_positions_are_the_fonts_own_and_stay_bounded() -> None:
+    # Pen positions are kept by text (labels repeat every frame); a clock's text is new
+    # every frame, so the store is bounded. Kept or not, the advance is Pillow's length
+    # of the text at that size (pair kerning included: it is Pillow's own getlength).
+    from viewer.render import text as text_mod
+
+    at = text_mod.GlyphAtlas(16)
+    first = at.pen_positions(TEXT)
+    assert at.pen_positions(TEXT) is first
+    assert first[-1] == pytest.approx(load_font(16).getlength(TEXT), abs=1e-6)
+    for k in range(text_mod._PENS_KEPT + 10):
+        at.pen_positions(f"T+{k} d")
+    assert len(at._pens) <= text_mod._PENS_KEPT
+    assert at.pen_positions(TEXT) == first

@@ -48,6 +48,10 @@ PANO_ROW_DEG = {"bottom": -30.0, "center": 0.0, "top": 30.0}
 PANO_SIDE_DEG = 40.0
 
 
+#: Where OutputMap.outside samples a box along each side (a 5 x 5 grid).
+_SAMPLE_AT = np.linspace(0.0, 1.0, 5)
+
+
 @dataclass(frozen=True)
 class OutputMap:
     """Where camera-basis directions land on one output (a dome master or a panorama)."""
@@ -80,7 +84,7 @@ class OutputMap:
         """Area of each box (C, 4: x0, y0, x1, y1) off the output, from a 5 x 5 sample."""
         b = np.asarray(boxes, dtype=np.float64).reshape(-1, 4)
         w, h = self.size_px
-        u = np.linspace(0.0, 1.0, 5)
+        u = _SAMPLE_AT
         xs = b[:, None, None, 0] + (b[:, None, None, 2] - b[:, None, None, 0]) * u[None, :, None]
         ys = b[:, None, None, 1] + (b[:, None, None, 3] - b[:, None, None, 1]) * u[None, None, :]
         if self.kind == "dome":

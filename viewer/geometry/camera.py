@@ -140,7 +140,10 @@ class View:
 
     def project(self, world_m: ArrayLike) -> tuple[Floats, NDArray[np.bool_]]:
         """(pixels (..., 2), visible-in-depth mask) of world points (m)."""
-        cam = self.to_camera(world_m)
+        return self.camera_px(self.to_camera(world_m))
+
+    def camera_px(self, cam: Floats) -> tuple[Floats, NDArray[np.bool_]]:
+        """``project`` of points already in camera coordinates."""
         front = self.in_front(cam)
         safe = cam.copy()
         if self.perspective:

@@ -355,6 +355,7 @@ def _frame(scene: Scene, t_s: float, view: View, static: _StaticPart, measure: M
     labels = list(static.labels)
     obstacles = list(static.obstacles)
     occluder = static.occluder
+    centre_cam = _centre_cam(view, occluder) if occluder is not None else None
     v_ref = _reference_speed(scene)
     for k, body in enumerate(scene.bodies):
         show = body.show
@@ -364,10 +365,9 @@ def _frame(scene: Scene, t_s: float, view: View, static: _StaticPart, measure: M
             continue
         col = body.color
         r, v = cache.state(body, t_s) if cache is not None else _state_at(body, t_s)
-        q, f = _seen_px(view, r, occluder)
+        q, f, cam = _seen_px(view, r, occluder, centre_cam)
         if not f:
             continue
-        cam = view.to_camera(r.reshape(1, 3))
         mpp = float(view.metres_per_px(cam)[0])
         m_r = BODY_MARKER_PX * hs
         if body.radius_m:
@@ -430,17 +430,25 @@ def _overlay_label(text: OverlayText, measure: Measure, size: tuple[int, int],
     return LabelRequest(text.text, (x, y), 0.0, px, text.rgba, -1, at_px=(x, y))
 
 
-def _seen_px(view: View, p: Floats, occluder: tuple[Floats, float] | None
-             ) -> tuple[Floats, bool]:
-    """Pixels of a world point and whether it can be seen (in front, not hidden)."""
+def _seen_px(view: View, p: Floats, occluder: tuple[Floats, float] | None,
+             centre_cam: Floats | None = None) -> tuple[Floats, bool, Floats]:
+    """Pixels of a world point, whether it can be seen (in front, not hidden) and its
+    camera coordinates (1, 3). ``centre_cam``: the occluder's centre in camera
+    coordinates, if already known (it is the same for every point of a view)."""
     pw = np.asarray(p, dtype=np.float64).reshape(1, 3)
-    q, f = view.project(pw)
+    cam = view.to_camera(pw)
+    q, f = view.camera_px(cam)
     seen = bool(f[0])
     if seen and occluder is not None and np.any(pw != 0.0):
-        cam = view.to_camera(pw)
-        centre = view.to_camera(occluder[0].reshape(1, 3))[0]
-        seen = not bool(hidden_by_sphere(view, cam, centre, occluder[1])[0])
-    return q[0], seen
+        if centre_cam is None:
+            centre_cam = _centre_cam(view, occluder)
+        seen = not bool(hidden_by_sphere(view, cam, centre_cam, occluder[1])[0])
+    return q[0], seen, cam
+
+
+def _centre_cam(view: View, occluder: tuple[Floats, float]) -> Floats:
+    """The occluding sphere's centre in the view's camera coordinates."""
+    return view.to_camera(occluder[0].reshape(1, 3))[0]
 
 
 def _static_parts(scene: Scene, views: Sequence[View], measure: Measure,
@@ -553,8 +561,11 @@ def _static_steps(scene: Scene, view: View, measure: Measure, starfield: Starfie
                                    c_r + 2.0 * hs, LABEL_PX * hs,
                                    _rgba(_lighten(center.color, 0.45)), 0))
 
+    centre_cam = _centre_cam(view, occluder) if occluder is not None else None
+
     def px_of(p: Floats) -> tuple[Floats, bool]:
-        return _seen_px(view, p, occluder)
+        q, seen, _cam = _seen_px(view, p, occluder, centre_cam)
+        return q, seen
 
     # --- sectors: fans from the occupied focus, edges inside them -----------------------
     for k, arcs in sector_arcs.items():

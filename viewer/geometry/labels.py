@@ -30,6 +30,8 @@ _PLACES = ((1, 0), (1, -1), (1, 1), (-1, 0), (-1, -1), (-1, 1), (0, -1), (0, 1))
 _RING_OF = np.repeat(np.arange(_RINGS), len(_PLACES)).astype(np.float64)
 _DX = np.tile(np.array([p[0] for p in _PLACES], dtype=np.float64), _RINGS)
 _DY = np.tile(np.array([p[1] for p in _PLACES], dtype=np.float64), _RINGS)
+# How far above or below its anchor a label's box starts, per unit of its gap.
+_LIFT = np.where(_DX != 0, 0.7, 1.0)
 
 
 @dataclass(frozen=True)
@@ -108,7 +110,9 @@ def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tu
     if outside is None:
         outside = outside_of((0.0, 0.0, float(size_px[0]), float(size_px[1])))
     placed: list[PlacedLabel] = []
-    boxes: list[Box] = []
+    # Boxes taken so far: placed labels (in order), then the obstacles.
+    taken = np.array(obstacles, dtype=np.float64).reshape(-1, 4)
+    n_placed = 0
     order = sorted(range(len(requests)), key=lambda k: requests[k].priority)
     for k in order:
         req = requests[k]
@@ -118,32 +122,43 @@ def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tu
         if req.at_px is not None:
             x, y = req.at_px
             placed.append(PlacedLabel(req.text, x, y, req.size_px, req.rgba))
-            boxes.append((x - _PAD_PX, y - ascent - _PAD_PX, x + width + _PAD_PX,
-                          y + descent + _PAD_PX))
+            taken = _taken_with(taken, n_placed, (x - _PAD_PX, y - ascent - _PAD_PX,
+                                                  x + width + _PAD_PX, y + descent + _PAD_PX))
+            n_placed += 1
             continue
         ax, ay = req.anchor_px
         text_h = ascent + descent
         gap = req.clearance_px + (0.25 + 1.1 * _RING_OF) * req.size_px
         # The text box's near edge sits ``gap`` from the anchor in each direction.
-        xs = np.where(_DX > 0, ax + gap, np.where(_DX < 0, ax - gap - width, ax - 0.5 * width))
-        lift = gap * np.where(_DX != 0, 0.7, 1.0)
-        top = np.where(_DY < 0, ay - lift - text_h,
-                       np.where(_DY > 0, ay + lift, ay - 0.5 * text_h))
-        cand = np.stack([xs - _PAD_PX, top - _PAD_PX, xs + width + _PAD_PX,
-                         top + text_h + _PAD_PX], axis=1)
-        taken = np.array(boxes + list(obstacles), dtype=np.float64).reshape(-1, 4)
-        score = _overlaps(cand, taken).sum(axis=1) + 4.0 * outside(cand)
+        cand = np.empty((len(gap), 4))
+        cand[:, 0] = np.where(_DX > 0, ax + gap, np.where(_DX < 0, ax - gap - width,
+                                                          ax - 0.5 * width))
+        lift = gap * _LIFT
+        cand[:, 1] = np.where(_DY < 0, ay - lift - text_h,
+                              np.where(_DY > 0, ay + lift, ay - 0.5 * text_h))
+        cand[:, 2] = cand[:, 0] + width + _PAD_PX
+        cand[:, 3] = cand[:, 1] + text_h + _PAD_PX
+        cand[:, :2] -= _PAD_PX
+        off = outside(cand)
+        score = _overlaps(cand, taken).sum(axis=1) + 4.0 * off
         clear = np.flatnonzero(score == 0.0)
         pick = int(clear[0]) if clear.size else int(np.argmin(score))
         if score[pick] > 0.0 and not req.required:
             continue
         box_a = cand[pick].copy()
         area = (box_a[2] - box_a[0]) * (box_a[3] - box_a[1])
-        if outside(box_a[None, :])[0] >= area:
+        if off[pick] >= area:
             continue  # wholly off the image: nothing to show
-        if keep_in is not None and outside(box_a[None, :])[0] > 0.0:
+        if keep_in is not None and off[pick] > 0.0:
             box_a += _slide_in(box_a, keep_in)
         placed.append(PlacedLabel(req.text, float(box_a[0] + _PAD_PX),
                                   float(box_a[1] + _PAD_PX + ascent), req.size_px, req.rgba))
-        boxes.append(tuple(float(v) for v in box_a))  # type: ignore[arg-type]
+        taken = _taken_with(taken, n_placed, tuple(float(v) for v in box_a))
+        n_placed += 1
     return placed
+
+
+def _taken_with(taken: NDArray[np.float64], n_placed: int, box: tuple[float, ...]
+                ) -> NDArray[np.float64]:
+    """``taken`` with ``box`` after its first ``n_placed`` rows (the labels placed)."""
+    return np.concatenate([taken[:n_placed], np.array([box]), taken[n_placed:]])

@@ -55,6 +55,10 @@ class Glyph:
     advance: float
 
 
+#: Texts whose pen positions an atlas keeps (GlyphAtlas.pen_positions).
+_PENS_KEPT = 4096
+
+
 class GlyphAtlas:
     """Every glyph of one pixel size, packed into one two-channel image."""
 
@@ -103,6 +107,7 @@ class GlyphAtlas:
         self.ascent = float(-by0)
         self.descent = float(by1)
         self._kern: dict[str, float] = {}
+        self._pens: dict[str, tuple[float, ...]] = {}
 
     def has(self, text: str) -> bool:
         return all(ch in self.glyphs for ch in text)
@@ -115,8 +120,17 @@ class GlyphAtlas:
             self._kern[key] = k
         return k
 
-    def pen_positions(self, text: str) -> list[float]:
-        """Pen x (px) of each character from the start, with pair kerning."""
+    def pen_positions(self, text: str) -> tuple[float, ...]:
+        """Pen x (px) of each character from the start, with pair kerning, and the
+        advance of the whole text last (kept by text: labels repeat every frame)."""
+        kept = self._pens.get(text)
+        if kept is None:
+            if len(self._pens) >= _PENS_KEPT:  # a clock's text is new every frame
+                self._pens.clear()
+            kept = self._pens[text] = tuple(self._pen_positions(text))
+        return kept
+
+    def _pen_positions(self, text: str) -> list[float]:
         out = []
         x = 0.0
         prev = None
