@@ -4,6 +4,8 @@
 // in the camera basis (r image right, u image up, f eye toward target), whose axes the
 // six faces look along (see sky below). Each output pixel averages an n x n grid of
 // sub-pixel samples (supersampling), each bilinear from the face that sees it.
+// With RECORD_LUT (and GRID 1) it writes each pixel's atlas point instead, into a
+// two-channel float target that reproject_lut.frag then reads (the same bits, less work).
 uniform int u_mode;            // 0 dome, 1 panorama
 uniform vec2 u_out_size;       // output pixels (W, H)
 uniform float u_half_fov;      // dome: FOV / 2, radians
@@ -27,11 +29,12 @@ uniform bool u_rows_up;        // rows counted from the bottom (a window's scree
 
 out vec4 f_color;
 
-// One fetch from the atlas (a branch per face would cost llvmpipe a fetch per face).
-// uv is kept half a texel inside the face so bilinear never reads its neighbour.
-vec4 face_sample(vec2 tile, vec2 uv) {
+// Where in the atlas a face's plane point is: one fetch there (a branch per face would
+// cost llvmpipe a fetch per face). uv is kept half a texel inside the face so bilinear
+// never reads its neighbour.
+vec2 atlas_at(vec2 tile, vec2 uv) {
     vec2 inner = clamp(uv, 0.5 / u_face_px, 1.0 - 0.5 / u_face_px);
-    return textureLod(u_atlas, (tile + inner) / vec2(3.0, 2.0), 0.0);
+    return (tile + inner) / vec2(3.0, 2.0);
 }
 
 // c: direction in the camera basis. The faces are the basis axes (CUBE_FACES in
@@ -41,7 +44,7 @@ vec4 face_sample(vec2 tile, vec2 uv) {
 // face, with its tile in the atlas, llvmpipe runs this a quarter faster than dot
 // products with vectors picked from uniform arrays (the same bits: those vectors are
 // the axes to within 1e-16).
-vec4 sky(vec3 c) {
+vec2 sky(vec3 c) {
     vec3 a = abs(c);
     vec2 tile;
     float most;
@@ -56,16 +59,16 @@ vec4 sky(vec3 c) {
         if (c.y > 0.0) { tile = vec2(1.0, 1.0); most = c.y; plane = vec2(c.x, -c.z); }
         else { tile = vec2(2.0, 1.0); most = -c.y; plane = vec2(c.x, c.z); }
     }
-    return face_sample(tile, (plane / most) * 0.5 + 0.5);
+    return atlas_at(tile, (plane / most) * 0.5 + 0.5);
 }
 
-// x right, y up, both in (-1, 1) over the output image.
-vec4 sample_at(vec2 xy, out bool inside) {
+// The atlas point seen at xy (x right, y up, both in (-1, 1) over the output image).
+vec2 atlas_point(vec2 xy, out bool inside) {
     inside = true;
     vec3 c;  // direction in the camera basis (r, u, f)
     if (u_mode == 0) {
         float rho = length(xy);
-        if (rho > 1.0) { inside = false; return vec4(0.0); }
+        if (rho > 1.0) { inside = false; return vec2(0.0); }
         float theta = rho * u_half_fov;
         // (sin(theta) cos(phi), sin(theta) sin(phi)) without the angle phi itself.
         vec2 radial = rho > 0.0 ? xy * (sin(theta) / rho) : vec2(0.0);
@@ -91,8 +94,15 @@ void main() {
             vec2 px = floor(frag) + (vec2(float(i), float(j)) + 0.5) / n;
             vec2 xy = vec2(2.0 * px.x / u_out_size.x - 1.0, 1.0 - 2.0 * px.y / u_out_size.y);
             bool inside;
-            vec4 s = sample_at(xy, inside);
-            sum += inside ? s : u_outside;
+            vec2 at = atlas_point(xy, inside);
+#ifdef RECORD_LUT
+            // The atlas point itself, for reproject_lut.frag (GRID 1): -1 off the output.
+            sum = vec4(inside ? at : vec2(-1.0), 0.0, 0.0);
+#else
+            vec4 s = u_outside;
+            if (inside) s = textureLod(u_atlas, at, 0.0);
+            sum += s;
+#endif
         }
     }
     f_color = sum / (n * n);

@@ -160,3 +160,72 @@ def test_a_draft_of_the_demo_dome_looks_like_its_master(immersive) -> None:
     assert np.count_nonzero(lit) > 2000  # the test sees the orbits, not an empty sky
     assert abs(np.count_nonzero(draft[..., :3].sum(axis=2) > 120) - np.count_nonzero(lit)) \
         < 0.05 * np.count_nonzero(lit)
+
+
+def _demo_scene():
+    from importlib import resources
+
+    from viewer.scene import load_scene
+
+    return load_scene(str(resources.files("viewer") / "scenes" / "demo.toml"))
+
+
+@pytest.mark.parametrize(("kind", "size", "fov", "tilt", "transparent"),
+                         [("dome", (640, 640), 180.0, 0.0, False),
+                          ("dome", (600, 600), 200.0, 20.0, True),
+                          ("panorama", (800, 400), 180.0, 0.0, False)])
+def test_a_sequence_through_the_table_of_atlas_points_is_the_direct_frames(
+        immersive, kind, size, fov, tilt, transparent) -> None:
+    """From its second frame, one sample per pixel reprojects through the table that
+    reproject.frag wrote of each pixel's atlas point (reproject_lut.frag): every frame
+    must be the direct path's, byte for byte (a fresh renderer draws each one direct)."""
+    from viewer.export.immersive import ImmersiveRenderer
+
+    scene = _demo_scene()
+    spec = Immersive(kind, size, fov, tilt, grid=1)
+    kept = ImmersiveRenderer(immersive.renderer)
+    try:
+        for k in range(3):
+            t = 3e5 * k
+            seq = kept.render(scene, t, spec, transparent=transparent).copy()
+            fresh = ImmersiveRenderer(immersive.renderer)
+            try:
+                direct = fresh.render(scene, t, spec, transparent=transparent)
+                assert not fresh._tables or all(v is None for v in fresh._tables.values())
+                assert np.array_equal(seq, direct), f"frame {k}"
+            finally:
+                fresh.release()
+        assert any(v is not None for v in kept._tables.values())  # the table was used
+        lit = np.count_nonzero(seq[..., :3].sum(axis=2) > 120)
+        assert lit > 1000  # a picture with orbits in it, not an empty sky
+    finally:
+        kept.release()
+
+
+def test_the_drafts_table_on_a_screen_puts_the_direct_pixels_in_place(immersive) -> None:
+    """The window's draft goes onto its screen at an offset, rows counted from the
+    bottom: through the table it is the same picture as the direct draft, in place."""
+    from viewer.export.immersive import ImmersiveRenderer
+
+    scene = _demo_scene()
+    n = 400
+    spec = Immersive("dome", (n, n), grid=1)
+    r = immersive.renderer
+    screen = r.ctx.framebuffer(color_attachments=[r.ctx.texture((700, 520), 4)])
+    kept = ImmersiveRenderer(r)
+    try:
+        for k in range(3):
+            screen.clear(0.0, 0.0, 0.0, 1.0)
+            kept.draw(scene, 1e5 * k, spec, draft=True, screen=(screen, (120, 60)))
+            shot = np.frombuffer(screen.read(components=4), np.uint8).reshape(520, 700, 4)
+            on_screen = shot[60:60 + n, 120:120 + n][::-1]  # GL rows from the bottom
+            fresh = ImmersiveRenderer(r)
+            try:
+                direct = r.read(fresh.draw(scene, 1e5 * k, spec, draft=True), (n, n))
+                assert np.array_equal(on_screen[..., :3], direct[..., :3]), f"frame {k}"
+            finally:
+                fresh.release()
+        assert any(v is not None for v in kept._tables.values())
+    finally:
+        kept.release()
+        screen.release()

@@ -127,12 +127,15 @@ class Immersive:
 
     def memory_bytes(self, bits: int = 8) -> int:
         """What one frame holds at once: the faces' atlas, the output framebuffer, the
-        frame read back, and the 16-bit copy and PNG rows when ``bits`` is 16."""
+        frame read back, the table of atlas points at one sample per pixel
+        (reproject_lut.frag: two float32 per pixel), and the 16-bit copy and PNG rows
+        when ``bits`` is 16."""
         w, h = self.size_px
         f = self.face_px()
         out = w * h * 4
         per_png = out * 4 if bits == 16 else out * 3 // 2
-        return 6 * f * f * 4 + 2 * out + per_png + BASE_BYTES
+        table = 2 * out if self.grid == 1 else 0
+        return 6 * f * f * 4 + 2 * out + table + per_png + BASE_BYTES
 
     def check_memory(self, bits: int = 8, available: int | None = None) -> None:
         """Refuse (UserInputError on --size) a master this machine cannot hold."""
@@ -258,6 +261,11 @@ def emphasised_grid(grid: NDArray[np.float64]) -> NDArray[np.float64]:
     return out
 
 
+#: Outputs whose table of atlas points ImmersiveRenderer keeps (the window's draft and
+#: its still preview; an export has one).
+TABLES_KEPT = 2
+
+
 class ImmersiveRenderer:
     """Dome masters and panoramas through one Renderer; GL objects kept between frames."""
 
@@ -266,9 +274,10 @@ class ImmersiveRenderer:
         self.uniform_grid = uniform_grid
         self.renderer = renderer
         self.ctx = renderer.ctx
-        self._programs: dict[int, tuple[Any, Any]] = {}
+        self._programs: dict[int | str, tuple[Any, Any]] = {}
         self._faces: dict[int, tuple[Any, Any]] = {}
         self._out: dict[tuple[int, int], Any] = {}
+        self._tables: dict[tuple[object, ...], tuple[Any, Any] | None] = {}
 
     def _program(self, grid: int) -> tuple[Any, Any]:
         """The reprojection program and its vertex array for n x n samples (kept)."""
@@ -279,6 +288,62 @@ class ImmersiveRenderer:
                 prog["u_grid"].value = int(grid)
             self._programs[grid] = (prog, self.ctx.vertex_array(prog, []))
         return self._programs[grid]
+
+    @staticmethod
+    def _direct_uniforms(prog: Any, spec: Immersive, face_px: int) -> None:
+        """The uniforms of reproject.frag that define the output's mapping."""
+        prog["u_face_px"].value = float(face_px)
+        prog["u_mode"].value = 0 if spec.kind == "dome" else 1
+        prog["u_out_size"].value = tuple(float(x) for x in spec.size_px)
+        prog["u_half_fov"].value = math.radians(spec.fov_deg) / 2
+        tilt = math.radians(spec.tilt_deg)
+        prog["u_tilt_cs"].value = (math.cos(tilt), math.sin(tilt))
+
+    def _table_program(self) -> tuple[Any, Any]:
+        """reproject_lut.frag's program and vertex array (kept)."""
+        if "table" not in self._programs:
+            prog = load_program(self.ctx, "reproject", "reproject_lut")
+            self._programs["table"] = (prog, self.ctx.vertex_array(prog, []))
+        return self._programs["table"]
+
+    def _table(self, spec: Immersive, face_px: int) -> Any:
+        """The texture of each output pixel's atlas point for ``spec`` at one sample per
+        pixel, or None. A sequence of frames of one output maps every pixel the same
+        way, so from its second frame the reprojection only fetches (reproject_lut.frag,
+        the same pixels, bit for bit). The first frame of an output is drawn directly,
+        so a single still costs no more; the table is written at the second. Two
+        outputs are kept (the window's draft and its still preview)."""
+        if spec.grid != 1 or self.uniform_grid:
+            return None
+        key = (spec.kind, spec.size_px, spec.fov_deg, spec.tilt_deg, face_px)
+        if key not in self._tables:
+            while len(self._tables) >= TABLES_KEPT:
+                self._release_table(next(iter(self._tables)))
+            self._tables[key] = None  # seen once
+            return None
+        kept = self._tables[key]
+        if kept is None:
+            tex = self.ctx.texture(spec.size_px, 2, dtype="f4")
+            fbo = self.ctx.framebuffer(color_attachments=[tex])
+            if "record" not in self._programs:
+                prog = load_program(self.ctx, "reproject",
+                                    defines={"GRID": 1, "RECORD_LUT": 1})
+                self._programs["record"] = (prog, self.ctx.vertex_array(prog, []))
+            prog, vao = self._programs["record"]
+            self._direct_uniforms(prog, spec, face_px)
+            prog["u_origin"].value = (0.0, 0.0)
+            prog["u_rows_up"].value = False
+            fbo.use()
+            self.ctx.viewport = (0, 0, *spec.size_px)
+            vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
+            self._tables[key] = kept = (tex, fbo)
+        return kept[0]
+
+    def _release_table(self, key: tuple[object, ...]) -> None:
+        kept = self._tables.pop(key)
+        if kept is not None:
+            kept[1].release()
+            kept[0].release()
 
     def _atlas(self, size: int) -> tuple[Any, Any]:
         """The faces' texture: six tiles of size x size, 3 across, 2 down (kept)."""
@@ -342,21 +407,24 @@ class ImmersiveRenderer:
             placed = place_labels(captions + grid_labels + requests, self.renderer.measure,
                                   spec.size_px, boxes, omap.outside)
         atlas.use(location=0)
-        prog["u_atlas"].value = 0
-        prog["u_face_px"].value = float(size)
-        prog["u_mode"].value = 0 if spec.kind == "dome" else 1
-        prog["u_out_size"].value = tuple(float(x) for x in spec.size_px)
-        prog["u_half_fov"].value = math.radians(spec.fov_deg) / 2
-        tilt = math.radians(spec.tilt_deg)
-        prog["u_tilt_cs"].value = (math.cos(tilt), math.sin(tilt))
-        prog["u_outside"].value = (0.0, 0.0, 0.0, 0.0 if transparent else 1.0)
+        outside = (0.0, 0.0, 0.0, 0.0 if transparent else 1.0)
         fbo, origin = screen if screen is not None else (self.renderer.target(spec.size_px),
                                                            (0, 0))
+        self.ctx.disable(self.renderer._mgl.BLEND)
+        table = self._table(spec, size)
+        if table is not None:
+            prog, vao = self._table_program()
+            table.use(location=1)
+            prog["u_lut"].value = 1
+        else:
+            self._direct_uniforms(prog, spec, size)
+        prog["u_atlas"].value = 0
+        prog["u_outside"].value = outside
+        prog["u_out_size"].value = tuple(float(x) for x in spec.size_px)
         prog["u_origin"].value = (float(origin[0]), float(origin[1]))
         prog["u_rows_up"].value = screen is not None
         fbo.use()
         self.ctx.viewport = (*origin, *spec.size_px)
-        self.ctx.disable(self.renderer._mgl.BLEND)
         vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
         self.ctx.enable(self.renderer._mgl.BLEND)
         if face_text:
@@ -374,3 +442,5 @@ class ImmersiveRenderer:
             vao.release()
             prog.release()
         self._programs.clear()
+        for key in list(self._tables):
+            self._release_table(key)
