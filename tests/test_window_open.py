@@ -269,3 +269,38 @@ def test_the_time_panel_offers_a_rate_only_off_the_show(display: Display, tmp_pa
     ui = read_report(report)
     assert ui is not None and ui["on_show"] is not has_field, ui
     assert ("rate" in ui["rects"]) is has_field
+
+
+_WINDOW_AFTER_A_HEADLESS_RENDER = """
+import sys
+import numpy as np
+from viewer.gui.editor import Editor
+from viewer.gui.window import ViewerWindow
+from viewer.render.frame import FrameSource
+from viewer.scene import load_scene
+with FrameSource(load_scene(sys.argv[1]), (320, 180)) as frames:  # a headless context
+    before = frames.frame(0)
+win = ViewerWindow(Editor.open(sys.argv[1]), size=(1280, 720))
+win.session.view_mode = "dome"
+for _ in range(3):  # the still preview: the export's frame, blitted
+    win.window.dispatch_events(); win.draw(); win.window.flip()
+win.draw()
+x, y, w, h = win.preview_rect
+np.save(sys.argv[2], win.screenshot()[y:y + h, x:x + w, :3])
+win.close()
+"""
+
+
+def test_a_window_after_a_headless_render_in_the_same_process_draws_its_preview(
+        display: Display, tmp_path: Path) -> None:
+    """A headless (EGL) context released before a window is made (as `perifocal bench`
+    does, part after part) must leave no context current: the window's GL calls used to
+    land in the released context, and its dome preview failed with an incomplete
+    framebuffer (render.context.release_context)."""
+    out = tmp_path / "preview.npy"
+    run = subprocess.run([sys.executable, "-c", _WINDOW_AFTER_A_HEADLESS_RENDER,
+                          str(ROOT / "scenes" / "demo.toml"), str(out)],
+                         env=display.env, capture_output=True, text=True, timeout=180)
+    assert run.returncode == 0, run.stderr
+    preview = np.load(out)
+    assert (preview.max(axis=2) > 60).sum() > 2000  # the orbits and labels are drawn

@@ -328,6 +328,8 @@ class _Frames:
         return self
 
     def __exit__(self, *exc: object) -> None:
+        from ..render.context import release_context
+
         self.show.close()
         self.renderer.release()
-        self.ctx.release()
+        release_context(self.ctx)

@@ -91,7 +91,7 @@ def _matplotlib_sequence(scene: Any, frames: range, folder: Path) -> None:
 def _ours_sequence(scene: Any, frames: range, folder: Path) -> None:
     import io
 
-    from ..render.context import headless_context
+    from ..render.context import headless_context, release_context
     from ..render.renderer import Renderer
     from .frames import render_sequence
 
@@ -102,7 +102,7 @@ def _ours_sequence(scene: Any, frames: range, folder: Path) -> None:
                         folder, stream=io.StringIO())
     finally:
         renderer.release()
-        ctx.release()
+        release_context(ctx)
 
 
 def _marginal(fn: Any, scene: Any, short: int, long: int) -> float:
@@ -120,7 +120,7 @@ def bench_export(quick: bool = False) -> dict[str, Any]:
     import io
 
     from ..geometry.camera import view_for
-    from ..render.context import headless_context
+    from ..render.context import headless_context, release_context
     from ..render.renderer import Renderer
     from .frames import render_video
     from .immersive import Immersive, ImmersiveRenderer
@@ -225,6 +225,6 @@ def bench_export(quick: bool = False) -> dict[str, Any]:
             immersive.release()
     finally:
         renderer.release()
-        ctx.release()
+        release_context(ctx)
     return {"title": "export: busy scene (8 orbits x 12 sectors), 1920x1080", "rows": rows,
             "verdicts": verdicts}

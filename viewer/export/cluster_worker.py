@@ -82,7 +82,9 @@ class RenderSlot(WorkerPlugin):
         if self._renderer is not None:
             self._renderer.release()
         if self._ctx is not None:
-            self._ctx.release()
+            from ..render.context import release_context
+
+            release_context(self._ctx)
 
     def teardown(self, worker: Any = None) -> None:
         self._thread.submit(self._close).result()

@@ -47,6 +47,32 @@ def headless_context() -> Any:
 
 
 @functools.lru_cache(maxsize=1)
+def _egl() -> Any:
+    """libEGL's eglGetCurrentDisplay, eglGetCurrentContext and eglMakeCurrent, or None."""
+    try:
+        egl = ctypes.CDLL("libEGL.so.1")
+    except OSError:
+        return None
+    egl.eglGetCurrentDisplay.restype = ctypes.c_void_p
+    egl.eglGetCurrentContext.restype = ctypes.c_void_p
+    egl.eglMakeCurrent.argtypes = [ctypes.c_void_p] * 4
+    return egl
+
+
+def release_context(ctx: Any) -> None:
+    """Release a ``headless_context`` and leave no EGL context current on this thread.
+
+    moderngl destroys the EGL context but leaves it current, and a context destroyed
+    while current lives on until unbound: a window made afterwards in the same process
+    (pyglet, GLX) then had its GL calls land in that dead context, and its offscreen
+    framebuffers were incomplete there."""
+    ctx.release()
+    egl = _egl()
+    if egl is not None and egl.eglGetCurrentContext():
+        egl.eglMakeCurrent(egl.eglGetCurrentDisplay(), None, None, None)
+
+
+@functools.lru_cache(maxsize=1)
 def _gl_flush() -> Any:
     """glFlush from the GL dispatch library shared by EGL and GLX contexts (glvnd)."""
     for name in ("libOpenGL.so.0", "libGL.so.1"):

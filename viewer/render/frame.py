@@ -16,7 +16,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..scene.model import Camera, Scene
-from .context import headless_context
+from .context import headless_context, release_context
 from .renderer import Renderer
 
 UInt8s = NDArray[np.uint8]
@@ -48,7 +48,7 @@ class FrameSource:
     def close(self) -> None:
         self.renderer.release()
         if self._own_ctx:
-            self.ctx.release()
+            release_context(self.ctx)
 
     def __enter__(self) -> FrameSource:
         return self

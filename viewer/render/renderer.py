@@ -588,7 +588,7 @@ class Renderer:
 @contextmanager
 def headless_renderer() -> Iterator[Renderer]:
     """A Renderer in a fresh headless context, both released on leaving the block."""
-    from .context import headless_context
+    from .context import headless_context, release_context
 
     ctx = headless_context()
     try:
@@ -598,7 +598,7 @@ def headless_renderer() -> Iterator[Renderer]:
         finally:
             renderer.release()
     finally:
-        ctx.release()
+        release_context(ctx)
 
 
 def render_still(scene: Scene, t_s: float, size_px: tuple[int, int] | None = None,
