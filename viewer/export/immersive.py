@@ -279,15 +279,21 @@ class ImmersiveRenderer:
         self._out: dict[tuple[int, int], Any] = {}
         self._tables: dict[tuple[object, ...], tuple[Any, Any] | None] = {}
 
+    def _kept_program(self, key: int | str, fragment: str = "reproject",
+                      defines: dict[str, int] | None = None) -> tuple[Any, Any]:
+        """A program of reproject.vert with ``fragment`` and its vertex array (kept)."""
+        if key not in self._programs:
+            prog = load_program(self.ctx, "reproject", fragment, defines=defines)
+            self._programs[key] = (prog, self.ctx.vertex_array(prog, []))
+        return self._programs[key]
+
     def _program(self, grid: int) -> tuple[Any, Any]:
         """The reprojection program and its vertex array for n x n samples (kept)."""
-        if grid not in self._programs:
-            defines = {"UNIFORM_GRID": 1} if self.uniform_grid else {"GRID": int(grid)}
-            prog = load_program(self.ctx, "reproject", defines=defines)
-            if self.uniform_grid:
-                prog["u_grid"].value = int(grid)
-            self._programs[grid] = (prog, self.ctx.vertex_array(prog, []))
-        return self._programs[grid]
+        if self.uniform_grid:
+            prog, vao = self._kept_program(grid, defines={"UNIFORM_GRID": 1})
+            prog["u_grid"].value = int(grid)
+            return prog, vao
+        return self._kept_program(grid, defines={"GRID": int(grid)})
 
     @staticmethod
     def _direct_uniforms(prog: Any, spec: Immersive, face_px: int) -> None:
@@ -298,13 +304,6 @@ class ImmersiveRenderer:
         prog["u_half_fov"].value = math.radians(spec.fov_deg) / 2
         tilt = math.radians(spec.tilt_deg)
         prog["u_tilt_cs"].value = (math.cos(tilt), math.sin(tilt))
-
-    def _table_program(self) -> tuple[Any, Any]:
-        """reproject_lut.frag's program and vertex array (kept)."""
-        if "table" not in self._programs:
-            prog = load_program(self.ctx, "reproject", "reproject_lut")
-            self._programs["table"] = (prog, self.ctx.vertex_array(prog, []))
-        return self._programs["table"]
 
     def _table(self, spec: Immersive, face_px: int) -> Any:
         """The texture of each output pixel's atlas point for ``spec`` at one sample per
@@ -325,11 +324,7 @@ class ImmersiveRenderer:
         if kept is None:
             tex = self.ctx.texture(spec.size_px, 2, dtype="f4")
             fbo = self.ctx.framebuffer(color_attachments=[tex])
-            if "record" not in self._programs:
-                prog = load_program(self.ctx, "reproject",
-                                    defines={"GRID": 1, "RECORD_LUT": 1})
-                self._programs["record"] = (prog, self.ctx.vertex_array(prog, []))
-            prog, vao = self._programs["record"]
+            prog, vao = self._kept_program("record", defines={"GRID": 1, "RECORD_LUT": 1})
             self._direct_uniforms(prog, spec, face_px)
             prog["u_origin"].value = (0.0, 0.0)
             prog["u_rows_up"].value = False
@@ -413,7 +408,7 @@ class ImmersiveRenderer:
         self.ctx.disable(self.renderer._mgl.BLEND)
         table = self._table(spec, size)
         if table is not None:
-            prog, vao = self._table_program()
+            prog, vao = self._kept_program("table", "reproject_lut")
             table.use(location=1)
             prog["u_lut"].value = 1
         else:
