@@ -96,6 +96,25 @@ def test_eight_bit_png_decodes_to_the_same_pixels(tmp_path: Path, transparent: b
     assert np.array_equal(got, img if transparent else img[..., :3])
 
 
+def test_opaque_png_rows_are_each_pixels_rgb_for_any_width() -> None:
+    """The packed scanlines (one overlapping 4-byte copy per pixel) equal the plain
+    per-channel copy, at widths of every remainder mod 4 and a single row or column;
+    a packing garbled in any row is caught by the last-row check and redone."""
+    from viewer.export.encode import _checked_rgb_rows, _png_rows
+
+    rng = np.random.default_rng(11)
+    for h, w in ((1, 1), (1, 7), (5, 1), (9, 13), (16, 30), (33, 64), (7, 1023)):
+        img = rng.integers(0, 256, (h, w, 4), dtype=np.uint8)
+        raw = _png_rows(img, 3, 1)
+        assert raw.shape == (h, 1 + 3 * w)
+        assert not raw[:, 0].any()
+        assert np.array_equal(raw[:, 1:].reshape(h, w, 3), img[..., :3])
+    img = rng.integers(0, 256, (6, 10, 4), dtype=np.uint8)
+    garbled = np.zeros((6, 31), np.uint8)
+    fixed = _checked_rgb_rows(garbled, img)
+    assert np.array_equal(fixed[:, 1:].reshape(6, 10, 3), img[..., :3])
+
+
 def test_sixteen_bit_png_keeps_the_values(tmp_path: Path) -> None:
     from PIL import Image
 
