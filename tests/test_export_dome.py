@@ -229,3 +229,61 @@ def test_the_drafts_table_on_a_screen_puts_the_direct_pixels_in_place(immersive)
     finally:
         kept.release()
         screen.release()
+
+
+def _whole_output(self, prog, fbo, spec, origin, outside) -> int:
+    """ImmersiveRenderer._shaded_area as it was: one triangle over the whole output."""
+    prog["u_fan_sides"].value = 0
+    return 3
+
+
+@pytest.mark.parametrize(("size", "fov", "tilt", "grid", "transparent"),
+                         [(640, 180.0, 0.0, 1, False), (333, 200.0, 25.0, 2, True),
+                          (257, 150.0, -10.0, 3, False)])
+def test_the_domes_fan_of_triangles_shades_every_pixel_the_whole_output_would(
+        immersive, monkeypatch, size, fov, tilt, grid, transparent) -> None:
+    """A dome's reprojection shades a polygon round its circle over a clear to the
+    outside colour: the master is byte for byte the one shaded over the whole square,
+    at odd sizes, FOVs over and under 180 degrees and 1 to 3 x 3 samples per pixel."""
+    from viewer.export.immersive import ImmersiveRenderer
+
+    scene = _demo_scene()
+    spec = Immersive("dome", (size, size), fov, tilt, grid=grid)
+    fan = ImmersiveRenderer(immersive.renderer)
+    try:
+        ours = fan.render(scene, 2e5, spec, transparent=transparent).copy()
+    finally:
+        fan.release()
+    monkeypatch.setattr(ImmersiveRenderer, "_shaded_area", _whole_output)
+    whole = ImmersiveRenderer(immersive.renderer)
+    try:
+        reference = whole.render(scene, 2e5, spec, transparent=transparent)
+    finally:
+        whole.release()
+    assert np.array_equal(ours, reference)
+    lit = np.count_nonzero(ours[..., :3].sum(axis=2) > 120)
+    assert lit > 200  # orbits drawn, not an empty disc
+
+
+def test_the_domes_clear_on_a_screen_stays_inside_the_picture(immersive) -> None:
+    """On a window's screen the dome's clear covers its own square only: the screen
+    round it keeps its colour."""
+    from viewer.export.immersive import ImmersiveRenderer
+
+    scene = _demo_scene()
+    n = 300
+    r = immersive.renderer
+    screen = r.ctx.framebuffer(color_attachments=[r.ctx.texture((640, 480), 4)])
+    kept = ImmersiveRenderer(r)
+    try:
+        screen.clear(0.2, 0.4, 0.6, 1.0)
+        kept.draw(scene, 0.0, Immersive("dome", (n, n), grid=1), draft=True,
+                  screen=(screen, (100, 50)))
+        shot = np.frombuffer(screen.read(components=4), np.uint8).reshape(480, 640, 4)
+        around = np.ones(shot.shape[:2], bool)
+        around[50:50 + n, 100:100 + n] = False
+        assert np.all(shot[around] == (51, 102, 153, 255))
+        assert np.all(shot[50, 100, :3] == 0)  # the picture's corner: outside the dome
+    finally:
+        kept.release()
+        screen.release()

@@ -264,6 +264,11 @@ def emphasised_grid(grid: NDArray[np.float64]) -> NDArray[np.float64]:
 #: Outputs whose table of atlas points ImmersiveRenderer keeps (the window's draft and
 #: its still preview; an export has one).
 TABLES_KEPT = 2
+#: The dome's reprojection shades a regular polygon this many sides round the circle
+#: (1.3 % more than the circle, against 27 % for the square) with this margin, which
+#: covers every pixel with a sample inside it (half a diagonal is 0.71 px).
+FAN_SIDES = 32
+FAN_MARGIN_PX = 2.0
 
 
 class ImmersiveRenderer:
@@ -305,6 +310,22 @@ class ImmersiveRenderer:
         tilt = math.radians(spec.tilt_deg)
         prog["u_tilt_cs"].value = (math.cos(tilt), math.sin(tilt))
 
+    def _shaded_area(self, prog: Any, fbo: Any, spec: Immersive, origin: tuple[int, int],
+                     outside: tuple[float, float, float, float]) -> int:
+        """Set reproject.vert's area for ``spec`` and return its vertex count: for a dome,
+        the output cleared to ``outside`` and a fan of FAN_SIDES triangles round the
+        dome's circle with FAN_MARGIN_PX to spare (every pixel with a sample inside the
+        circle, the rest left as cleared: the shader would give them ``outside`` too,
+        and 0 and 1 clear to the same bytes); else the whole output."""
+        if spec.kind != "dome":
+            prog["u_fan_sides"].value = 0
+            return 3
+        fbo.clear(*outside, viewport=(*origin, *spec.size_px))
+        prog["u_fan_sides"].value = FAN_SIDES
+        prog["u_fan_radius"].value = ((1.0 + 2.0 * FAN_MARGIN_PX / spec.size_px[0])
+                                      / math.cos(math.pi / FAN_SIDES))
+        return 3 * FAN_SIDES
+
     def _table(self, spec: Immersive, face_px: int) -> Any:
         """The texture of each output pixel's atlas point for ``spec`` at one sample per
         pixel, or None. A sequence of frames of one output maps every pixel the same
@@ -328,6 +349,7 @@ class ImmersiveRenderer:
             self._direct_uniforms(prog, spec, face_px)
             prog["u_origin"].value = (0.0, 0.0)
             prog["u_rows_up"].value = False
+            prog["u_fan_sides"].value = 0  # the whole table: no pixel is left unwritten
             fbo.use()
             self.ctx.viewport = (0, 0, *spec.size_px)
             vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
@@ -420,7 +442,8 @@ class ImmersiveRenderer:
         prog["u_rows_up"].value = screen is not None
         fbo.use()
         self.ctx.viewport = (*origin, *spec.size_px)
-        vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
+        vao.render(self.renderer._mgl.TRIANGLES, vertices=self._shaded_area(prog, fbo, spec,
+                                                                           origin, outside))
         self.ctx.enable(self.renderer._mgl.BLEND)
         if face_text:
             self.renderer.draw_labels(placed, fbo, spec.size_px, screen is None,
