@@ -133,3 +133,59 @@ def test_the_decoded_mp4_shows_each_frame_the_renderer_drew(renderer, tmp_path):
             own = np.abs(got[k] - want[k])[moved].mean()
             before = np.abs(got[k] - want[k - 1])[moved].mean()
             assert own < 0.5 * before, (k, own, before)
+
+
+def test_read_hands_out_a_kept_array_only_when_nothing_holds_it(renderer, monkeypatch):
+    """Frames read back into new arrays are kept and reused once let go (fresh pages
+    are slow to fill at 8K): an array or a view of it that is still held is never
+    handed out again, so its pixels stay as they were read."""
+    import viewer.render.renderer as module
+
+    monkeypatch.setattr(module, "READ_KEEP_BYTES", 0)  # every size kept, for a small test
+    scene = demo_like_scene()
+    size = (320, 180)
+    a = renderer.render(scene, 0.0, size)
+    a_pixels = a.copy()
+    view = renderer.render(scene, 50 * DAY_S, size)[..., :3]  # only a view held
+    b = renderer.render(scene, 100 * DAY_S, size)
+    assert len({id(a), id(view.base), id(b)}) == 3
+    assert np.array_equal(a, a_pixels)
+    assert not np.array_equal(a, b)
+    a_address = a.ctypes.data
+    del a
+    c = renderer.render(scene, 0.0, size)
+    assert c.ctypes.data == a_address  # let go, so reused
+    assert np.array_equal(c, a_pixels)
+    assert view.base is not c and view.base is not b
+    assert len(renderer._read_arrays) <= module.READ_ARRAYS_KEPT
+
+
+def test_a_png_sequence_through_kept_arrays_writes_each_frame_as_drawn(
+        renderer, monkeypatch, tmp_path):
+    """Through the sequence writer (frames encoding on its threads while the next are
+    drawn), kept arrays and kept PNG rows: every file decodes to its own frame."""
+    import io
+
+    from PIL import Image
+
+    import viewer.render.renderer as module
+    from viewer.export.frames import frame_path, render_sequence
+
+    monkeypatch.setattr(module, "READ_KEEP_BYTES", 0)
+    scene = demo_like_scene()
+    size = (256, 144)
+    times = [k * 9 * DAY_S for k in range(14)]
+    addresses = []
+
+    def frame(k: int) -> np.ndarray:
+        img = renderer.render(scene, times[k], size)
+        addresses.append(img.ctypes.data)
+        return img
+
+    render_sequence(range(len(times)), frame, tmp_path, stream=io.StringIO())
+    assert len(set(addresses)) < len(times)  # arrays were reused
+    monkeypatch.setattr(module, "READ_KEEP_BYTES", 1 << 62)  # new arrays: the reference
+    for k, t in enumerate(times):
+        with Image.open(frame_path(tmp_path, k, "png")) as img:
+            got = np.asarray(img)
+        assert np.array_equal(got, renderer.render(scene, t, size)[..., :3]), f"frame {k}"

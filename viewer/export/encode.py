@@ -31,15 +31,33 @@ STILL_FORMATS = ("png", "jpg")
 PNG_LEVEL = 1
 
 
-def _png_rows(rgba: np.ndarray, channels: int, per_sample: int) -> np.ndarray:
+class RowScratch:
+    """Memory for the scanlines of one PNG at a time, kept from frame to frame.
+
+    A frame's rows are as large as the frame (200 MB at 8192 x 8192); new ones come
+    from fresh pages that the kernel clears on the first write, which cost more than
+    the packing itself at 8K. ``StillWriter`` gives each encode one of these.
+    """
+
+    def __init__(self) -> None:
+        self.buf: np.ndarray | None = None
+
+    def take(self, size: int) -> np.ndarray:
+        if self.buf is None or self.buf.size != size:
+            self.buf = np.empty(size, np.uint8)
+        return self.buf
+
+
+def _png_rows(rgba: np.ndarray, channels: int, per_sample: int,
+              scratch: RowScratch | None = None) -> np.ndarray:
     """The PNG scanlines of a frame: filter byte 0 (None), then the samples, per row.
 
-    Opaque 8-bit frames (RGB out of RGBA) are packed by ``_rgb_rows``; other frames by a
-    plain numpy copy of their samples.
+    Opaque 8-bit frames (RGB out of RGBA) are packed by ``_rgb_rows`` (into ``scratch``
+    if given); other frames by a plain numpy copy of their samples.
     """
     h, w = rgba.shape[:2]
     if channels == 3 and per_sample == 1 and rgba.flags.c_contiguous:
-        return _rgb_rows(rgba)
+        return _rgb_rows(rgba, scratch)
     row = 1 + w * channels * per_sample
     raw = np.empty((h, row), np.uint8)
     raw[:, 0] = 0
@@ -48,7 +66,7 @@ def _png_rows(rgba: np.ndarray, channels: int, per_sample: int) -> np.ndarray:
     return raw
 
 
-def _rgb_rows(rgba: np.ndarray) -> np.ndarray:
+def _rgb_rows(rgba: np.ndarray, scratch: RowScratch | None = None) -> np.ndarray:
     """PNG scanlines (filter byte 0, then R G B per pixel) of a C-contiguous RGBA uint8
     frame, by one copy of whole 4-byte pixels to byte offsets 3 apart.
 
@@ -63,7 +81,7 @@ def _rgb_rows(rgba: np.ndarray) -> np.ndarray:
     """
     h, w = rgba.shape[:2]
     row = 1 + 3 * w
-    buf = np.empty(h * row + 1, np.uint8)
+    buf = np.empty(h * row + 1, np.uint8) if scratch is None else scratch.take(h * row + 1)
     np.ndarray((h, w), np.uint32, buf, 1, (row, 3))[...] = rgba.view(np.uint32)[..., 0]
     raw = buf[:h * row].reshape(h, row)
     raw[:, 0] = 0
@@ -79,14 +97,16 @@ def _checked_rgb_rows(raw: np.ndarray, rgba: np.ndarray) -> np.ndarray:
     return raw
 
 
-def png_bytes(rgba: np.ndarray, transparent: bool = False, bits: int = 8) -> bytes:
+def png_bytes(rgba: np.ndarray, transparent: bool = False, bits: int = 8,
+              scratch: RowScratch | None = None) -> bytes:
     """A PNG of an RGBA frame (top row first): RGB unless ``transparent``; 8 or 16 bits.
 
     Written directly (signature, IHDR, one IDAT, IEND) with filter type 0 on every row,
     deflated by ISA-L (``isal``) at its level 1: five times faster than zlib's fastest
     level on 1080p frames, for files about 2 % larger (docs/performance.md). The
     compressor releases the GIL, so frames encode on other threads while the next
-    renders. Any PNG reader reads the stream: it is standard zlib.
+    renders. Any PNG reader reads the stream: it is standard zlib. ``scratch`` holds
+    the rows of opaque 8-bit frames.
     """
     if bits not in (8, 16):
         raise UserInputError("--bits", f"PNG depth must be 8 or 16, got {bits}")
@@ -97,7 +117,7 @@ def png_bytes(rgba: np.ndarray, transparent: bool = False, bits: int = 8) -> byt
         arr = rgba if rgba.dtype == np.uint8 else (rgba >> 8).astype(np.uint8)
     h, w = rgba.shape[:2]
     channels = 4 if transparent else 3
-    raw = _png_rows(arr.reshape(h, w, -1), channels, bits // 8)
+    raw = _png_rows(arr.reshape(h, w, -1), channels, bits // 8, scratch)
 
     def chunk(kind: bytes, data: bytes) -> bytes:
         return (len(data).to_bytes(4, "big") + kind + data
@@ -119,9 +139,9 @@ def jpeg_bytes(rgba: np.ndarray, quality: int = 92) -> bytes:
 
 
 def encode_still(rgba: np.ndarray, fmt: str, transparent: bool = False, bits: int = 8,
-                 quality: int = 92) -> bytes:
+                 quality: int = 92, scratch: RowScratch | None = None) -> bytes:
     if fmt == "png":
-        return png_bytes(rgba, transparent, bits)
+        return png_bytes(rgba, transparent, bits, scratch)
     if fmt == "jpg":
         if transparent:
             raise UserInputError("--transparent", "JPEG has no alpha channel; use PNG")
@@ -130,9 +150,10 @@ def encode_still(rgba: np.ndarray, fmt: str, transparent: bool = False, bits: in
     raise UserInputError("--format", f"unknown format {fmt!r}; allowed: png, jpg")
 
 
-def write_still(path: Path, rgba: np.ndarray, fmt: str, **options: Any) -> None:
-    """Encode and write one image atomically."""
-    atomic_write_bytes(path, encode_still(rgba, fmt, **options))
+def write_still(path: Path, rgba: np.ndarray, fmt: str, scratch: RowScratch | None = None,
+                **options: Any) -> None:
+    """Encode and write one image atomically (``scratch``: see ``png_bytes``)."""
+    atomic_write_bytes(path, encode_still(rgba, fmt, scratch=scratch, **options))
 
 
 def image_is_complete(path: Path, size: tuple[int, int] | None = None, fmt: str | None = None,
@@ -182,11 +203,23 @@ class StillWriter:
         self.pool = concurrent.futures.ThreadPoolExecutor(max_workers=workers)
         self.in_flight = in_flight
         self.pending: list[concurrent.futures.Future[None]] = []
+        # One RowScratch per encode running at once (at most ``workers``), reused.
+        self._scratch: queue.SimpleQueue[RowScratch] = queue.SimpleQueue()
 
     def submit(self, path: Path, rgba: np.ndarray, fmt: str, **options: Any) -> None:
         while len(self.pending) >= self.in_flight:
             self.pending.pop(0).result()  # raises the worker's error, if any
-        self.pending.append(self.pool.submit(write_still, path, rgba, fmt, **options))
+        self.pending.append(self.pool.submit(self._write, path, rgba, fmt, options))
+
+    def _write(self, path: Path, rgba: np.ndarray, fmt: str, options: dict[str, Any]) -> None:
+        try:
+            scratch = self._scratch.get_nowait()
+        except queue.Empty:
+            scratch = RowScratch()
+        try:
+            write_still(path, rgba, fmt, scratch=scratch, **options)
+        finally:
+            self._scratch.put(scratch)
 
     def close(self) -> None:
         try:

@@ -20,6 +20,7 @@ throughout.
 
 from __future__ import annotations
 
+import sys
 from collections.abc import Iterator, Sequence
 from contextlib import contextmanager
 from dataclasses import dataclass
@@ -54,6 +55,11 @@ from .text import TEXT_FLOATS, FontCache, GlyphAtlas
 
 UInt8s = NDArray[np.uint8]
 
+#: ``Renderer.read`` keeps the arrays it returns from this size on (bytes; below it the
+#: C allocator reuses memory by itself) for reuse once nothing holds them, at most
+#: READ_ARRAYS_KEPT (a sequence writer's four frames in flight and one being read).
+READ_KEEP_BYTES = 32 * 2**20
+READ_ARRAYS_KEPT = 5
 #: Bodies of a population per vertex of its transform-feedback stage (shaders/population.vert).
 BODIES_PER_VERTEX = 4
 
@@ -208,6 +214,7 @@ class Renderer:
         self._targets: dict[tuple[int, int], Any] = {}
         self._under = _UnderCache()
         self._under_fbo: dict[tuple[int, int], Any] = {}
+        self._read_arrays: list[UInt8s] = []
 
     # --- geometry -----------------------------------------------------------------------
 
@@ -498,7 +505,7 @@ class Renderer:
         (H, W, 4) uint8 array) receives the pixels with no new allocation.
         """
         w, h = size_px
-        img = np.empty((h, w, 4), dtype=np.uint8) if out is None else out
+        img = self._spare_array(h, w) if out is None else out
         if img.shape != (h, w, 4) or img.dtype != np.uint8 or not img.flags.c_contiguous:
             raise ValueError(f"out must be a C-contiguous ({h}, {w}, 4) uint8 array")
         framebuffer.read_into(img, viewport=(0, 0, w, h), components=4, alignment=1)
@@ -509,6 +516,30 @@ class Renderer:
         straight = np.where(a > 0, (rgb * 255 + a // 2) // np.maximum(a, 1), 0)
         img[..., :3] = np.minimum(straight, 255).astype(np.uint8)
         return img
+
+    def _spare_array(self, h: int, w: int) -> UInt8s:
+        """An (h, w, 4) uint8 array for ``read`` to fill: for frames of READ_KEEP_BYTES
+        and more, one of the arrays it returned before that nothing holds any longer
+        (a sequence's writer has encoded it and let it go), else a new one, kept.
+
+        A new array of that size comes from fresh pages, which the kernel clears on the
+        first write: at 8192 x 8192 that was a fifth of the whole export's CPU time
+        (docs/performance.md). An array still held anywhere (by a caller, a view of it,
+        an encoder's queue) has more references than the list's own, so it is never
+        handed out twice; the count with no holder is measured, not assumed.
+        """
+        shape = (h, w, 4)
+        if h * w * 4 < READ_KEEP_BYTES:
+            return np.empty(shape, dtype=np.uint8)
+        unheld = _unheld_refcount()
+        for kept in self._read_arrays:
+            if kept.shape == shape and sys.getrefcount(kept) <= unheld:
+                return kept
+        fresh = np.empty(shape, dtype=np.uint8)
+        self._read_arrays.append(fresh)
+        if len(self._read_arrays) > READ_ARRAYS_KEPT:
+            del self._read_arrays[0]
+        return fresh
 
     def render(self, scene: Scene, t_s: float, size_px: tuple[int, int] | None = None,
                camera: Camera | None = None, transparent: bool = False,
@@ -583,6 +614,17 @@ class Renderer:
         self._targets.clear()
         self._populations.clear()
         self._textures.clear()
+        self._read_arrays.clear()
+
+
+def _unheld_refcount() -> int:
+    """What ``sys.getrefcount`` says of an array that only a list holds, read as
+    ``Renderer._spare_array`` reads it (in a loop over the list): the interpreter's own
+    references are counted the same way in both."""
+    probe = [np.empty(0, dtype=np.uint8)]
+    for kept in probe:
+        return sys.getrefcount(kept)
+    return 0
 
 
 @contextmanager
