@@ -209,6 +209,19 @@ def test_a_job_request_is_checked_before_it_starts(mission: Path, tmp_path: Path
             job_request(f"{tmp_path}/{out}", size, frames, scene)
         assert says in err.value.problems[0], err.value.problems
 
+def test_a_dome_job_too_large_for_memory_is_refused_before_it_starts(
+        mission: Path, tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    """With 3 GiB free, an 8192 dome sequence (its writer's frames in flight counted)
+    is refused on the size field, as `perifocal render` refuses it."""
+    import viewer.export.immersive as immersive
+
+    monkeypatch.setattr(immersive, "available_memory_bytes", lambda: 3 * 2**30)
+    scene = Editor.open(mission).scene
+    with pytest.raises(UserInputError) as err:
+        job_request(f"{tmp_path}/big/", "8192x8192", "", scene, view="dome")
+    assert err.value.source == "size"
+    assert "dome sequence needs about" in err.value.problems[0]
+
 
 def test_a_sequence_job_writes_each_frame_of_the_timeline_while_the_caller_draws(
         mission: Path, tmp_path: Path) -> None:

@@ -213,3 +213,27 @@ def test_a_master_too_large_for_memory_is_refused_before_anything_is_written(
     assert err.splitlines()[0] == "perifocal: error in --size"
     assert "GiB of memory" in err and "fits here now" in err
     assert not out.exists() and [p.name for p in tmp_path.iterdir()] == [scene.name]
+
+
+def test_a_sequence_is_refused_where_its_frames_in_flight_do_not_fit(
+        scene: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str],
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    """A sequence holds the frames its writer still encodes (up to five read back and two
+    PNG encodes at once), so a size whose still fits can be refused as a sequence: one
+    line naming the sequence, exit 2, no folder made."""
+    import viewer.export.immersive as immersive
+    from viewer.export.immersive import MEMORY_SHARE, Immersive
+
+    spec = Immersive("dome", (8192, 8192), grid=1)
+    still, seq = spec.memory_bytes(), spec.memory_bytes(sequence=True)
+    assert seq >= still + 4 * 8192 * 8192 * 4  # four more frames at least
+    free = int((still + seq) / 2 / MEMORY_SHARE)  # enough for the still, not the sequence
+    spec.check_memory(available=free)  # the still fits
+    monkeypatch.setattr(immersive, "available_memory_bytes", lambda: free)
+    out = tmp_path / "frames"
+    assert main(["render", str(scene), "--dome", "--size", "8192x8192", "--frames", "0:2",
+                 "-o", f"{out}/"]) == 2
+    err = capsys.readouterr().err
+    assert err.splitlines()[0] == "perifocal: error in --size"
+    assert "8192x8192 dome sequence needs about" in err and "fits here now" in err
+    assert not out.exists()

@@ -252,7 +252,7 @@ def run(args: argparse.Namespace) -> int:
         claim_output(args.output, force=args.force, inputs=[args.scene])
     spec = immersive_spec(args, scene, size)
     if spec is not None:
-        spec.check_memory(args.bits)
+        spec.check_memory(args.bits, sequence=kind in ("sequence", "video"))
     if spec is not None and fmt == "svg":
         raise UserInputError("-o", "an SVG diagram is a flat view; dome masters and "
                              "panoramas are written as .png or .jpg")

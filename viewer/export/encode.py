@@ -196,10 +196,14 @@ def image_is_complete(path: Path, size: tuple[int, int] | None = None, fmt: str 
     return True
 
 
+#: Frames a StillWriter encodes at once (its threads).
+STILL_WORKERS = 2
+
+
 class StillWriter:
     """Encodes and writes frames on a thread pool, a bounded number in flight."""
 
-    def __init__(self, workers: int = 2, in_flight: int = 4) -> None:
+    def __init__(self, workers: int = STILL_WORKERS, in_flight: int = 4) -> None:
         self.pool = concurrent.futures.ThreadPoolExecutor(max_workers=workers)
         self.in_flight = in_flight
         self.pending: list[concurrent.futures.Future[None]] = []

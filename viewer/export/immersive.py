@@ -33,11 +33,12 @@ from ..errors import UserInputError
 from ..geometry.camera import View, view_for
 from ..geometry.labels import place_labels
 from ..render.context import flush
-from ..render.renderer import Renderer
+from ..render.renderer import READ_ARRAYS_KEPT, Renderer
 from ..render.shaders import load_program
 from ..scene.model import Camera, DomeSettings, Scene
 from ..scene.timeline import OverlayText
 from .dome_grid import dome_grid
+from .encode import STILL_WORKERS
 from .immersive_text import (
     OutputMap,
     body_label_px,
@@ -125,30 +126,35 @@ class Immersive:
         per_rad = h / math.radians(self.fov_deg) if self.kind == "dome" else w / (2 * math.pi)
         return min(MAX_FACE_PX, max(16, int(math.ceil(per_rad * math.pi / 2))))
 
-    def memory_bytes(self, bits: int = 8) -> int:
-        """What one frame holds at once: the faces' atlas, the output framebuffer, the
+    def memory_bytes(self, bits: int = 8, sequence: bool = False) -> int:
+        """What a render holds at once: the faces' atlas, the output framebuffer, the
         frame read back, the table of atlas points at one sample per pixel
-        (reproject_lut.frag: two float32 per pixel), and the 16-bit copy and PNG rows
-        when ``bits`` is 16."""
+        (reproject_lut.frag: two float32 per pixel), and the PNG rows (with the 16-bit
+        copy when ``bits`` is 16). A ``sequence`` (frames or a video) holds more: the
+        frames its writer still encodes, up to the READ_ARRAYS_KEPT arrays the renderer
+        reads into, and STILL_WORKERS PNG encodes at once."""
         w, h = self.size_px
         f = self.face_px()
         out = w * h * 4
         per_png = out * 4 if bits == 16 else out * 3 // 2
         table = 2 * out if self.grid == 1 else 0
-        return 6 * f * f * 4 + 2 * out + table + per_png + BASE_BYTES
+        frames, encodes = (READ_ARRAYS_KEPT, STILL_WORKERS) if sequence else (1, 1)
+        return 6 * f * f * 4 + out + frames * out + table + encodes * per_png + BASE_BYTES
 
-    def check_memory(self, bits: int = 8, available: int | None = None) -> None:
+    def check_memory(self, bits: int = 8, available: int | None = None,
+                     sequence: bool = False) -> None:
         """Refuse (UserInputError on --size) a master this machine cannot hold."""
         have = available_memory_bytes() if available is None else available
-        need = self.memory_bytes(bits)
+        need = self.memory_bytes(bits, sequence)
         if need > MEMORY_SHARE * have:
             side = self.size_px[1]
             while side > 16 and replace(self, size_px=(
-                    side if self.kind == "dome" else 2 * side, side)).memory_bytes(bits) \
-                    > MEMORY_SHARE * have:
+                    side if self.kind == "dome" else 2 * side, side)).memory_bytes(
+                        bits, sequence) > MEMORY_SHARE * have:
                 side = side * 3 // 4
             w = side if self.kind == "dome" else 2 * side
-            raise UserInputError("--size", f"a {self.size_px[0]}x{self.size_px[1]} {self.kind} "
+            what = f"{self.kind} sequence" if sequence else self.kind
+            raise UserInputError("--size", f"a {self.size_px[0]}x{self.size_px[1]} {what} "
                                  f"needs about {need / 2**30:.1f} GiB of memory and "
                                  f"{have / 2**30:.1f} GiB is free; at most about {w}x{side} "
                                  "fits here now")

@@ -191,6 +191,10 @@ def job_request(out_text: str, size_text: str, frames_text: str, scene: Scene,
         from ..export.immersive import Immersive
 
         spec = Immersive(view, size, grid=2 if size[1] < 4096 else 1)
+        try:
+            spec.check_memory(sequence=True)  # a video's writer holds frames too
+        except UserInputError as err:
+            raise UserInputError("size", err.problems) from None
     if kind == "video":
         check_video_size(*size)
     ranged = show_range(from_text, to_text, scene)
