@@ -287,3 +287,37 @@ def test_the_domes_clear_on_a_screen_stays_inside_the_picture(immersive) -> None
     finally:
         kept.release()
         screen.release()
+
+
+def test_an_output_whose_table_the_gl_refuses_is_drawn_direct_in_every_frame(
+        immersive, monkeypatch) -> None:
+    """llvmpipe refuses textures over 1 GiB, so a 16384 master has no table of atlas
+    points (16384 x 16384 x 8 bytes): the refusal is caught, leaves no GL error, and
+    every frame of such an output is drawn directly, the same bytes as a fresh renderer."""
+    from viewer.export.immersive import ImmersiveRenderer
+
+    r = immersive.renderer
+    if "llvmpipe" not in r.ctx.info["GL_RENDERER"]:
+        pytest.skip("the 1 GiB texture limit is llvmpipe's")
+    probe = ImmersiveRenderer(r)
+    try:
+        assert probe._table_target((16384, 16384)) is None
+        assert r.ctx.error == "GL_NO_ERROR"
+    finally:
+        probe.release()
+    # The same fallback at a small size, the GL's refusal simulated.
+    monkeypatch.setattr(ImmersiveRenderer, "_table_target", lambda self, size: None)
+    scene = _demo_scene()
+    spec = Immersive("dome", (320, 320), grid=1)
+    kept = ImmersiveRenderer(r)
+    try:
+        for k in range(3):
+            seq = kept.render(scene, 2e5 * k, spec).copy()
+            fresh = ImmersiveRenderer(r)
+            try:
+                assert np.array_equal(seq, fresh.render(scene, 2e5 * k, spec)), f"frame {k}"
+            finally:
+                fresh.release()
+        assert list(kept._tables.values()) == [False]
+    finally:
+        kept.release()

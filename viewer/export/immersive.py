@@ -288,7 +288,9 @@ class ImmersiveRenderer:
         self._programs: dict[int | str, tuple[Any, Any]] = {}
         self._faces: dict[int, tuple[Any, Any]] = {}
         self._out: dict[tuple[int, int], Any] = {}
-        self._tables: dict[tuple[object, ...], tuple[Any, Any] | None] = {}
+        # Per output: None once seen, (texture, framebuffer) when made, False when the GL
+        # cannot make one (llvmpipe refuses textures over 1 GiB: 16384 x 16384 x 8 bytes).
+        self._tables: dict[tuple[object, ...], tuple[Any, Any] | bool | None] = {}
 
     def _kept_program(self, key: int | str, fragment: str = "reproject",
                       defines: dict[str, int] | None = None) -> tuple[Any, Any]:
@@ -338,7 +340,8 @@ class ImmersiveRenderer:
         way, so from its second frame the reprojection only fetches (reproject_lut.frag,
         the same pixels, bit for bit). The first frame of an output is drawn directly,
         so a single still costs no more; the table is written at the second. Two
-        outputs are kept (the window's draft and its still preview)."""
+        outputs are kept (the window's draft and its still preview). Where the GL cannot
+        hold the table (a texture too large for it), every frame is drawn directly."""
         if spec.grid != 1 or self.uniform_grid:
             return None
         key = (spec.kind, spec.size_px, spec.fov_deg, spec.tilt_deg, face_px)
@@ -348,9 +351,14 @@ class ImmersiveRenderer:
             self._tables[key] = None  # seen once
             return None
         kept = self._tables[key]
+        if kept is False:
+            return None
         if kept is None:
-            tex = self.ctx.texture(spec.size_px, 2, dtype="f4")
-            fbo = self.ctx.framebuffer(color_attachments=[tex])
+            made = self._table_target(spec.size_px)
+            if made is None:
+                self._tables[key] = False
+                return None
+            tex, fbo = made
             prog, vao = self._kept_program("record", defines={"GRID": 1, "RECORD_LUT": 1})
             self._direct_uniforms(prog, spec, face_px)
             prog["u_origin"].value = (0.0, 0.0)
@@ -360,11 +368,25 @@ class ImmersiveRenderer:
             self.ctx.viewport = (0, 0, *spec.size_px)
             vao.render(self.renderer._mgl.TRIANGLES, vertices=3)
             self._tables[key] = kept = (tex, fbo)
+        assert isinstance(kept, tuple)
         return kept[0]
+
+    def _table_target(self, size_px: tuple[int, int]) -> tuple[Any, Any] | None:
+        """A two-channel float32 texture of ``size_px`` and its framebuffer, or None if
+        the GL refuses them."""
+        tex = None
+        try:
+            tex = self.ctx.texture(size_px, 2, dtype="f4")
+            return tex, self.ctx.framebuffer(color_attachments=[tex])
+        except self.renderer._mgl.Error:
+            if tex is not None:
+                tex.release()
+            _ = self.ctx.error  # clear the GL error the refusal left
+            return None
 
     def _release_table(self, key: tuple[object, ...]) -> None:
         kept = self._tables.pop(key)
-        if kept is not None:
+        if isinstance(kept, tuple):
             kept[1].release()
             kept[0].release()
 
