@@ -136,7 +136,9 @@ class Immersive:
         w, h = self.size_px
         f = self.face_px()
         out = w * h * 4
-        per_png = out * 4 if bits == 16 else out * 3 // 2
+        # A 16-bit encode holds the frame widened, its big-endian copy and the rows (up
+        # to 2 + 2 + 2 times the 8-bit frame); an 8-bit one its rows and their deflate.
+        per_png = out * 6 if bits == 16 else out * 3 // 2
         table = 2 * out if self.grid == 1 else 0
         frames, encodes = (READ_ARRAYS_KEPT, STILL_WORKERS) if sequence else (1, 1)
         return 6 * f * f * 4 + out + frames * out + table + encodes * per_png + BASE_BYTES
