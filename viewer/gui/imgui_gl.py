@@ -12,9 +12,13 @@ from __future__ import annotations
 import ctypes
 from typing import Any
 
+import numpy as np
 from imgui_bundle import imgui
 
 from ..render.shaders import load_program
+
+#: (x, y from the top, width, height) in framebuffer pixels.
+Rect = tuple[int, int, int, int]
 
 
 class PanelRenderer:
@@ -30,6 +34,9 @@ class PanelRenderer:
         self._ibo = ctx.buffer(reserve=1 << 16, dynamic=True)
         self._vao = self._make_vao()
         self._textures: dict[int, Any] = {}
+        #: (picture, framebuffer size, signature of the panels) that the screen shows
+        #: outside the picture since the last render with a picture, or None.
+        self._kept: tuple[Any, ...] | None = None
         io = imgui.get_io()
         io.backend_flags |= imgui.BackendFlags_.renderer_has_textures
         size = int(ctx.info["GL_MAX_TEXTURE_SIZE"])
@@ -56,11 +63,14 @@ class PanelRenderer:
 
     # --- textures (imgui >= 1.92 creates and updates them through the backend) ----------
 
-    def _update_textures(self) -> None:
+    def _update_textures(self) -> bool:
+        """Create, update and destroy the textures imgui asks for; True if any changed."""
+        changed = False
         for tex in imgui.get_platform_io().textures:
             status = tex.status
             if status == imgui.ImTextureStatus.ok:
                 continue
+            changed = True
             if status in (imgui.ImTextureStatus.want_create, imgui.ImTextureStatus.want_updates):
                 pixels = tex.get_pixels_array()
                 gl_tex = self._textures.get(int(tex.tex_id)) if tex.tex_id else None
@@ -85,17 +95,71 @@ class PanelRenderer:
                     gl_tex.release()
                 tex.set_tex_id(0)
                 tex.status = imgui.ImTextureStatus.destroyed
+        return changed
 
     # --- drawing ----------------------------------------------------------------------
 
-    def render(self, draw_data: Any, framebuffer_size: tuple[int, int]) -> None:
-        """Draw one frame of panels over whatever is in the framebuffer."""
-        self._update_textures()
+    def keeps(self, picture: Rect, framebuffer_size: tuple[int, int]) -> bool:
+        """True if the screen outside ``picture`` still holds the panels that the last
+        frame's ``render`` left there with this picture (see ``render``): the caller then
+        clears only the picture before drawing it."""
+        return self._kept is not None and self._kept[:2] == (tuple(picture),
+                                                            tuple(framebuffer_size))
+
+    def forget(self) -> None:
+        """The screen no longer holds the last frame's panels (resized, exposed, drawn
+        another way): the next ``render`` with a picture draws them all again."""
+        self._kept = None
+
+    def render(self, draw_data: Any, framebuffer_size: tuple[int, int],
+               picture: Rect | None = None) -> bool:
+        """Draw one frame of panels over whatever is in the framebuffer; True if drawn.
+
+        ``picture`` (x, y from the top, width, height; framebuffer pixels) is given only
+        on a screen that keeps its pixels from one frame to the next
+        (``screen_keeps_pixels``) when the caller draws that area anew each frame and
+        leaves the rest black under the panels (a dome or panorama preview; the caller
+        clears all of it when ``keeps`` is False). Then panels that are the same as the
+        last frame's, none reaching into the picture, are not drawn again: the screen
+        still shows them. Otherwise the screen outside the picture is cleared to black
+        and every panel drawn, as over a whole cleared screen, so the pixels are the
+        same either way. Without ``picture`` every panel is drawn and the kept ones are
+        forgotten (the caller draws under them).
+        """
+        textures_changed = self._update_textures()
         io = imgui.get_io()
         dw, dh = io.display_size.x, io.display_size.y
         fw, fh = framebuffer_size
         if fw <= 0 or fh <= 0 or dw <= 0 or dh <= 0:
-            return
+            self._kept = None
+            return False
+        sx, sy = fw / dw, fh / dh
+        lists = list(draw_data.cmd_lists)
+        vsize, isize = imgui.VERTEX_SIZE, imgui.INDEX_SIZE
+        data = [(ctypes.string_at(c.vtx_buffer.data_address(), c.vtx_buffer.size() * vsize),
+                 ctypes.string_at(c.idx_buffer.data_address(), c.idx_buffer.size() * isize))
+                for c in lists]
+        if picture is None:
+            self._kept = None
+        else:
+            kept_before = self.keeps(picture, framebuffer_size)
+            sig = _signature(lists, data, (dw, dh), framebuffer_size)
+            reach = any(_overlap(box, picture) for box in _boxes(lists, data, sx, sy))
+            same = kept_before and not textures_changed and self._kept is not None \
+                and self._kept[2] == sig
+            self._kept = None if reach else (tuple(picture), tuple(framebuffer_size), sig)
+            if same and not reach:
+                return False
+            if kept_before:  # last frame's panels are still there: clear them first
+                for x, y, w, h in _outside(picture, framebuffer_size):
+                    self.ctx.screen.clear(0.0, 0.0, 0.0, 1.0, viewport=(x, fh - y - h, w, h))
+        self._draw(lists, data, (dw, dh), framebuffer_size)
+        return True
+
+    def _draw(self, lists: list[Any], data: list[tuple[bytes, bytes]],
+              display: tuple[float, float], framebuffer_size: tuple[int, int]) -> None:
+        dw, dh = display
+        fw, fh = framebuffer_size
         sx, sy = fw / dw, fh / dh
         ctx = self.ctx
         mgl = self._mgl
@@ -105,13 +169,11 @@ class PanelRenderer:
         ctx.blend_equation = mgl.FUNC_ADD
         self.program["u_display_px"].value = (float(dw), float(dh))
         self.program["u_texture"].value = 0
-        vsize, isize = imgui.VERTEX_SIZE, imgui.INDEX_SIZE
         try:
-            for cmds in draw_data.cmd_lists:
-                nv, ni = cmds.vtx_buffer.size(), cmds.idx_buffer.size()
-                self._ensure(nv * vsize, ni * isize)
-                self._vbo.write(ctypes.string_at(cmds.vtx_buffer.data_address(), nv * vsize))
-                self._ibo.write(ctypes.string_at(cmds.idx_buffer.data_address(), ni * isize))
+            for cmds, (vertices, indices) in zip(lists, data, strict=True):
+                self._ensure(len(vertices), len(indices))
+                self._vbo.write(vertices)
+                self._ibo.write(indices)
                 for cmd in cmds.cmd_buffer:
                     tex = self._textures.get(int(cmd.tex_ref.get_tex_id()))
                     if tex is not None:
@@ -135,6 +197,67 @@ class PanelRenderer:
         self._vbo.release()
         self._ibo.release()
         self.program.release()
+
+
+def _signature(lists: list[Any], data: list[tuple[bytes, bytes]],
+               display: tuple[float, float], framebuffer_size: tuple[int, int]) -> bytes:
+    """Everything the panels' pixels depend on: vertices, indices, each draw's clip,
+    texture and range, the display and framebuffer sizes (the atlas's pixels are
+    checked apart: ``_update_textures``)."""
+    parts = [np.array([*display, *framebuffer_size, len(lists)], dtype=np.float64).tobytes()]
+    for cmds, (vertices, indices) in zip(lists, data, strict=True):
+        calls = [(*cmd.clip_rect, float(cmd.tex_ref.get_tex_id()), cmd.elem_count,
+                  cmd.idx_offset, cmd.vtx_offset) for cmd in cmds.cmd_buffer]
+        parts += [np.array([len(vertices), len(indices), len(calls)], np.int64).tobytes(),
+                  vertices, indices, np.array(calls, dtype=np.float64).tobytes()]
+    return b"".join(parts)
+
+
+def _boxes(lists: list[Any], data: list[tuple[bytes, bytes]], sx: float, sy: float
+           ) -> list[Rect]:
+    """The framebuffer rectangle each draw can touch: its triangles' bounding box within
+    its clip rectangle (imgui leaves scrolled-away content to the clip), a pixel wider
+    each way for rounding."""
+    out: list[Rect] = []
+    index_type = np.uint16 if imgui.INDEX_SIZE == 2 else np.uint32
+    for cmds, (vertices, indices) in zip(lists, data, strict=True):
+        if not vertices:
+            continue
+        xy = np.frombuffer(vertices, dtype=np.float32).reshape(
+            -1, imgui.VERTEX_SIZE // 4)[:, :2]
+        idx = np.frombuffer(indices, dtype=index_type)
+        for cmd in cmds.cmd_buffer:
+            used = idx[cmd.idx_offset:cmd.idx_offset + cmd.elem_count]
+            if used.size == 0:
+                continue
+            p = xy[used.astype(np.intp) + cmd.vtx_offset]
+            cx0, cy0, cx1, cy1 = cmd.clip_rect
+            x0, y0 = max(float(p[:, 0].min()), cx0), max(float(p[:, 1].min()), cy0)
+            x1, y1 = min(float(p[:, 0].max()), cx1), min(float(p[:, 1].max()), cy1)
+            if x1 <= x0 or y1 <= y0:
+                continue
+            left, top = int(np.floor(x0 * sx)) - 1, int(np.floor(y0 * sy)) - 1
+            out.append((left, top, int(np.ceil(x1 * sx)) + 1 - left,
+                        int(np.ceil(y1 * sy)) + 1 - top))
+    return out
+
+
+def _overlap(a: Rect, b: Rect) -> bool:
+    return a[0] < b[0] + b[2] and b[0] < a[0] + a[2] and a[1] < b[1] + b[3] and \
+        b[1] < a[1] + a[3]
+
+
+def _outside(picture: Rect, framebuffer_size: tuple[int, int]) -> list[Rect]:
+    """The screen less ``picture``, as up to four rectangles (above, below, left, right)."""
+    fw, fh = framebuffer_size
+    x, y, w, h = picture
+    x0, y0 = max(0, x), max(0, y)
+    x1, y1 = min(fw, x + w), min(fh, y + h)
+    if x1 <= x0 or y1 <= y0:
+        return [(0, 0, fw, fh)]
+    rects = [(0, 0, fw, y0), (0, y1, fw, fh - y1), (0, y0, x0, y1 - y0),
+             (x1, y0, fw - x1, y1 - y0)]
+    return [r for r in rects if r[2] > 0 and r[3] > 0]
 
 
 def _key_map() -> dict[int, Any]:

@@ -35,6 +35,14 @@ from .timeline_edits import TimelineRefused
 
 __all__ = ["Session"]
 
+#: While time plays, the panels' time readouts (the Numbers panel, the Time panel's date
+#: and slider) move on at most this many times a second, as instrument readouts do
+#: (common practice, no source): digits that change at the frame rate cannot be read,
+#: and a panel that stays the same is not drawn again over a dome preview (ViewerWindow).
+#: The picture, its captions and its clock move every frame. Paused, the readouts follow
+#: the clock at once.
+READOUT_HZ = 10.0
+
 
 @dataclass
 class Session:
@@ -112,6 +120,9 @@ class Session:
     new_show_errors: list[str] = field(default_factory=list)
     _show_camera: Any = None
     _show_for: tuple[Any, ...] = ()
+    _readout_wall_s: float = float("-inf")
+    _readout_at: float | None = None
+    _readout_kept: tuple[Any, ...] | None = None
 
     @property
     def quit_prompt(self) -> bool:
@@ -123,6 +134,35 @@ class Session:
         """True while a modal prompt or dialog takes the keyboard."""
         return bool(self.unsaved_for or self.save_as_prompt or self.open_prompt
                     or self.still_prompt or self.job_prompt or self.new_show_prompt)
+
+    @property
+    def readout_t_s(self) -> float:
+        """Scene time (s) the panels' readouts show: the clock's while paused (or before
+        the window's first ``update_readout``), else the time taken at the last update."""
+        if self._readout_at is None or not self.clock.playing:
+            return self.clock.t_s
+        return self._readout_at
+
+    def update_readout(self, wall_s: float) -> None:
+        """Called by the window at the start of each frame: while playing, the readout
+        time moves to the clock's once 1 / READOUT_HZ s of wall time (``wall_s``, a
+        monotonic clock) have passed since it last moved."""
+        if not self.clock.playing or wall_s - self._readout_wall_s >= 1.0 / READOUT_HZ:
+            self._readout_at = self.clock.t_s
+            self._readout_wall_s = wall_s
+
+    def readout(self, index: int) -> Any:
+        """``body_readout`` of body ``index`` at the readout time, made again only when the
+        scene (an edit makes a new one), the body or the readout time changes."""
+        from .readout import body_readout
+
+        scene = self.editor.scene
+        kept = self._readout_kept
+        if kept is None or kept[0] is not scene or kept[1:3] != (index, self.readout_t_s):
+            kept = (scene, index, self.readout_t_s, body_readout(scene, index,
+                                                                 self.readout_t_s))
+            self._readout_kept = kept
+        return kept[3]
 
     # --- quitting, saving -------------------------------------------------------------------
 

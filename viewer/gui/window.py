@@ -46,6 +46,38 @@ def _font_path() -> str | None:
     return str(p) if p.is_file() else None
 
 
+#: A colour no frame starts with, written to one pixel to see if a swap keeps it.
+_PROBE_RGB = (23, 161, 89)
+
+
+def screen_keeps_pixels(ctx: Any, window: Any) -> bool:
+    """Whether ``window``'s back buffer still holds its pixels after a buffer swap: one
+    pixel of a black frame is set to a probe colour, the buffers swapped, and the pixel
+    read back (GL_BACK). Software GLs that copy the back buffer to the window (llvmpipe,
+    the machines Perifocal is measured on) keep it; GPU drivers that flip buffers show
+    an older buffer there, so the answer is False and every frame is drawn whole."""
+    import ctypes
+
+    from pyglet import gl
+
+    window.switch_to()
+    fw, fh = window.get_framebuffer_size()
+    if fw <= 0 or fh <= 0:
+        return False
+    ctx.screen.use()
+    ctx.clear(0.0, 0.0, 0.0, 1.0)
+    r, g, b = (c / 255.0 for c in _PROBE_RGB)
+    ctx.screen.clear(r, g, b, 1.0, viewport=(0, 0, 1, 1))
+    window.flip()
+    pixel = (ctypes.c_ubyte * 4)()
+    gl.glBindFramebuffer(gl.GL_READ_FRAMEBUFFER, 0)
+    gl.glReadBuffer(gl.GL_BACK)
+    gl.glPixelStorei(gl.GL_PACK_ALIGNMENT, 1)
+    gl.glReadPixels(0, 0, 1, 1, gl.GL_RGBA, gl.GL_UNSIGNED_BYTE, pixel)
+    ctx.clear(0.0, 0.0, 0.0, 1.0)
+    return tuple(pixel[:3]) == _PROBE_RGB
+
+
 class ViewerWindow:
     """One scene in one window. ``editor`` holds the scene; ``size`` is (W, H) in px."""
 
@@ -85,6 +117,10 @@ class ViewerWindow:
         w, h = self.window.get_size()
         io.display_size = imgui.ImVec2(float(w), float(h))
         self.panel_renderer = PanelRenderer(self.ctx)
+        #: The screen's back buffer keeps its pixels across a swap (software GLs such as
+        #: llvmpipe copy it to the window; a GPU's flipped buffers do not): the dome and
+        #: panorama previews then leave panels that did not change on the screen.
+        self.screen_keeps_pixels = screen_keeps_pixels(self.ctx, self.window)
         self.input = PanelInput(h)
         self.renderer: Any = None
         self.render_error = ""
@@ -198,6 +234,7 @@ class ViewerWindow:
             wake()
 
         def on_resize(w: int, h: int) -> None:
+            self.panel_renderer.forget()
             self.input.height_px = h
             imgui.get_io().display_size = imgui.ImVec2(float(w), float(h))
             wake()
@@ -208,6 +245,7 @@ class ViewerWindow:
             return True
 
         def on_expose() -> None:
+            self.panel_renderer.forget()  # the window system may have drawn over it
             wake()
 
         for handler in (on_mouse_motion, on_mouse_press, on_mouse_release, on_mouse_drag,
@@ -357,6 +395,7 @@ class ViewerWindow:
         imgui = self._imgui
         t0 = time.perf_counter()
         self.session.sync_show()  # the clock and the view follow the show
+        self.session.update_readout(t0)
         self._apply_view_settings()
         # What this frame shows; an edit made by the panels below changes the revision
         # again, so the loop draws the next frame at once (the edit is seen next frame).
@@ -375,6 +414,11 @@ class ViewerWindow:
         self.ctx.screen.use()
         self.ctx.viewport = (0, 0, fw, fh)
         drawn = False
+        #: The dome or panorama preview, drawn over black between the panels: on a
+        #: screen that keeps its pixels, only the picture area is drawn anew, and the
+        #: panels only when they changed (PanelRenderer.render's ``picture``).
+        picture = self._scene_area() if self.session.view_mode != "flat" and \
+            self.screen_keeps_pixels else None
         if self.renderer is not None:
             try:
                 if self.session.view_mode == "flat":
@@ -386,7 +430,7 @@ class ViewerWindow:
                                                   self._view(), overlay=overlay)
                     self.renderer.draw(geom, self.ctx.screen)
                 else:
-                    self._draw_immersive(fw, fh, moving)
+                    self._draw_immersive(fw, fh, moving, picture)
                 drawn = True
             except Exception as err:  # keep the editor usable; say what went wrong
                 self.session.message = f"the scene cannot be drawn: {err}"
@@ -394,6 +438,7 @@ class ViewerWindow:
             self.ctx.viewport = (0, 0, fw, fh)
         if not drawn:
             self.ctx.clear(*BACKGROUND)
+            picture = None
         imgui.get_io().delta_time = 1.0 / 60.0
         imgui.new_frame()
         if drawn and (frame := self.show_frame()) is not None:
@@ -407,7 +452,7 @@ class ViewerWindow:
         self._last_layout = layout
         self._blit_preview()
         imgui.render()
-        self.panel_renderer.render(imgui.get_draw_data(), (fw, fh))
+        self.panel_renderer.render(imgui.get_draw_data(), (fw, fh), picture)
         self.frames_drawn += 1
         self.frame_times_s.append(time.perf_counter() - t0)
         if self.ui_report is not None:
@@ -446,7 +491,8 @@ class ViewerWindow:
             self._shown = kept = (key, show_picture(self.editor.scene, c.t_s, show_s))
         return kept[1]
 
-    def _draw_immersive(self, fw: int, fh: int, moving: bool = False) -> None:
+    def _draw_immersive(self, fw: int, fh: int, moving: bool = False,
+                        picture: tuple[int, int, int, int] | None = None) -> None:
         """The dome master or panorama of the scene as the export makes it (the show's
         camera, fades, captions and clock), at most 1024 px high, centred in the picture
         area between the panels. While the picture ``moving``, a draft: one sample per
@@ -466,7 +512,12 @@ class ViewerWindow:
         #: Where the preview is on the window: (x, y from the top, width, height) px.
         self.preview_rect = (x0, fh - y0 - size[1], size[0], size[1])
         self.ctx.screen.use()
-        self.ctx.clear(0.0, 0.0, 0.0, 1.0)
+        if picture is not None and self.panel_renderer.keeps(picture, (fw, fh)):
+            # The panels of the last frame are still on the screen: clear the picture only.
+            px, py, pw, ph = picture
+            self.ctx.screen.clear(0.0, 0.0, 0.0, 1.0, viewport=(px, fh - py - ph, pw, ph))
+        else:
+            self.ctx.clear(0.0, 0.0, 0.0, 1.0)
         # As ShowFrames.at makes the exported frame, without reading it back. The draft
         # goes straight onto the screen; the still frame is the export's own (top row
         # first), blitted flipped under the panels (_blit_preview).

@@ -6,7 +6,6 @@ from typing import TYPE_CHECKING
 
 from imgui_bundle import imgui
 
-from ..readout import body_readout
 from ..session import Session
 from .widgets import (
     AMBER,
@@ -24,7 +23,7 @@ def draw(p: Panels, s: Session, pos: tuple[float, float], size: tuple[float, flo
         if k is None:
             imgui.text_colored(DIM, "No body selected.")
         else:
-            r = body_readout(ed.scene, k, s.clock.t_s)
+            r = s.readout(k)  # at the readout time (Session.update_readout)
             p.report["readout"] = [list(row) for row in r.rows]
             p.report["values"] = r.values
             p.table("readout", tuple(r.rows), 170)

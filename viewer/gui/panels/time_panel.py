@@ -54,14 +54,15 @@ def draw(p: Panels, s: Session, pos: tuple[float, float], size: tuple[float, flo
 
             p.typed_field("rate", rate_text(clock.rate), set_rate, 130, refusal=False)
         imgui.same_line()
-        when = ed.scene.epoch.plus_seconds(clock.t_s).iso()
-        imgui.text(f"   {when}   ({clock.t_s / DAY_S:+.3f} d since the scene epoch)")
+        shown = s.readout_t_s  # the clock, at most READOUT_HZ times a second while playing
+        when = ed.scene.epoch.plus_seconds(shown).iso()
+        imgui.text(f"   {when}   ({shown / DAY_S:+.3f} d since the scene epoch)")
         if "rate" in p.errors:
             p.refusal("rate: " + p.errors["rate"])
         lo, hi = clock.span(ed.scene)
         hi = max(hi, lo + DAY_S)
         imgui.set_next_item_width(-1)
-        changed, days = imgui.slider_float("##scrub", clock.t_s / DAY_S, lo / DAY_S,
+        changed, days = imgui.slider_float("##scrub", shown / DAY_S, lo / DAY_S,
                                            hi / DAY_S, "%.2f d")
         if changed:  # scene time: off the show (the timeline panel scrubs the show)
             clock.seek_scene(days * DAY_S)
