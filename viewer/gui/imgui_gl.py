@@ -10,6 +10,7 @@ window events into imgui input events; it holds no state of its own beyond the i
 from __future__ import annotations
 
 import ctypes
+import math
 from typing import Any
 
 import numpy as np
@@ -144,7 +145,8 @@ class PanelRenderer:
         else:
             kept_before = self.keeps(picture, framebuffer_size)
             sig = _signature(lists, data, (dw, dh), framebuffer_size)
-            reach = any(_overlap(box, picture) for box in _boxes(lists, data, sx, sy))
+            reach = any(_overlap(box, picture)
+                        for box in _boxes(lists, data, (dw, dh), sx, sy))
             same = kept_before and not textures_changed and self._kept is not None \
                 and self._kept[2] == sig
             self._kept = None if reach else (tuple(picture), tuple(framebuffer_size), sig)
@@ -213,32 +215,36 @@ def _signature(lists: list[Any], data: list[tuple[bytes, bytes]],
     return b"".join(parts)
 
 
-def _boxes(lists: list[Any], data: list[tuple[bytes, bytes]], sx: float, sy: float
-           ) -> list[Rect]:
-    """The framebuffer rectangle each draw can touch: its triangles' bounding box within
-    its clip rectangle (imgui leaves scrolled-away content to the clip), a pixel wider
-    each way for rounding."""
+def _boxes(lists: list[Any], data: list[tuple[bytes, bytes]], display: tuple[float, float],
+           sx: float, sy: float) -> list[Rect]:
+    """The framebuffer rectangle each draw can touch, a pixel wider each way for rounding:
+    its clip rectangle, or where that is the whole display (a window's frame, title and
+    background), its triangles' bounding box. imgui clips scrolled-away content, so the
+    triangles alone could reach far outside their window."""
     out: list[Rect] = []
+    dw, dh = display
     index_type = np.uint16 if imgui.INDEX_SIZE == 2 else np.uint32
     for cmds, (vertices, indices) in zip(lists, data, strict=True):
-        if not vertices:
-            continue
-        xy = np.frombuffer(vertices, dtype=np.float32).reshape(
-            -1, imgui.VERTEX_SIZE // 4)[:, :2]
-        idx = np.frombuffer(indices, dtype=index_type)
+        xy = idx = None
         for cmd in cmds.cmd_buffer:
-            used = idx[cmd.idx_offset:cmd.idx_offset + cmd.elem_count]
-            if used.size == 0:
+            if cmd.elem_count == 0:
                 continue
-            p = xy[used.astype(np.intp) + cmd.vtx_offset]
-            cx0, cy0, cx1, cy1 = cmd.clip_rect
-            x0, y0 = max(float(p[:, 0].min()), cx0), max(float(p[:, 1].min()), cy0)
-            x1, y1 = min(float(p[:, 0].max()), cx1), min(float(p[:, 1].max()), cy1)
+            x0, y0, x1, y1 = cmd.clip_rect
+            if x0 <= 0.0 and y0 <= 0.0 and x1 >= dw and y1 >= dh:
+                if xy is None:
+                    xy = np.frombuffer(vertices, dtype=np.float32).reshape(
+                        -1, imgui.VERTEX_SIZE // 4)[:, :2]
+                    idx = np.frombuffer(indices, dtype=index_type)
+                assert idx is not None
+                used = idx[cmd.idx_offset:cmd.idx_offset + cmd.elem_count]
+                p = xy[used.astype(np.intp) + cmd.vtx_offset]
+                (px0, py0), (px1, py1) = p.min(axis=0), p.max(axis=0)
+                x0, y0, x1, y1 = max(x0, float(px0)), max(y0, float(py0)), \
+                    min(x1, float(px1)), min(y1, float(py1))
             if x1 <= x0 or y1 <= y0:
                 continue
-            left, top = int(np.floor(x0 * sx)) - 1, int(np.floor(y0 * sy)) - 1
-            out.append((left, top, int(np.ceil(x1 * sx)) + 1 - left,
-                        int(np.ceil(y1 * sy)) + 1 - top))
+            left, top = math.floor(x0 * sx) - 1, math.floor(y0 * sy) - 1
+            out.append((left, top, math.ceil(x1 * sx) + 1 - left, math.ceil(y1 * sy) + 1 - top))
     return out
 
 
