@@ -70,3 +70,38 @@ def test_a_frame_drawn_into_part_of_a_larger_target_matches_a_frame_of_its_own(r
         tex.release()
     _nearly_equal(part, alone)
     assert not outside.any()  # nothing spilled outside its rectangle
+
+
+@pytest.mark.parametrize("population", [0, 3000])
+def test_a_frame_clipped_to_a_rectangle_leaves_the_rest_untouched(renderer, population):
+    """``clip_px`` (the window's picture between its kept panels): outside the rectangle
+    every pixel stays as it was, stars included (llvmpipe lets a wide point spill a pixel
+    past the scissor, so stars that would cross the edge are left out); inside, away
+    from the edge, the frame drawn whole."""
+    scene = demo_like_scene(population=population)
+    size = (800, 450)
+    t = 42 * DAY_S
+    clip = (130, 70, 500, 300)  # x, y from the bottom, width, height
+    ctx = renderer.ctx
+    rb = ctx.renderbuffer(size, 4)
+    fbo = ctx.framebuffer(color_attachments=[rb])
+    try:
+        geom = renderer.geometry(scene, t, view_for(scene, t, size))
+        renderer.draw(geom, fbo, top_row_first=False)
+        whole = np.frombuffer(fbo.read(components=4, alignment=1), np.uint8).reshape(
+            size[1], size[0], 4)
+        fbo.clear(1.0, 0.0, 1.0, 1.0)
+        renderer.draw(geom, fbo, top_row_first=False, clip_px=clip)
+        clipped = np.frombuffer(fbo.read(components=4, alignment=1), np.uint8).reshape(
+            size[1], size[0], 4)
+    finally:
+        fbo.release()
+        rb.release()
+    x, y, w, h = clip  # rows of the read-back count from the bottom, as GL's do
+    outside = np.ones(size[::-1], dtype=bool)
+    outside[y:y + h, x:x + w] = False
+    assert (clipped[outside] == (255, 0, 255, 255)).all()
+    m = 6  # a star's width: those crossing the edge are not drawn
+    inner = (slice(y + m, y + h - m), slice(x + m, x + w - m))
+    assert np.array_equal(clipped[inner], whole[inner])
+    assert (whole[inner][..., :3].max(axis=2) > 60).sum() > 500  # orbits and labels there

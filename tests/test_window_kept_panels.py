@@ -1,6 +1,7 @@
-"""The dome and panorama previews leave unchanged panels on a screen that keeps its
-pixels (viewer.gui.imgui_gl.PanelRenderer.render's ``picture``), and the panels' time
-readouts move on at most READOUT_HZ times a second while time plays (Session).
+"""The window leaves unchanged panels on a screen that keeps its pixels and draws only
+the picture between them anew (viewer.gui.imgui_gl.PanelRenderer.render's ``picture``),
+and the panels' time readouts move on at most READOUT_HZ times a second while time
+plays (Session).
 
 What must hold: a frame that left the panels on the screen is, pixel for pixel, the
 frame drawn whole (every panel drawn over a cleared screen) in the same state; after
@@ -52,8 +53,19 @@ def check(label):
     del s.update_readout
     diff = int((kept != whole).any(axis=2).sum())
     out["checks"].append([label, skipped, diff])
-s.view_mode = "dome"
 clock.playing = True
+for _ in range(6):
+    frame(1 / 60)
+check("flat, playing")
+s.show_timeline = True  # the show frame dimmed: a panel reaches into the picture
+for _ in range(3):
+    frame(1 / 60)
+check("flat, timeline shown")
+s.show_timeline = False
+for _ in range(3):
+    frame(1 / 60)
+check("flat, timeline hidden")
+s.view_mode = "dome"
 for _ in range(6):
     frame(1 / 60)
 check("dome, playing")
@@ -100,7 +112,9 @@ def test_panels_left_on_the_screen_equal_panels_drawn_whole(display: Display,
         assert diff == 0, (label, diff)
     skipped = {label: s for label, s, _ in out["checks"]}
     # Nothing changed between the two frames: the panels were left on the screen.
-    assert skipped["dome, playing"] and skipped["panorama, paused"]
+    assert skipped["flat, playing"] and skipped["dome, playing"] and \
+        skipped["panorama, paused"]
+    assert not skipped["flat, timeline shown"]  # drawn whole while a panel reaches in
     assert out["whole_without_keeping"]
 
 

@@ -20,6 +20,8 @@ from ..render.shaders import load_program
 
 #: (x, y from the top, width, height) in framebuffer pixels.
 Rect = tuple[int, int, int, int]
+RGBA = tuple[float, float, float, float]
+BLACK: RGBA = (0.0, 0.0, 0.0, 1.0)
 
 
 class PanelRenderer:
@@ -35,8 +37,8 @@ class PanelRenderer:
         self._ibo = ctx.buffer(reserve=1 << 16, dynamic=True)
         self._vao = self._make_vao()
         self._textures: dict[int, Any] = {}
-        #: (picture, framebuffer size, signature of the panels) that the screen shows
-        #: outside the picture since the last render with a picture, or None.
+        #: (picture, framebuffer size, colour outside, signature of the panels) that the
+        #: screen shows outside the picture since the last render with a picture, or None.
         self._kept: tuple[Any, ...] | None = None
         io = imgui.get_io()
         io.backend_flags |= imgui.BackendFlags_.renderer_has_textures
@@ -100,12 +102,14 @@ class PanelRenderer:
 
     # --- drawing ----------------------------------------------------------------------
 
-    def keeps(self, picture: Rect, framebuffer_size: tuple[int, int]) -> bool:
+    def keeps(self, picture: Rect, framebuffer_size: tuple[int, int],
+              outside: RGBA = BLACK) -> bool:
         """True if the screen outside ``picture`` still holds the panels that the last
-        frame's ``render`` left there with this picture (see ``render``): the caller then
-        clears only the picture before drawing it."""
-        return self._kept is not None and self._kept[:2] == (tuple(picture),
-                                                            tuple(framebuffer_size))
+        frame's ``render`` left there with this picture over ``outside`` (see
+        ``render``): the caller then draws only the picture."""
+        return self._kept is not None and self._kept[:3] == (tuple(picture),
+                                                            tuple(framebuffer_size),
+                                                            tuple(outside))
 
     def forget(self) -> None:
         """The screen no longer holds the last frame's panels (resized, exposed, drawn
@@ -113,18 +117,18 @@ class PanelRenderer:
         self._kept = None
 
     def render(self, draw_data: Any, framebuffer_size: tuple[int, int],
-               picture: Rect | None = None) -> bool:
+               picture: Rect | None = None, outside: RGBA = BLACK) -> bool:
         """Draw one frame of panels over whatever is in the framebuffer; True if drawn.
 
         ``picture`` (x, y from the top, width, height; framebuffer pixels) is given only
         on a screen that keeps its pixels from one frame to the next
         (``screen_keeps_pixels``) when the caller draws that area anew each frame and
-        leaves the rest black under the panels (a dome or panorama preview; the caller
-        clears all of it when ``keeps`` is False). Then panels that are the same as the
-        last frame's, none reaching into the picture, are not drawn again: the screen
-        still shows them. Otherwise the screen outside the picture is cleared to black
-        and every panel drawn, as over a whole cleared screen, so the pixels are the
-        same either way. Without ``picture`` every panel is drawn and the kept ones are
+        leaves the rest the colour ``outside`` (premultiplied RGBA) under the panels (the
+        caller clears all of it when ``keeps`` is False). Then panels that are the same
+        as the last frame's, none reaching into the picture, are not drawn again: the
+        screen still shows them. Otherwise the screen outside the picture is cleared to
+        ``outside`` and every panel drawn, as over a whole cleared screen, so the pixels
+        are the same either way. Without ``picture`` every panel is drawn and the kept ones are
         forgotten (the caller draws under them).
         """
         textures_changed = self._update_textures()
@@ -143,18 +147,19 @@ class PanelRenderer:
         if picture is None:
             self._kept = None
         else:
-            kept_before = self.keeps(picture, framebuffer_size)
+            kept_before = self.keeps(picture, framebuffer_size, outside)
             sig = _signature(lists, data, (dw, dh), framebuffer_size)
             reach = any(_overlap(box, picture)
                         for box in _boxes(lists, data, (dw, dh), sx, sy))
             same = kept_before and not textures_changed and self._kept is not None \
-                and self._kept[2] == sig
-            self._kept = None if reach else (tuple(picture), tuple(framebuffer_size), sig)
+                and self._kept[3] == sig
+            self._kept = None if reach else (tuple(picture), tuple(framebuffer_size),
+                                             tuple(outside), sig)
             if same and not reach:
                 return False
             if kept_before:  # last frame's panels are still there: clear them first
                 for x, y, w, h in _outside(picture, framebuffer_size):
-                    self.ctx.screen.clear(0.0, 0.0, 0.0, 1.0, viewport=(x, fh - y - h, w, h))
+                    self.ctx.screen.clear(*outside, viewport=(x, fh - y - h, w, h))
         self._draw(lists, data, (dw, dh), framebuffer_size)
         return True
 

@@ -15,7 +15,9 @@ PANEL_FONT_PX = 18.0
 #: RGBA in [0, 1].
 TEXT = (0.93, 0.94, 0.96, 1.0)
 TEXT_SECONDARY = (0.78, 0.81, 0.86, 1.0)  # contrast about 10:1 on the panel background
-PANEL_BG = (0.055, 0.065, 0.095, 0.92)
+#: Opaque: the picture stays between the panels, so panels that did not change need not
+#: be drawn again over it (ViewerWindow on a screen that keeps its pixels).
+PANEL_BG = (0.055, 0.065, 0.095, 1.0)
 FRAME_BG = (0.12, 0.14, 0.20, 1.0)
 FRAME_HOVER = (0.18, 0.22, 0.32, 1.0)
 ACCENT = (0.30, 0.52, 0.86, 1.0)

@@ -414,11 +414,11 @@ class ViewerWindow:
         self.ctx.screen.use()
         self.ctx.viewport = (0, 0, fw, fh)
         drawn = False
-        #: The dome or panorama preview, drawn over black between the panels: on a
-        #: screen that keeps its pixels, only the picture area is drawn anew, and the
-        #: panels only when they changed (PanelRenderer.render's ``picture``).
-        picture = self._scene_area() if self.session.view_mode != "flat" and \
-            self.screen_keeps_pixels else None
+        #: On a screen that keeps its pixels, only the picture between the panels is
+        #: drawn anew each frame, over the colour ``outside`` elsewhere, and the panels
+        #: only when they changed (PanelRenderer.render's ``picture``).
+        picture = self._scene_area() if self.screen_keeps_pixels else None
+        outside = (0.0, 0.0, 0.0, 1.0)  # premultiplied RGBA round the picture
         if self.renderer is not None:
             try:
                 if self.session.view_mode == "flat":
@@ -428,7 +428,15 @@ class ViewerWindow:
                     drawn_scene = scene_with_overlays(shown, self.session.overlays)
                     geom = self.renderer.geometry(drawn_scene, self.session.clock.t_s,
                                                   self._view(), overlay=overlay)
-                    self.renderer.draw(geom, self.ctx.screen)
+                    clip = None
+                    if picture is not None:
+                        bg = geom.background
+                        outside = (bg[0] * bg[3], bg[1] * bg[3], bg[2] * bg[3], bg[3])
+                        if not self.panel_renderer.keeps(picture, (fw, fh), outside):
+                            self.ctx.clear(*outside)
+                        px, py, pw, ph = picture
+                        clip = (px, fh - py - ph, pw, ph)
+                    self.renderer.draw(geom, self.ctx.screen, clip_px=clip)
                 else:
                     self._draw_immersive(fw, fh, moving, picture)
                 drawn = True
@@ -452,7 +460,7 @@ class ViewerWindow:
         self._last_layout = layout
         self._blit_preview()
         imgui.render()
-        self.panel_renderer.render(imgui.get_draw_data(), (fw, fh), picture)
+        self.panel_renderer.render(imgui.get_draw_data(), (fw, fh), picture, outside)
         self.frames_drawn += 1
         self.frame_times_s.append(time.perf_counter() - t0)
         if self.ui_report is not None:

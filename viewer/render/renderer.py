@@ -23,7 +23,7 @@ from __future__ import annotations
 import sys
 from collections.abc import Iterator, Sequence
 from contextlib import contextmanager
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any
 
 import numpy as np
@@ -65,6 +65,21 @@ BODIES_PER_VERTEX = 4
 
 #: Dark halo behind label glyphs (premultiplied in the shader).
 HALO_RGBA = (0.0, 0.0, 0.0, 0.92)
+
+
+def _stars_within(stars: NDArray[np.float64], clip_px: tuple[int, int, int, int],
+                  size_px: tuple[int, int], top_row_first: bool) -> NDArray[np.float64]:
+    """The stars whose whole point lies inside ``clip_px`` (GL's rows, from the bottom).
+    llvmpipe lets a wide point spill a pixel past the scissor rectangle, where the
+    window keeps its panels; lines, fills and text are clipped by the scissor itself."""
+    if len(stars) == 0:
+        return stars
+    x, y, w, h = clip_px
+    top = y if top_row_first else size_px[1] - (y + h)
+    half = 0.5 * (np.maximum(stars[:, 2], 1.0) + 1.0) + 1.0  # points.vert's size, a pixel more
+    inside = ((stars[:, 0] - half >= x) & (stars[:, 0] + half <= x + w)
+              & (stars[:, 1] - half >= top) & (stars[:, 1] + half <= top + h))
+    return stars[inside]
 
 
 class _Stream:
@@ -239,17 +254,27 @@ class Renderer:
     # --- drawing ------------------------------------------------------------------------
 
     def draw(self, geom: FrameGeometry, framebuffer: Any, top_row_first: bool = False,
-             origin_px: tuple[int, int] = (0, 0)) -> None:
+             origin_px: tuple[int, int] = (0, 0),
+             clip_px: tuple[int, int, int, int] | None = None) -> None:
         """Draw ``geom`` into ``framebuffer`` (cleared to the frame's background first).
 
         The framebuffer's size must be the view's size; the window passes its screen
         framebuffer here (image up is screen up), the exporters an offscreen one with
         ``top_row_first`` so that its memory reads out as an image, top row first,
-        with no flip on the CPU.
+        with no flip on the CPU. ``clip_px`` (x, y, width, height; GL's rows, from the
+        bottom) limits the clear and every draw to that rectangle: the window leaves
+        the panels around its picture untouched.
         """
         self._begin(geom, framebuffer, top_row_first, origin_px)
-        self._draw_under(geom, framebuffer, top_row_first, origin_px)
-        self._draw_over(geom)
+        self.ctx.scissor = clip_px
+        if clip_px is not None:
+            geom = replace(geom, stars=_stars_within(geom.stars, clip_px, geom.view.size_px,
+                                                     top_row_first))
+        try:
+            self._draw_under(geom, framebuffer, top_row_first, origin_px, clip_px)
+            self._draw_over(geom)
+        finally:
+            self.ctx.scissor = None
 
     def _begin(self, geom: FrameGeometry, framebuffer: Any, top_row_first: bool,
                origin_px: tuple[int, int]) -> None:
@@ -276,7 +301,8 @@ class Renderer:
         self.ctx.blend_equation = mgl.FUNC_ADD
 
     def _draw_under(self, geom: FrameGeometry, framebuffer: Any, top_row_first: bool,
-                    origin_px: tuple[int, int]) -> None:
+                    origin_px: tuple[int, int],
+                    clip_px: tuple[int, int, int, int] | None = None) -> None:
         """The background (or the populations' backdrop), stars, grid, sector fills,
         glows and lines: every layer under the bodies' markers and the labels."""
         bg = geom.background
@@ -284,7 +310,7 @@ class Renderer:
             self._backdrop(geom, framebuffer, top_row_first, origin_px)
         else:
             framebuffer.clear(bg[0] * bg[3], bg[1] * bg[3], bg[2] * bg[3], bg[3],
-                              viewport=self.ctx.viewport)
+                              viewport=clip_px or self.ctx.viewport)
         self._blend()
         self._points(self.s_stars, geom.stars)
         self._triangles(self.s_grid, geom.grid, STROKE_FLOATS)
