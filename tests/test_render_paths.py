@@ -29,25 +29,35 @@ def _nearly_equal(a, b):
     assert np.count_nonzero(diff.any(axis=2)) < 0.002 * a.shape[0] * a.shape[1]
 
 
+def _screen_frames(renderer, scene, t, size, clips):
+    """Frames drawn as onto a window's screen (a renderbuffer: no direct backdrop write,
+    rows counted from the bottom, read back that way), one per entry of ``clips``: the
+    ``clip_px`` to draw with, each over a target filled with magenta."""
+    ctx = renderer.ctx
+    rb = ctx.renderbuffer(size, 4)
+    fbo = ctx.framebuffer(color_attachments=[rb])
+    out = []
+    try:
+        geom = renderer.geometry(scene, t, view_for(scene, t, size))
+        for clip in clips:
+            fbo.clear(1.0, 0.0, 1.0, 1.0)
+            renderer.draw(geom, fbo, top_row_first=False, clip_px=clip)
+            raw = np.frombuffer(fbo.read(components=4, alignment=1), np.uint8)
+            out.append(raw.reshape(size[1], size[0], 4))
+    finally:
+        fbo.release()
+        rb.release()
+    return out
+
+
 @pytest.mark.parametrize("population", [0, 3000])
 def test_a_screen_drawn_frame_matches_the_exported_frame(renderer, population):
     scene = demo_like_scene(population=population)
     size = (800, 450)
     t = 42 * DAY_S
     exported = renderer.render(scene, t, size)
-    # A renderbuffer target, as a window's screen: no direct backdrop write, y up.
-    ctx = renderer.ctx
-    rb = ctx.renderbuffer(size, 4)
-    fbo = ctx.framebuffer(color_attachments=[rb])
-    try:
-        geom = renderer.geometry(scene, t, view_for(scene, t, size))
-        renderer.draw(geom, fbo, top_row_first=False)
-        raw = np.frombuffer(fbo.read(components=4, alignment=1), np.uint8)
-        screen = raw.reshape(size[1], size[0], 4)[::-1]
-    finally:
-        fbo.release()
-        rb.release()
-    _nearly_equal(screen, exported)
+    (screen,) = _screen_frames(renderer, scene, t, size, [None])
+    _nearly_equal(screen[::-1], exported)
 
 
 def test_a_frame_drawn_into_part_of_a_larger_target_matches_a_frame_of_its_own(renderer):
@@ -80,23 +90,8 @@ def test_a_frame_clipped_to_a_rectangle_leaves_the_rest_untouched(renderer, popu
     from the edge, the frame drawn whole."""
     scene = demo_like_scene(population=population)
     size = (800, 450)
-    t = 42 * DAY_S
     clip = (130, 70, 500, 300)  # x, y from the bottom, width, height
-    ctx = renderer.ctx
-    rb = ctx.renderbuffer(size, 4)
-    fbo = ctx.framebuffer(color_attachments=[rb])
-    try:
-        geom = renderer.geometry(scene, t, view_for(scene, t, size))
-        renderer.draw(geom, fbo, top_row_first=False)
-        whole = np.frombuffer(fbo.read(components=4, alignment=1), np.uint8).reshape(
-            size[1], size[0], 4)
-        fbo.clear(1.0, 0.0, 1.0, 1.0)
-        renderer.draw(geom, fbo, top_row_first=False, clip_px=clip)
-        clipped = np.frombuffer(fbo.read(components=4, alignment=1), np.uint8).reshape(
-            size[1], size[0], 4)
-    finally:
-        fbo.release()
-        rb.release()
+    whole, clipped = _screen_frames(renderer, scene, 42 * DAY_S, size, [None, clip])
     x, y, w, h = clip  # rows of the read-back count from the bottom, as GL's do
     outside = np.ones(size[::-1], dtype=bool)
     outside[y:y + h, x:x + w] = False

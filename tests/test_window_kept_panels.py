@@ -53,38 +53,32 @@ def check(label):
     del s.update_readout
     diff = int((kept != whole).any(axis=2).sum())
     out["checks"].append([label, skipped, diff])
-clock.playing = True
-for _ in range(6):
-    frame(1 / 60)
-check("flat, playing")
-s.show_timeline = True  # the show frame dimmed: a panel reaches into the picture
-for _ in range(3):
-    frame(1 / 60)
-check("flat, timeline shown")
-s.show_timeline = False
-for _ in range(3):
-    frame(1 / 60)
-check("flat, timeline hidden")
-s.view_mode = "dome"
-for _ in range(6):
-    frame(1 / 60)
-check("dome, playing")
-win.editor.select(2)
-frame(1 / 60)
-check("dome, another body selected")
-s.show_plots = True
-for _ in range(3):
-    frame(1 / 60)
-check("dome, plots open")
-s.show_plots = False
-for _ in range(3):
-    frame(1 / 60)
-check("dome, plots closed")
-clock.playing = False
-s.view_mode = "panorama"
-for _ in range(3):
-    frame()
-check("panorama, paused")
+steps = [  # (what changes, then frames played before the check, its label)
+    ("play", 6, "flat, playing"),
+    ("timeline", 3, "flat, timeline shown"),  # the show frame dimmed: reaches the picture
+    ("no timeline", 3, "flat, timeline hidden"),
+    ("dome", 6, "dome, playing"),
+    ("select", 1, "dome, another body selected"),
+    ("plots", 3, "dome, plots open"),
+    ("no plots", 3, "dome, plots closed"),
+    ("panorama", 3, "panorama, paused"),
+]
+changes = {
+    "play": lambda: setattr(clock, "playing", True),
+    "timeline": lambda: setattr(s, "show_timeline", True),
+    "no timeline": lambda: setattr(s, "show_timeline", False),
+    "dome": lambda: setattr(s, "view_mode", "dome"),
+    "select": lambda: win.editor.select(2),
+    "plots": lambda: setattr(s, "show_plots", True),
+    "no plots": lambda: setattr(s, "show_plots", False),
+    "panorama": lambda: (setattr(clock, "playing", False),
+                         setattr(s, "view_mode", "panorama")),
+}
+for change, frames, label in steps:
+    changes[change]()
+    for _ in range(frames):
+        frame(1 / 60)
+    check(label)
 win.screen_keeps_pixels = False
 s.view_mode = "dome"
 for _ in range(3):
