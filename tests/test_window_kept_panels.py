@@ -151,3 +151,63 @@ def test_readouts_move_on_at_most_readout_hz_while_playing() -> None:
     c.advance(0.04)
     c.playing = False
     assert s.readout_t_s == c.t_s  # paused: the clock's at once
+
+
+_SHOWN = """
+import sys, time
+import numpy as np
+from viewer.gui.editor import Editor
+from viewer.gui.window import ViewerWindow
+win = ViewerWindow(Editor.open(sys.argv[1]), size=(1280, 720))
+win.window.set_location(0, 0)
+s = win.session
+for _ in range(20):  # mapped, laid out, settled
+    win.window.dispatch_events(); time.sleep(0.02); win.draw_frame()
+win.show_drawn()
+s.overlays["grid"] = False  # a frame unlike the one before it
+s.overlays["stars"] = False
+win.window.dispatch_events(); win.draw_frame()
+queued = win.screenshot()[..., :3]
+print("queued, screen shows the one before", flush=True)
+sys.stdin.readline()
+win.show_drawn()
+time.sleep(0.3)
+np.save(sys.argv[2], queued)
+print("shown", flush=True)
+sys.stdin.readline()
+win.close()
+"""
+
+
+@WINDOW[0]
+@WINDOW[1]
+def test_the_loop_shows_a_queued_frame_once_nothing_follows(display: Display,
+                                                            tmp_path: Path) -> None:
+    """draw_frame queues a frame and swaps the one before onto the screen; show_drawn
+    (the loop calls it before it waits for input) puts the queued one on: the X server
+    then shows exactly what the window drew."""
+    import numpy as np
+
+    out = tmp_path / "queued.npy"
+    with subprocess.Popen([sys.executable, "-c", _SHOWN, str(ROOT / "scenes" / "demo.toml"),
+                           str(out)], env=display.env, stdin=subprocess.PIPE,
+                          stdout=subprocess.PIPE, stderr=subprocess.DEVNULL,
+                          text=True) as proc:
+        try:
+            assert proc.stdout is not None and proc.stdin is not None
+            assert proc.stdout.readline().startswith("queued")
+            before = display.screen()[:720, :1280].astype(int)
+            proc.stdin.write("\n")
+            proc.stdin.flush()
+            assert proc.stdout.readline().startswith("shown")
+            after = display.screen()[:720, :1280].astype(int)
+            proc.stdin.write("\n")
+            proc.stdin.flush()
+            assert proc.wait(timeout=60) == 0
+        finally:
+            if proc.poll() is None:
+                proc.kill()
+    queued = np.load(out).astype(int)
+    assert (after.max(axis=2) > 60).sum() > 5000  # panels and orbits, not a blank screen
+    assert np.abs(after - queued).max() <= 1  # the queued frame, now on the screen
+    assert (np.abs(before - queued).max(axis=2) > 8).sum() > 500  # and not before

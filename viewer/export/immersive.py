@@ -279,6 +279,17 @@ FAN_SIDES = 32
 FAN_MARGIN_PX = 2.0
 
 
+@dataclass
+class FacePlan:
+    """What ``ImmersiveRenderer.faces`` makes for ``draw``: the output as framed, the
+    view it is seen from, the faces drawn (atlas tile, view) and their geometry."""
+
+    spec: Immersive
+    base: View
+    drawn: list[tuple[int, View]]
+    geoms: list[Any]
+
+
 class ImmersiveRenderer:
     """Dome masters and panoramas through one Renderer; GL objects kept between frames."""
 
@@ -410,15 +421,11 @@ class ImmersiveRenderer:
         fbo = self.draw(scene, t_s, spec, camera, transparent, overlay)
         return self.renderer.read(fbo, spec.size_px, transparent, out)
 
-    def draw(self, scene: Scene, t_s: float, spec: Immersive, camera: Camera | None = None,
-             transparent: bool = False, overlay: Sequence[OverlayText] = (),
-             draft: bool = False, screen: tuple[Any, tuple[int, int]] | None = None) -> Any:
-        """Draw what ``render`` returns into the renderer's offscreen framebuffer of the
-        output's size (top row first) and return that framebuffer (the window's preview
-        shows it without reading it back). ``draft``: through ``draft_rig``'s fewer
-        faces (the window while the picture moves). ``screen`` (framebuffer, (x, y)
-        of the picture's bottom-left corner there): draw into that framebuffer instead,
-        rows counted from the bottom, as a window's screen counts them."""
+    def faces(self, scene: Scene, t_s: float, spec: Immersive, camera: Camera | None = None,
+              transparent: bool = False, draft: bool = False) -> FacePlan:
+        """The part of ``draw`` that needs no GL: the output's framing, the cube faces
+        to draw and their geometry. The window makes it ahead, while llvmpipe still
+        draws the frame before, and passes it to ``draw`` with the same arguments."""
         cam = scene.camera if camera is None else camera
         spec = spec.framed(cam)
         base = view_for(scene, t_s, spec.size_px,
@@ -427,15 +434,31 @@ class ImmersiveRenderer:
         if draft:
             base, spec = draft_rig(base, spec)
             reach = 0.999  # the shader samples inside the dome's circle only
-        omap = spec.output_map()
         views = face_views(base, spec, scene.dome, reach)
+        drawn = [(i, views[n]) for i, n in enumerate(FACE_NAMES) if n in views]
+        geoms = self.renderer.geometries(scene, t_s, [v for _i, v in drawn], transparent,
+                                         place=False)
+        return FacePlan(spec, base, drawn, geoms)
+
+    def draw(self, scene: Scene, t_s: float, spec: Immersive, camera: Camera | None = None,
+             transparent: bool = False, overlay: Sequence[OverlayText] = (),
+             draft: bool = False, screen: tuple[Any, tuple[int, int]] | None = None,
+             faces: FacePlan | None = None) -> Any:
+        """Draw what ``render`` returns into the renderer's offscreen framebuffer of the
+        output's size (top row first) and return that framebuffer (the window's preview
+        shows it without reading it back). ``draft``: through ``draft_rig``'s fewer
+        faces (the window while the picture moves). ``screen`` (framebuffer, (x, y)
+        of the picture's bottom-left corner there): draw into that framebuffer instead,
+        rows counted from the bottom, as a window's screen counts them. ``faces``: what
+        ``faces`` returned for the same scene, time and arguments, if made already."""
+        plan = faces if faces is not None else self.faces(scene, t_s, spec, camera,
+                                                          transparent, draft)
+        spec, base, drawn, geoms = plan.spec, plan.base, plan.drawn, plan.geoms
+        omap = spec.output_map()
         prog, vao = self._program(spec.grid)
         size = spec.face_px()
         atlas, atlas_fbo = self._atlas(size)
         face_text = []
-        drawn = [(i, views[n]) for i, n in enumerate(FACE_NAMES) if n in views]
-        geoms = self.renderer.geometries(scene, t_s, [v for _i, v in drawn], transparent,
-                                         place=False)
         for (i, view), geom in zip(drawn, geoms, strict=True):
             face_text.append((view, geom.label_requests, geom.label_obstacles))
             geom.grid = emphasised_grid(geom.grid)

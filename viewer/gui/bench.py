@@ -32,16 +32,18 @@ def measure_window(scene_path: str | Path, size: tuple[int, int] = (1920, 1080),
         step_s = 1.0 / 60.0
 
         def timed(n: int) -> list[float]:
-            """Whole window frames (events, clock, scene, panels, swap), after a warm-up."""
+            """Whole window frames as its loop draws them (events, clock, the frame laid
+            out, the last one swapped on, this one queued: ViewerWindow.draw_frame),
+            after a warm-up."""
             out = []
             for k in range(warmup + n):
                 t0 = time.perf_counter()
                 win.window.dispatch_events()
                 clock.advance(step_s)
-                win.draw()
-                win.window.flip()
+                win.draw_frame()
                 if k >= warmup:
                     out.append(time.perf_counter() - t0)
+            win.show_drawn()
             return out
 
         if dome_only:

@@ -165,6 +165,8 @@ class ViewerWindow:
         self._shown: Any = None  # the last show picture, with what it was made from
         self.preview_rect: tuple[int, int, int, int] | None = None
         self._closed = False
+        #: A frame drawn by draw_frame and not yet swapped onto the screen.
+        self._unshown = False
         self.frames_drawn = 0
         self.frame_times_s: list[float] = []
         self._attach()
@@ -392,6 +394,32 @@ class ViewerWindow:
 
     def draw(self) -> None:
         """Draw one frame: the scene, then the panels over it (not flipped yet)."""
+        self._submit(self._prepare())
+
+    def draw_frame(self) -> None:
+        """One frame as the loop draws it, a frame behind on the screen: lay out this
+        frame (the flat scene's geometry, the panels) while llvmpipe still draws the last
+        one on its threads, swap the last one onto the screen, then queue this one's GL
+        work and hand it to the GL (``flush``), to be drawn while the next frame is laid
+        out. ``show_drawn`` swaps it on when no next frame follows."""
+        from ..render.context import flush
+
+        frame = self._prepare()
+        self.show_drawn()
+        self._submit(frame)
+        flush()
+        self._unshown = True
+
+    def show_drawn(self) -> None:
+        """Swap the frame ``draw_frame`` drew onto the screen, if it is not there yet."""
+        if self._unshown:
+            self._unshown = False
+            self.window.flip()
+
+    def _prepare(self) -> dict[str, Any]:
+        """The Python half of a frame, with no GL call: the clock and the view follow the
+        show, the flat picture's geometry is made, the panels are laid out (their edits
+        take effect now and are drawn in the next frame)."""
         imgui = self._imgui
         t0 = time.perf_counter()
         self.session.sync_show()  # the clock and the view follow the show
@@ -409,6 +437,37 @@ class ViewerWindow:
         if self.session.editor is not self._shown_editor:  # File > Open showed another scene
             self._shown_editor = self.session.editor
             self.window.set_caption(f"Perifocal - {self.editor.scene.title}")
+        geom = plan = None
+        if self.renderer is not None:
+            try:
+                if self.session.view_mode == "flat":
+                    # The show's fades, captions and clock as the export draws them
+                    # (export.show.show_picture), seen through the window's view.
+                    shown, overlay = self._show_picture()
+                    drawn_scene = scene_with_overlays(shown, self.session.overlays)
+                    geom = self.renderer.geometry(drawn_scene, self.session.clock.t_s,
+                                                  self._view(), overlay=overlay)
+                else:
+                    plan = self._immersive_plan(self.window.get_framebuffer_size()[1],
+                                                moving)
+            except Exception as err:  # keep the editor usable; say what went wrong
+                self.session.message = f"the scene cannot be drawn: {err}"
+        imgui.get_io().delta_time = 1.0 / 60.0
+        imgui.new_frame()
+        if self.renderer is not None and (frame := self.show_frame()) is not None:
+            self._dim_outside(frame)
+        self.panels.draw(self.session, self.window.get_size())
+        # A panel or dialog that sizes itself to its content settles over a few frames
+        # (it grows, then is placed by its new size): draw until the layout stays put.
+        layout = self.panels.report["rects"]
+        if layout != self._last_layout:
+            self._pending = max(self._pending, 1)
+        self._last_layout = layout
+        imgui.render()
+        return {"t0": t0, "geom": geom, "plan": plan}
+
+    def _submit(self, frame: dict[str, Any]) -> None:
+        """The GL half of a frame made by ``_prepare``: the picture, then the panels."""
         self.window.switch_to()
         fw, fh = self.window.get_framebuffer_size()
         self.ctx.screen.use()
@@ -419,15 +478,10 @@ class ViewerWindow:
         #: only when they changed (PanelRenderer.render's ``picture``).
         picture = self._scene_area() if self.screen_keeps_pixels else None
         outside = (0.0, 0.0, 0.0, 1.0)  # premultiplied RGBA round the picture
-        if self.renderer is not None:
+        geom, plan = frame["geom"], frame["plan"]
+        if self.renderer is not None and (geom is not None or plan is not None):
             try:
-                if self.session.view_mode == "flat":
-                    # The show's fades, captions and clock as the export draws them
-                    # (export.show.show_picture), seen through the window's view.
-                    shown, overlay = self._show_picture()
-                    drawn_scene = scene_with_overlays(shown, self.session.overlays)
-                    geom = self.renderer.geometry(drawn_scene, self.session.clock.t_s,
-                                                  self._view(), overlay=overlay)
+                if geom is not None:
                     clip = None
                     if picture is not None:
                         bg = geom.background
@@ -438,7 +492,7 @@ class ViewerWindow:
                         clip = (px, fh - py - ph, pw, ph)
                     self.renderer.draw(geom, self.ctx.screen, clip_px=clip)
                 else:
-                    self._draw_immersive(fw, fh, moving, picture)
+                    self._draw_immersive(fw, fh, plan, picture)
                 drawn = True
             except Exception as err:  # keep the editor usable; say what went wrong
                 self.session.message = f"the scene cannot be drawn: {err}"
@@ -447,22 +501,10 @@ class ViewerWindow:
         if not drawn:
             self.ctx.clear(*BACKGROUND)
             picture = None
-        imgui.get_io().delta_time = 1.0 / 60.0
-        imgui.new_frame()
-        if drawn and (frame := self.show_frame()) is not None:
-            self._dim_outside(frame)
-        self.panels.draw(self.session, self.window.get_size())
-        # A panel or dialog that sizes itself to its content settles over a few frames
-        # (it grows, then is placed by its new size): draw until the layout stays put.
-        layout = self.panels.report["rects"]
-        if layout != self._last_layout:
-            self._pending = max(self._pending, 1)
-        self._last_layout = layout
         self._blit_preview()
-        imgui.render()
-        self.panel_renderer.render(imgui.get_draw_data(), (fw, fh), picture, outside)
+        self.panel_renderer.render(self._imgui.get_draw_data(), (fw, fh), picture, outside)
         self.frames_drawn += 1
-        self.frame_times_s.append(time.perf_counter() - t0)
+        self.frame_times_s.append(time.perf_counter() - frame["t0"])
         if self.ui_report is not None:
             self._write_report()
 
@@ -499,13 +541,9 @@ class ViewerWindow:
             self._shown = kept = (key, show_picture(self.editor.scene, c.t_s, show_s))
         return kept[1]
 
-    def _draw_immersive(self, fw: int, fh: int, moving: bool = False,
-                        picture: tuple[int, int, int, int] | None = None) -> None:
-        """The dome master or panorama of the scene as the export makes it (the show's
-        camera, fades, captions and clock), at most 1024 px high, centred in the picture
-        area between the panels. While the picture ``moving``, a draft: one sample per
-        pixel in place of the export's 2 x 2, and a dome through four cube faces
-        (immersive.draft_rig); still, exactly the export."""
+    def _immersive_plan(self, fh: int, moving: bool) -> dict[str, Any]:
+        """The part of a dome or panorama preview frame that needs no GL (``_prepare``):
+        the preview's size and place, the show's picture, the faces' geometry."""
         from ..export.immersive import Immersive, ImmersiveRenderer, preview_size
 
         if self._immersive is None:
@@ -517,6 +555,20 @@ class ViewerWindow:
         # Centred in the area; GL counts rows from the bottom of the screen.
         x0 = ax + (aw - size[0]) // 2
         y0 = fh - (ay + (ah + size[1]) // 2)
+        shown, overlay = self._show_picture()
+        faces = self._immersive.faces(shown, self.session.clock.t_s, spec, draft=moving)
+        return {"spec": spec, "origin": (x0, y0), "shown": shown, "overlay": overlay,
+                "faces": faces, "moving": moving}
+
+    def _draw_immersive(self, fw: int, fh: int, plan: dict[str, Any],
+                        picture: tuple[int, int, int, int] | None = None) -> None:
+        """The dome master or panorama of the scene as the export makes it (the show's
+        camera, fades, captions and clock), at most 1024 px high, centred in the picture
+        area between the panels. While the picture moves, a draft: one sample per pixel
+        in place of the export's 2 x 2, and a dome through four cube faces
+        (immersive.draft_rig); still, exactly the export. ``plan``: _immersive_plan's."""
+        spec, (x0, y0), moving = plan["spec"], plan["origin"], plan["moving"]
+        size = spec.size_px
         #: Where the preview is on the window: (x, y from the top, width, height) px.
         self.preview_rect = (x0, fh - y0 - size[1], size[0], size[1])
         self.ctx.screen.use()
@@ -529,15 +581,15 @@ class ViewerWindow:
         # As ShowFrames.at makes the exported frame, without reading it back. The draft
         # goes straight onto the screen; the still frame is the export's own (top row
         # first), blitted flipped under the panels (_blit_preview).
-        shown, overlay = self._show_picture()
-        fbo = self._immersive.draw(shown, self.session.clock.t_s, spec, overlay=overlay,
-                                   draft=moving,
-                                   screen=(self.ctx.screen, (x0, y0)) if moving else None)
+        fbo = self._immersive.draw(plan["shown"], self.session.clock.t_s, spec,
+                                   overlay=plan["overlay"], draft=moving,
+                                   screen=(self.ctx.screen, (x0, y0)) if moving else None,
+                                   faces=plan["faces"])
         self._blit = None if moving else (fbo, size, x0, y0)
 
     def _blit_preview(self) -> None:
-        """Copy the preview drawn by _draw_immersive onto the screen. Called after the
-        panels are laid out, so llvmpipe draws the preview while Python lays them out."""
+        """Copy the still preview drawn by _draw_immersive onto the screen, under the
+        panels."""
         from pyglet import gl
 
         if self._blit is None:
@@ -646,6 +698,8 @@ class ViewerWindow:
         try:
             while not self.session.quit_now:
                 busy = self.needs_frame() or quit_after is not None
+                if not busy:
+                    self.show_drawn()  # nothing follows it for now: show the last frame
                 loop.step(0.0 if busy else IDLE_WAIT_S)
                 self.window.dispatch_events()
                 if self.window.has_exit and not self.session.unsaved_for:
@@ -657,15 +711,14 @@ class ViewerWindow:
                 if not (self.needs_frame() or quit_after is not None):
                     continue
                 self._pending = max(0, self._pending - 1)
-                self.draw()
+                self.draw_frame()
                 if quit_after is not None and self.frames_drawn >= quit_after:
                     if screenshot is not None:
                         from ..export.encode import write_still
 
                         write_still(Path(screenshot), self.screenshot(), "png")
-                    self.window.flip()
+                    self.show_drawn()
                     break
-                self.window.flip()
         finally:
             self.close()
         return 0
