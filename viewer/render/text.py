@@ -108,6 +108,7 @@ class GlyphAtlas:
         self.descent = float(by1)
         self._kern: dict[str, float] = {}
         self._pens: dict[str, tuple[float, ...]] = {}
+        self._corners: dict[str, Floats] = {}
 
     def has(self, text: str) -> bool:
         return all(ch in self.glyphs for ch in text)
@@ -150,25 +151,36 @@ class GlyphAtlas:
 
     def quads(self, label: PlacedLabel) -> Floats:
         """Text vertices (6 per glyph) for ``label``, glyphs on whole pixels."""
-        pens = self.pen_positions(label.text)
-        x0 = round(label.x_px)
-        y0 = round(label.y_px)
+        corners = self._corners.get(label.text)
+        if corners is None:
+            if len(self._corners) >= _PENS_KEPT:  # a clock's text is new every frame
+                self._corners.clear()
+            corners = self._corners[label.text] = self._glyph_corners(label.text)
+        out = np.empty((len(corners), TEXT_FLOATS), dtype=np.float64)
+        out[:, :4] = corners
+        out[:, 0] += round(label.x_px)  # whole pixels added to whole pixels: exact
+        out[:, 1] += round(label.y_px)
+        out[:, 4:] = label.rgba
+        return out
+
+    def _glyph_corners(self, text: str) -> Floats:
+        """(x, y, u, v) of the six vertices of each glyph of ``text``, x and y from the
+        text's origin in whole pixels (kept by text, as the pens are)."""
+        pens = self.pen_positions(text)
         rows = []
         H, W = self.image.shape[:2]
-        for ch, pen in zip(label.text, pens, strict=False):
+        for ch, pen in zip(text, pens, strict=False):
             g = self.glyphs.get(ch) or self.glyphs["?"]
             if ch == " ":
                 continue
-            gx = x0 + round(pen) + g.left
-            gy = y0 + g.top
+            gx = round(pen) + g.left
+            gy = g.top
             u0, v0 = g.x0 / W, g.y0 / H
             u1, v1 = (g.x0 + g.w) / W, (g.y0 + g.h) / H
-            corners = ((gx, gy, u0, v0), (gx + g.w, gy, u1, v0), (gx, gy + g.h, u0, v1),
-                       (gx, gy + g.h, u0, v1), (gx + g.w, gy, u1, v0),
-                       (gx + g.w, gy + g.h, u1, v1))
-            for cx, cy, u, v in corners:
-                rows.append((cx, cy, u, v, *label.rgba))
-        return np.array(rows, dtype=np.float64).reshape(-1, TEXT_FLOATS)
+            rows += [(gx, gy, u0, v0), (gx + g.w, gy, u1, v0), (gx, gy + g.h, u0, v1),
+                     (gx, gy + g.h, u0, v1), (gx + g.w, gy, u1, v0),
+                     (gx + g.w, gy + g.h, u1, v1)]
+        return np.array(rows, dtype=np.float64).reshape(-1, 4)
 
 
 class FontCache:
