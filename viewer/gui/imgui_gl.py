@@ -128,8 +128,8 @@ class PanelRenderer:
         as the last frame's, none reaching into the picture, are not drawn again: the
         screen still shows them. Otherwise the screen outside the picture is cleared to
         ``outside`` and every panel drawn, as over a whole cleared screen, so the pixels
-        are the same either way. Without ``picture`` every panel is drawn and the kept ones are
-        forgotten (the caller draws under them).
+        are the same either way. Without ``picture`` every panel is drawn and the kept
+        ones are forgotten (the caller draws under them).
         """
         textures_changed = self._update_textures()
         io = imgui.get_io()

@@ -38,7 +38,8 @@ __all__ = ["Session"]
 #: While time plays, the panels' time readouts (the Numbers panel, the Time panel's date
 #: and slider) move on at most this many times a second, as instrument readouts do
 #: (common practice, no source): digits that change at the frame rate cannot be read,
-#: and a panel that stays the same is not drawn again over a dome preview (ViewerWindow).
+#: and a panel that stays the same need not be drawn again (ViewerWindow, on a screen
+#: that keeps its pixels).
 #: The picture, its captions and its clock move every frame. Paused, the readouts follow
 #: the clock at once.
 READOUT_HZ = 10.0

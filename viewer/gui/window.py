@@ -118,8 +118,8 @@ class ViewerWindow:
         io.display_size = imgui.ImVec2(float(w), float(h))
         self.panel_renderer = PanelRenderer(self.ctx)
         #: The screen's back buffer keeps its pixels across a swap (software GLs such as
-        #: llvmpipe copy it to the window; a GPU's flipped buffers do not): the dome and
-        #: panorama previews then leave panels that did not change on the screen.
+        #: llvmpipe copy it to the window; a GPU's flipped buffers do not): each frame
+        #: then draws only the picture anew and leaves unchanged panels on the screen.
         self.screen_keeps_pixels = screen_keeps_pixels(self.ctx, self.window)
         self.input = PanelInput(h)
         self.renderer: Any = None
