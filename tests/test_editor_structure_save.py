@@ -124,3 +124,25 @@ def test_derived_sectors_follow_an_edit_of_the_orbit_and_given_ones_stay(
     ed.set_field("apoapsis", "35000 km")
     kept = ed.scene.bodies[k].sweep
     assert kept is not None and kept.interval_given and kept.interval_s == 7200.0
+
+
+def test_derived_sectors_keep_their_interval_when_the_orbit_opens(mission: Path) -> None:
+    """An open orbit has no period to divide, and the scene format then requires the
+    sectors' interval (viewer.scene.loader): a derived interval becomes a given one, the
+    same length, and the saved file loads. (Hypothesis found this: sectors shown, then e
+    set to 3, then saved.)"""
+    ed = Editor.open(mission)
+    k = [b.name for b in ed.scene.bodies].index("Wren transfer")
+    before = ed.scene.bodies[k].sweep
+    assert before is not None and not before.interval_given
+    ed.select(k)
+    ed.hold = "periapsis"  # an orbit opens about its periapsis
+    ed.set_field("e", "3")
+    opened = ed.scene.bodies[k].sweep
+    assert opened is not None and opened.interval_given
+    assert opened.interval_s == before.interval_s and opened.count == before.count
+    ed.save()
+    again = load_scene(mission).bodies[k]
+    assert float(again.elements.e) == 3.0
+    assert again.sweep is not None and again.sweep.interval_given
+    assert again.sweep.interval_s == pytest.approx(before.interval_s, rel=1e-12)

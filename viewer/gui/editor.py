@@ -570,9 +570,13 @@ def _default_sweep(body: Body) -> Sweep:
 
 
 def _follow_orbit(sweep: Sweep | None, el: Elements) -> Sweep | None:
-    """A derived interval (one period / count) brought to the orbit's new period."""
-    if sweep is None or sweep.interval_given or float(el.e) >= 1.0:
+    """A derived interval (one period / count) brought to the orbit's new period. An
+    orbit that opens has no period to divide: its sectors keep the interval they had,
+    now given (saved as ``interval``, as the scene format requires on an open orbit)."""
+    if sweep is None or sweep.interval_given:
         return sweep
+    if float(el.e) >= 1.0:
+        return replace(sweep, interval_given=True)
     return replace(sweep, interval_s=float(el.period) / sweep.count)
 
 
