@@ -124,11 +124,13 @@ class PanelRenderer:
         on a screen that keeps its pixels from one frame to the next
         (``screen_keeps_pixels``) when the caller draws that area anew each frame and
         leaves the rest the colour ``outside`` (premultiplied RGBA) under the panels (the
-        caller clears all of it when ``keeps`` is False). Then panels that are the same
-        as the last frame's, none reaching into the picture, are not drawn again: the
-        screen still shows them. Otherwise the screen outside the picture is cleared to
-        ``outside`` and every panel drawn, as over a whole cleared screen, so the pixels
-        are the same either way. Without ``picture`` every panel is drawn and the kept
+        caller clears all of it when ``keeps`` is False). Then, while no panel reaches
+        into the picture, a panel (a draw list) that is the same as in the last frame is
+        not drawn again, the screen still shows it; one that changed is drawn again over
+        its old and new rectangles cleared, with every panel those rectangles touch.
+        Otherwise the screen outside the picture is cleared to ``outside`` and every
+        panel drawn. Either way the pixels are those of every panel drawn over a whole
+        cleared screen. Without ``picture`` every panel is drawn and the kept
         ones are forgotten (the caller draws under them).
         """
         textures_changed = self._update_textures()
@@ -148,15 +150,28 @@ class PanelRenderer:
             self._kept = None
         else:
             kept_before = self.keeps(picture, framebuffer_size, outside)
-            sig = _signature(lists, data, (dw, dh), framebuffer_size)
-            reach = any(_overlap(box, picture)
-                        for box in _boxes(lists, data, (dw, dh), sx, sy))
-            same = kept_before and not textures_changed and self._kept is not None \
-                and self._kept[3] == sig
+            head = (float(dw), float(dh), len(lists))
+            sigs = [_signature(c, d) for c, d in zip(lists, data, strict=True)]
+            boxes = _boxes(lists, data, (dw, dh), sx, sy)
+            reach = any(b is not None and _overlap(b, picture) for b in boxes)
+            last = self._kept
             self._kept = None if reach else (tuple(picture), tuple(framebuffer_size),
-                                             tuple(outside), sig)
-            if same and not reach:
-                return False
+                                             tuple(outside), head, sigs, boxes)
+            if kept_before and last is not None and not reach and not textures_changed \
+                    and last[3] == head:
+                # The same windows: draw again only those that changed and those they
+                # touch, each over its old and new rectangle cleared.
+                redraw = _to_redraw(last[4], last[5], sigs, boxes)
+                for i in redraw:
+                    for box in {last[5][i], boxes[i]} - {None}:
+                        x, y, w, h = _on_screen(box, framebuffer_size)
+                        if w > 0 and h > 0:
+                            self.ctx.screen.clear(*outside, viewport=(x, fh - y - h, w, h))
+                if not redraw:
+                    return False
+                self._draw([lists[i] for i in redraw], [data[i] for i in redraw], (dw, dh),
+                           framebuffer_size)
+                return True
             if kept_before:  # last frame's panels are still there: clear them first
                 for x, y, w, h in _outside(picture, framebuffer_size):
                     self.ctx.screen.clear(*outside, viewport=(x, fh - y - h, w, h))
@@ -206,31 +221,56 @@ class PanelRenderer:
         self.program.release()
 
 
-def _signature(lists: list[Any], data: list[tuple[bytes, bytes]],
-               display: tuple[float, float], framebuffer_size: tuple[int, int]) -> bytes:
-    """Everything the panels' pixels depend on: vertices, indices, each draw's clip,
-    texture and range, the display and framebuffer sizes (the atlas's pixels are
-    checked apart: ``_update_textures``)."""
-    parts = [np.array([*display, *framebuffer_size, len(lists)], dtype=np.float64).tobytes()]
-    for cmds, (vertices, indices) in zip(lists, data, strict=True):
-        calls = [(*cmd.clip_rect, float(cmd.tex_ref.get_tex_id()), cmd.elem_count,
-                  cmd.idx_offset, cmd.vtx_offset) for cmd in cmds.cmd_buffer]
-        parts += [np.array([len(vertices), len(indices), len(calls)], np.int64).tobytes(),
-                  vertices, indices, np.array(calls, dtype=np.float64).tobytes()]
-    return b"".join(parts)
+def _signature(cmds: Any, data: tuple[bytes, bytes]) -> bytes:
+    """Everything one draw list's pixels depend on: its vertices and indices, and each
+    draw's clip, texture and range (the atlas's pixels are checked apart:
+    ``_update_textures``; the display size by the caller)."""
+    vertices, indices = data
+    calls = [(*cmd.clip_rect, float(cmd.tex_ref.get_tex_id()), cmd.elem_count,
+              cmd.idx_offset, cmd.vtx_offset) for cmd in cmds.cmd_buffer]
+    return b"".join([np.array([len(vertices), len(indices), len(calls)], np.int64).tobytes(),
+                     vertices, indices, np.array(calls, dtype=np.float64).tobytes()])
+
+
+def _to_redraw(old_sigs: list[bytes], old_boxes: list[Rect | None], sigs: list[bytes],
+               boxes: list[Rect | None]) -> list[int]:
+    """The draw lists to draw again, in order: those that changed, and every list whose
+    rectangle meets a rectangle cleared for them (theirs, old and new), until none more
+    does."""
+    redraw = {i for i, (a, b) in enumerate(zip(old_sigs, sigs, strict=True))
+              if a != b or old_boxes[i] != boxes[i]}
+    cleared = [r for i in redraw for r in (old_boxes[i], boxes[i]) if r is not None]
+    grown = True
+    while grown:
+        grown = False
+        for j, box in enumerate(boxes):
+            if j not in redraw and box is not None and any(_overlap(box, r) for r in cleared):
+                redraw.add(j)
+                cleared.append(box)
+                grown = True
+    return sorted(redraw)
+
+
+def _on_screen(box: Rect, framebuffer_size: tuple[int, int]) -> Rect:
+    x0, y0 = max(0, box[0]), max(0, box[1])
+    x1 = min(framebuffer_size[0], box[0] + box[2])
+    y1 = min(framebuffer_size[1], box[1] + box[3])
+    return x0, y0, x1 - x0, y1 - y0
 
 
 def _boxes(lists: list[Any], data: list[tuple[bytes, bytes]], display: tuple[float, float],
-           sx: float, sy: float) -> list[Rect]:
-    """The framebuffer rectangle each draw can touch, a pixel wider each way for rounding:
-    its clip rectangle, or where that is the whole display (a window's frame, title and
+           sx: float, sy: float) -> list[Rect | None]:
+    """The framebuffer rectangle each draw list can touch (None if it draws nothing), a
+    pixel wider each way for rounding: the union over its draws of each one's clip
+    rectangle, or where that is the whole display (a window's frame, title and
     background), its triangles' bounding box. imgui clips scrolled-away content, so the
     triangles alone could reach far outside their window."""
-    out: list[Rect] = []
+    out: list[Rect | None] = []
     dw, dh = display
     index_type = np.uint16 if imgui.INDEX_SIZE == 2 else np.uint32
     for cmds, (vertices, indices) in zip(lists, data, strict=True):
         xy = idx = None
+        union: list[float] | None = None
         for cmd in cmds.cmd_buffer:
             if cmd.elem_count == 0:
                 continue
@@ -248,8 +288,14 @@ def _boxes(lists: list[Any], data: list[tuple[bytes, bytes]], display: tuple[flo
                     min(x1, float(px1)), min(y1, float(py1))
             if x1 <= x0 or y1 <= y0:
                 continue
-            left, top = math.floor(x0 * sx) - 1, math.floor(y0 * sy) - 1
-            out.append((left, top, math.ceil(x1 * sx) + 1 - left, math.ceil(y1 * sy) + 1 - top))
+            union = [x0, y0, x1, y1] if union is None else [
+                min(union[0], x0), min(union[1], y0), max(union[2], x1), max(union[3], y1)]
+        if union is None:
+            out.append(None)
+            continue
+        left, top = math.floor(union[0] * sx) - 1, math.floor(union[1] * sy) - 1
+        out.append((left, top, math.ceil(union[2] * sx) + 1 - left,
+                    math.ceil(union[3] * sy) + 1 - top))
     return out
 
 
