@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import ctypes
 import math
+from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
@@ -22,6 +23,19 @@ from ..render.shaders import load_program
 Rect = tuple[int, int, int, int]
 RGBA = tuple[float, float, float, float]
 BLACK: RGBA = (0.0, 0.0, 0.0, 1.0)
+
+
+@dataclass(frozen=True)
+class _Kept:
+    """What the screen shows outside ``picture`` after a render with a picture: the
+    panels of draw lists with these signatures in these rectangles, over ``outside``."""
+
+    picture: Rect
+    framebuffer_size: tuple[int, int]
+    outside: RGBA
+    display: tuple[float, float, int]  # display size, and the number of draw lists
+    sigs: list[bytes]
+    boxes: list[Rect | None]
 
 
 class PanelRenderer:
@@ -37,9 +51,9 @@ class PanelRenderer:
         self._ibo = ctx.buffer(reserve=1 << 16, dynamic=True)
         self._vao = self._make_vao()
         self._textures: dict[int, Any] = {}
-        #: (picture, framebuffer size, colour outside, signature of the panels) that the
-        #: screen shows outside the picture since the last render with a picture, or None.
-        self._kept: tuple[Any, ...] | None = None
+        #: What the screen shows outside the picture since the last render with a
+        #: picture, or None.
+        self._kept: _Kept | None = None
         io = imgui.get_io()
         io.backend_flags |= imgui.BackendFlags_.renderer_has_textures
         size = int(ctx.info["GL_MAX_TEXTURE_SIZE"])
@@ -107,9 +121,9 @@ class PanelRenderer:
         """True if the screen outside ``picture`` still holds the panels that the last
         frame's ``render`` left there with this picture over ``outside`` (see
         ``render``): the caller then draws only the picture."""
-        return self._kept is not None and self._kept[:3] == (tuple(picture),
-                                                            tuple(framebuffer_size),
-                                                            tuple(outside))
+        k = self._kept
+        return k is not None and (k.picture, k.framebuffer_size, k.outside) == (
+            picture, framebuffer_size, outside)
 
     def forget(self) -> None:
         """The screen no longer holds the last frame's panels (resized, exposed, drawn
@@ -155,15 +169,15 @@ class PanelRenderer:
             boxes = _boxes(lists, data, (dw, dh), sx, sy)
             reach = any(b is not None and _overlap(b, picture) for b in boxes)
             last = self._kept
-            self._kept = None if reach else (tuple(picture), tuple(framebuffer_size),
-                                             tuple(outside), head, sigs, boxes)
+            self._kept = None if reach else _Kept(picture, framebuffer_size, outside, head,
+                                                  sigs, boxes)
             if kept_before and last is not None and not reach and not textures_changed \
-                    and last[3] == head:
+                    and last.display == head:
                 # The same windows: draw again only those that changed and those they
                 # touch, each over its old and new rectangle cleared.
-                redraw = _to_redraw(last[4], last[5], sigs, boxes)
+                redraw = _to_redraw(last.sigs, last.boxes, sigs, boxes)
                 for i in redraw:
-                    for box in {last[5][i], boxes[i]} - {None}:
+                    for box in {b for b in (last.boxes[i], boxes[i]) if b is not None}:
                         x, y, w, h = _on_screen(box, framebuffer_size)
                         if w > 0 and h > 0:
                             self.ctx.screen.clear(*outside, viewport=(x, fh - y - h, w, h))

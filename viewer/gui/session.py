@@ -157,12 +157,10 @@ class Session:
         scene (an edit makes a new one), the body or the readout time changes."""
         from .readout import body_readout
 
-        scene = self.editor.scene
+        scene, t_s = self.editor.scene, self.readout_t_s
         kept = self._readout_kept
-        if kept is None or kept[0] is not scene or kept[1:3] != (index, self.readout_t_s):
-            kept = (scene, index, self.readout_t_s, body_readout(scene, index,
-                                                                 self.readout_t_s))
-            self._readout_kept = kept
+        if kept is None or kept[0] is not scene or kept[1:3] != (index, t_s):
+            kept = self._readout_kept = (scene, index, t_s, body_readout(scene, index, t_s))
         return kept[3]
 
     # --- quitting, saving -------------------------------------------------------------------

@@ -56,10 +56,6 @@ def screen_keeps_pixels(ctx: Any, window: Any) -> bool:
     read back (GL_BACK). Software GLs that copy the back buffer to the window (llvmpipe,
     the machines Perifocal is measured on) keep it; GPU drivers that flip buffers show
     an older buffer there, so the answer is False and every frame is drawn whole."""
-    import ctypes
-
-    from pyglet import gl
-
     window.switch_to()
     fw, fh = window.get_framebuffer_size()
     if fw <= 0 or fh <= 0:
@@ -69,13 +65,25 @@ def screen_keeps_pixels(ctx: Any, window: Any) -> bool:
     r, g, b = (c / 255.0 for c in _PROBE_RGB)
     ctx.screen.clear(r, g, b, 1.0, viewport=(0, 0, 1, 1))
     window.flip()
-    pixel = (ctypes.c_ubyte * 4)()
+    pixel = read_back_buffer(1, 1)
+    ctx.clear(0.0, 0.0, 0.0, 1.0)
+    return tuple(int(c) for c in pixel[0, 0, :3]) == _PROBE_RGB
+
+
+def read_back_buffer(width: int, height: int) -> np.ndarray:
+    """The current window's back buffer from its bottom-left corner, as RGBA uint8
+    (height, width, 4), rows from the bottom: read with GL directly (moderngl's screen
+    object names a colour attachment the default framebuffer does not have)."""
+    import ctypes
+
+    from pyglet import gl
+
+    buf = (ctypes.c_ubyte * (width * height * 4))()
     gl.glBindFramebuffer(gl.GL_READ_FRAMEBUFFER, 0)
     gl.glReadBuffer(gl.GL_BACK)
     gl.glPixelStorei(gl.GL_PACK_ALIGNMENT, 1)
-    gl.glReadPixels(0, 0, 1, 1, gl.GL_RGBA, gl.GL_UNSIGNED_BYTE, pixel)
-    ctx.clear(0.0, 0.0, 0.0, 1.0)
-    return tuple(pixel[:3]) == _PROBE_RGB
+    gl.glReadPixels(0, 0, width, height, gl.GL_RGBA, gl.GL_UNSIGNED_BYTE, buf)
+    return np.frombuffer(memoryview(buf), dtype=np.uint8).reshape(height, width, 4)
 
 
 class ViewerWindow:
@@ -638,19 +646,8 @@ class ViewerWindow:
 
     def screenshot(self) -> np.ndarray:
         """The window's back buffer as RGBA uint8 (H, W, 4), top row first."""
-        import ctypes
-
-        from pyglet import gl
-
         fw, fh = self.window.get_framebuffer_size()
-        # Read the default framebuffer's back buffer with GL directly (moderngl's screen
-        # object names a colour attachment the default framebuffer does not have).
-        buf = (ctypes.c_ubyte * (fw * fh * 4))()
-        gl.glBindFramebuffer(gl.GL_READ_FRAMEBUFFER, 0)
-        gl.glReadBuffer(gl.GL_BACK)
-        gl.glPixelStorei(gl.GL_PACK_ALIGNMENT, 1)
-        gl.glReadPixels(0, 0, fw, fh, gl.GL_RGBA, gl.GL_UNSIGNED_BYTE, buf)
-        img = np.frombuffer(buf, dtype=np.uint8).reshape(fh, fw, 4)[::-1].copy()
+        img = read_back_buffer(fw, fh)[::-1].copy()
         img[..., 3] = 255
         return img
 
