@@ -22,7 +22,7 @@ from typing import Any
 import numpy as np
 from numpy.typing import NDArray
 
-from ..orbit import state_from_elements
+from ..orbit import Elements, state_from_elements, true_from_mean
 from ..scene.model import Body, Population, Scene
 from ..scene.timeline import OverlayText
 from ..units import unit_factor
@@ -252,20 +252,49 @@ class StaticCache:
         self._items[id(body.elements)] = (key, entry)
         return entry
 
-    def state(self, body: Body, t_s: float) -> tuple[Floats, Floats]:
-        """The body's position and velocity (m, m/s) at scene time ``t_s``."""
-        entry = self.of(body)
-        kept = entry.get("state")
-        if kept is not None and kept[0] == t_s:  # type: ignore[index]
-            return kept[1], kept[2]  # type: ignore[index]
-        r, v = _state_at(body, t_s)
-        entry["state"] = (t_s, r, v)
-        return r, v
+    def states(self, bodies: Sequence[Body], t_s: float) -> list[tuple[Floats, Floats]]:
+        """``states_at`` of ``bodies``, each kept with its body for the next call at the
+        same time (the faces of a dome master, a window frame drawn again)."""
+        entries = [self.of(b) for b in bodies]
+        kept: list[Any] = [e.get("state") for e in entries]
+        todo = [k for k, st in enumerate(kept) if st is None or st[0] != t_s]
+        for k, rv in zip(todo, states_at([bodies[k] for k in todo], t_s), strict=True):
+            kept[k] = entries[k]["state"] = (t_s, *rv)
+        return [(st[1], st[2]) for st in kept]
 
 
 def _state_at(body: Body, t_s: float) -> tuple[Floats, Floats]:
     r, v = state_from_elements(body.elements_at(t_s))
     return np.asarray(r, dtype=np.float64), np.asarray(v, dtype=np.float64)
+
+
+def states_at(bodies: Sequence[Body], t_s: float) -> list[tuple[Floats, Floats]]:
+    """Each body's position and velocity (m, m/s) at scene time ``t_s``: those on their
+    own two-body conic in one Kepler solve and one state evaluation for them all. Both
+    are elementwise, so each body gets the very bits its own ``elements_at`` and
+    ``state_from_elements`` give (tests/test_geometry_states.py); a body that follows
+    an ephemeris or holds a parabola's size is evaluated on its own."""
+    out: list[Any] = [None] * len(bodies)
+    batch = [k for k, b in enumerate(bodies)
+             if b.track is None and b.elements.parabola_p is None and b.elements.mu is not None]
+    if len(batch) > 1:
+        els = [bodies[k].elements for k in batch]
+
+        def col(name: str) -> Floats:
+            return np.array([getattr(el, name) for el in els], dtype=np.float64)
+
+        dt = np.array([t_s - bodies[k].epoch_offset_s for k in batch], dtype=np.float64)
+        e = col("e")
+        M = col("mean_anomaly") + col("mean_motion") * dt  # as Elements.after, per row
+        now = Elements(col("a"), e, col("i"), col("raan"), col("argp"),
+                       true_from_mean(M, e), col("mu"))
+        r, v = state_from_elements(now)
+        for j, k in enumerate(batch):
+            out[k] = (r[j], v[j])
+    for k, b in enumerate(bodies):
+        if out[k] is None:
+            out[k] = _state_at(b, t_s)
+    return out
 
 
 def _static(cache: StaticCache | None, body: Body, key: str, make: Any) -> Any:
@@ -357,14 +386,16 @@ def _frame(scene: Scene, t_s: float, view: View, static: _StaticPart, measure: M
     occluder = static.occluder
     centre_cam = _centre_cam(view, occluder) if occluder is not None else None
     v_ref = _reference_speed(scene)
-    for k, body in enumerate(scene.bodies):
+    drawn = [(k, body) for k, body in enumerate(scene.bodies)
+             if ((body.show.marker and body.fade.marker > 0)
+                 or (body.show.label and body.fade.label > 0)
+                 or (body.show.velocity and body.fade.velocity > 0)) and body.in_flight(t_s)]
+    bodies = [body for _k, body in drawn]
+    states = cache.states(bodies, t_s) if cache is not None else states_at(bodies, t_s)
+    for (k, body), (r, v) in zip(drawn, states, strict=True):
         show = body.show
         fade = body.fade
-        if not ((show.marker and fade.marker > 0) or (show.label and fade.label > 0)
-                or (show.velocity and fade.velocity > 0)) or not body.in_flight(t_s):
-            continue
         col = body.color
-        r, v = cache.state(body, t_s) if cache is not None else _state_at(body, t_s)
         q, f, cam = _seen_px(view, r, occluder, centre_cam)
         if not f:
             continue

@@ -309,11 +309,14 @@ def _elliptic(M: Floats, e: Floats, tol: float, out: Floats | None = None,
     check = np.flatnonzero(np.abs(last, out=last) > _GUARD_STEP)
     if check.size:
         Ec, Mc, ec = E[check], Ma[check], e[check]
+        # Each value stops at its own convergence, so it never depends on the others in
+        # its array (a body solved alone or with the rest of its scene: the same bits).
         for _ in range(8):
             f = _elliptic_mean(Ec, ec) - Mc
-            if not np.any(np.abs(f) > tol):
+            bad = np.abs(f) > tol
+            if not np.any(bad):
                 break
-            Ec = Ec - f / ((1.0 - ec) + 2.0 * ec * np.sin(0.5 * Ec) ** 2)
+            Ec = np.where(bad, Ec - f / ((1.0 - ec) + 2.0 * ec * np.sin(0.5 * Ec) ** 2), Ec)
         E[check] = Ec
     # E in the turn of M: M + (E - |Mr|) * sign keeps the small difference exact.
     E -= Ma
