@@ -105,13 +105,20 @@ def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tu
     a rectangle (x0, y0, x1, y1) the labels stay inside (the window's free area): it
     sets ``outside``, and a required label that would stick out of it slides in whole.
     """
-    if keep_in is not None:
-        outside = outside_of(keep_in)
-    if outside is None:
-        outside = outside_of((0.0, 0.0, float(size_px[0]), float(size_px[1])))
+    # Within a rectangle (the image, or ``keep_in``) a label's first clear place is
+    # found by plain float arithmetic, stopping at the first box it overlaps (most
+    # labels fit at their first or second place); the same operations in the same order
+    # as the arrays below, so the same place. A label with no clear place, or a picture
+    # of another shape (``outside`` given), takes the arrays.
+    frame_box = keep_in if keep_in is not None else (
+        None if outside is not None else (0.0, 0.0, float(size_px[0]), float(size_px[1])))
+    if frame_box is not None:
+        outside = outside_of(frame_box)
+    assert outside is not None
     placed: list[PlacedLabel] = []
     # Boxes taken so far: placed labels (in order), then the obstacles.
     taken = np.array(obstacles, dtype=np.float64).reshape(-1, 4)
+    taken_boxes: list[Box] = [tuple(float(v) for v in b) for b in taken]  # type: ignore[misc]
     n_placed = 0
     order = sorted(range(len(requests)), key=lambda k: requests[k].priority)
     for k in order:
@@ -122,12 +129,23 @@ def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tu
         if req.at_px is not None:
             x, y = req.at_px
             placed.append(PlacedLabel(req.text, x, y, req.size_px, req.rgba))
-            taken = _taken_with(taken, n_placed, (x - _PAD_PX, y - ascent - _PAD_PX,
-                                                  x + width + _PAD_PX, y + descent + _PAD_PX))
+            box = (x - _PAD_PX, y - ascent - _PAD_PX, x + width + _PAD_PX, y + descent + _PAD_PX)
+            taken = _taken_with(taken, n_placed, box)
+            taken_boxes.insert(n_placed, box)
             n_placed += 1
             continue
         ax, ay = req.anchor_px
         text_h = ascent + descent
+        if frame_box is not None:
+            found = _first_clear(req, width, text_h, frame_box, taken_boxes)
+            if found is not None:
+                x0, y0 = found[0], found[1]
+                placed.append(PlacedLabel(req.text, x0 + _PAD_PX, y0 + _PAD_PX + ascent,
+                                          req.size_px, req.rgba))
+                taken = _taken_with(taken, n_placed, found)
+                taken_boxes.insert(n_placed, found)
+                n_placed += 1
+                continue
         gap = req.clearance_px + (0.25 + 1.1 * _RING_OF) * req.size_px
         # The text box's near edge sits ``gap`` from the anchor in each direction.
         cand = np.empty((len(gap), 4))
@@ -153,9 +171,47 @@ def place_labels(requests: Sequence[LabelRequest], measure: Measure, size_px: tu
             box_a += _slide_in(box_a, keep_in)
         placed.append(PlacedLabel(req.text, float(box_a[0] + _PAD_PX),
                                   float(box_a[1] + _PAD_PX + ascent), req.size_px, req.rgba))
-        taken = _taken_with(taken, n_placed, tuple(float(v) for v in box_a))
+        box = (float(box_a[0]), float(box_a[1]), float(box_a[2]), float(box_a[3]))
+        taken = _taken_with(taken, n_placed, box)
+        taken_boxes.insert(n_placed, box)
         n_placed += 1
     return placed
+
+
+#: The places tried, in order, as plain floats: (ring, dx, dy, lift per unit of gap).
+_PLACE_LIST = [(float(r), float(dx), float(dy), float(lf))
+               for r, dx, dy, lf in zip(_RING_OF, _DX, _DY, _LIFT, strict=True)]
+
+
+def _first_clear(req: LabelRequest, width: float, text_h: float, frame: Box,
+                 taken: list[Box]) -> Box | None:
+    """The first of a label's candidate boxes (as ``place_labels`` makes them) that lies
+    wholly inside ``frame`` and overlaps none of ``taken``; None if none does."""
+    ax, ay = req.anchor_px
+    fx0, fy0, fx1, fy1 = frame
+    for ring, dx, dy, lf in _PLACE_LIST:
+        gap = req.clearance_px + (0.25 + 1.1 * ring) * req.size_px
+        x0 = ax + gap if dx > 0 else (ax - gap - width if dx < 0 else ax - 0.5 * width)
+        lift = gap * lf
+        y0 = ay - lift - text_h if dy < 0 else (ay + lift if dy > 0 else ay - 0.5 * text_h)
+        x1 = x0 + width + _PAD_PX
+        y1 = y0 + text_h + _PAD_PX
+        x0 -= _PAD_PX
+        y0 -= _PAD_PX
+        # Off the frame: outside_of's area, zero only when the box lies within it.
+        iw = max(min(x1, fx1) - max(x0, fx0), 0.0)
+        ih = max(min(y1, fy1) - max(y0, fy0), 0.0)
+        if (x1 - x0) * (y1 - y0) - iw * ih != 0.0:
+            continue
+        for bx0, by0, bx1, by1 in taken:
+            w = min(x1, bx1) - max(x0, bx0)
+            if w > 0:
+                h = min(y1, by1) - max(y0, by0)
+                if h > 0 and w * h != 0.0:
+                    break
+        else:
+            return (x0, y0, x1, y1)
+    return None
 
 
 def _taken_with(taken: NDArray[np.float64], n_placed: int, box: tuple[float, ...]
