@@ -323,8 +323,16 @@ class _StaticPart:
 
 
 def _view_key(view: View) -> tuple[object, ...]:
+    """What a frame's time-independent part depends on in ``view`` (not where its labels
+    are kept: they are placed per frame)."""
     return (view.size_px, view.projection, view.origin_m.tobytes(), view.basis.tobytes(),
             view.width_m, view.distance_m, view.fov_rad, view.near_m, view.style_height_px)
+
+
+def frame_view_key(view: View) -> tuple[object, ...]:
+    """Everything in ``view`` that a whole frame depends on: two views with equal keys
+    give the same frame."""
+    return (*_view_key(view), view.label_box_px)
 
 
 def build_frame(scene: Scene, t_s: float, view: View, measure: Measure,
@@ -494,10 +502,13 @@ def _static_parts(scene: Scene, views: Sequence[View], measure: Measure,
     tess = tessellate_views(curves, views)
     lines = [s.send(t) for s, t in zip(steps, tess, strict=True)]
     hs = views[0].style_scale if views else 1.0
-    grid = stroke_vertices_views([g for g, _l, _o in lines], views, height_scale=hs,
-                                 occluders=[o for _g, _l, o in lines])
-    strokes = stroke_vertices_views([ln for _g, ln, _o in lines], views, height_scale=hs,
-                                    occluders=[o for _g, _l, o in lines])
+    # The grid and the lines of every view in one stroking pass (each result is still
+    # bit-identical to its own call: stroke_vertices_views).
+    n = len(views)
+    both = stroke_vertices_views([g for g, _l, _o in lines] + [ln for _g, ln, _o in lines],
+                                 list(views) * 2, height_scale=hs,
+                                 occluders=[o for _g, _l, o in lines] * 2)
+    grid, strokes = both[:n], both[n:]
     parts = []
     for s, g, k in zip(steps, grid, strokes, strict=True):
         try:
