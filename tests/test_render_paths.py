@@ -100,3 +100,34 @@ def test_a_frame_clipped_to_a_rectangle_leaves_the_rest_untouched(renderer, popu
     inner = (slice(y + m, y + h - m), slice(x + m, x + w - m))
     assert np.array_equal(clipped[inner], whole[inner])
     assert (whole[inner][..., :3].max(axis=2) > 60).sum() > 500  # orbits and labels there
+
+
+def test_the_same_frame_asked_again_is_the_same_geometry_and_any_change_is_a_new_one(renderer):
+    """Renderer.geometry hands back the frame it made last for the same scene object,
+    time, view and overlay (a window refreshing one show frame), and makes a new one
+    when any of them changes: there a label box kept clear of panels."""
+    from dataclasses import replace
+
+    from viewer.scene.timeline import OverlayText
+
+    scene = demo_like_scene()
+    view = view_for(scene, 10 * DAY_S, (480, 270))
+    caption = (OverlayText("a caption", "bottom", 22.0, (1.0, 1.0, 1.0, 1.0)),)
+    first = renderer.geometry(scene, 10 * DAY_S, view, overlay=caption)
+    assert renderer.geometry(scene, 10 * DAY_S, view_for(scene, 10 * DAY_S, (480, 270)),
+                             overlay=caption) is first
+    boxed = replace(view, label_box_px=(200.0, 0.0, 480.0, 270.0))
+    for other in (renderer.geometry(scene, 11 * DAY_S, view, overlay=caption),
+                  renderer.geometry(scene, 10 * DAY_S, boxed, overlay=caption),
+                  renderer.geometry(scene, 10 * DAY_S, view),
+                  renderer.geometry(replace(scene), 10 * DAY_S, view, overlay=caption)):
+        assert other is not first
+    # The boxed frame is its own: placed for the box (a body's name slid inside it).
+    boxed_geom = renderer.geometry(scene, 10 * DAY_S, boxed, overlay=caption)
+    names = {b.name for b in scene.bodies}
+
+    def body_labels(geom):
+        return {lb.text: lb.x_px for lb in geom.labels if lb.text in names}
+
+    assert min(body_labels(first).values()) < 200.0
+    assert min(body_labels(boxed_geom).values()) >= 200.0

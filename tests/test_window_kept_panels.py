@@ -42,6 +42,12 @@ def counted_lists(lists, *a):
     lists_drawn.append((len(lists), len(list(win._imgui.get_draw_data().cmd_lists))))
     return draw_lists(lists, *a)
 win.panel_renderer._draw = counted_lists
+pictures = []  # one entry per flat picture drawn
+draw_picture = win.renderer.draw
+def counted_picture(*a, **k):
+    pictures.append(1)
+    return draw_picture(*a, **k)
+win.renderer.draw = counted_picture
 def frame(dt=0.0):
     win.window.dispatch_events(); clock.advance(dt); win.draw()
     shot = win.screenshot(); win.window.flip()
@@ -52,13 +58,15 @@ def check(label):
     # leave the panels on the screen; the second is drawn whole after forget().
     s.update_readout = lambda wall_s: None
     frame()
+    n_pictures = len(pictures)
     kept = frame()
     skipped = drawn[-1] is False
+    picture_kept = len(pictures) == n_pictures
     win.panel_renderer.forget()
     whole = frame()
     del s.update_readout
     diff = int((kept != whole).any(axis=2).sum())
-    out["checks"].append([label, skipped, diff])
+    out["checks"].append([label, skipped, diff, picture_kept])
 steps = [  # (what changes, then frames played before the check, its label)
     ("play", 6, "flat, playing"),
     ("timeline", 3, "flat, timeline shown"),  # the show frame dimmed: reaches the picture
@@ -109,9 +117,15 @@ def test_panels_left_on_the_screen_equal_panels_drawn_whole(display: Display,
     assert run.returncode == 0, run.stderr
     out = json.loads(run.stdout.strip().splitlines()[-1])
     assert out["keeps"] is True  # Xvfb with llvmpipe copies the back buffer on a swap
-    for label, _skipped, diff in out["checks"]:
+    for label, _skipped, diff, _picture in out["checks"]:
         assert diff == 0, (label, diff)
-    skipped = {label: s for label, s, _ in out["checks"]}
+    skipped = {label: s for label, s, _, _ in out["checks"]}
+    picture_kept = {label: p for label, _, _, p in out["checks"]}
+    # The same show frame again with no panel over the picture: the picture was left on
+    # the screen too (the renderer's geometry is the same object, not drawn again), and
+    # equals the picture drawn whole (diff 0 above).
+    assert picture_kept["flat, playing"] and picture_kept["flat, timeline hidden"]
+    assert not picture_kept["flat, timeline shown"]  # dimmed frame: a panel reaches in
     # Frames drew only the panels that changed (and those they touch), not all of them.
     assert any(0 < n < total for n, total in out["lists_drawn"])
     # Nothing changed between the two frames: the panels were left on the screen.

@@ -171,6 +171,9 @@ class ViewerWindow:
         #: The dome preview drawn this frame, copied to the screen under the panels.
         self._blit: tuple[Any, tuple[int, int], int, int] | None = None
         self._shown: Any = None  # the last show picture, with what it was made from
+        self._overlaid: Any = None  # the last shown scene with its overlay switches
+        #: The geometry the picture area of the screen shows, while it keeps its pixels.
+        self._picture_geom: Any = None
         self.preview_rect: tuple[int, int, int, int] | None = None
         self._closed = False
         #: A frame drawn by draw_frame and not yet swapped onto the screen.
@@ -452,7 +455,7 @@ class ViewerWindow:
                     # The show's fades, captions and clock as the export draws them
                     # (export.show.show_picture), seen through the window's view.
                     shown, overlay = self._show_picture()
-                    drawn_scene = scene_with_overlays(shown, self.session.overlays)
+                    drawn_scene = self._with_overlays(shown)
                     geom = self.renderer.geometry(drawn_scene, self.session.clock.t_s,
                                                   self._view(), overlay=overlay)
                 else:
@@ -491,15 +494,24 @@ class ViewerWindow:
             try:
                 if geom is not None:
                     clip = None
+                    kept = False
                     if picture is not None:
                         bg = geom.background
                         outside = (bg[0] * bg[3], bg[1] * bg[3], bg[2] * bg[3], bg[3])
-                        if not self.panel_renderer.keeps(picture, (fw, fh), outside):
+                        kept = self.panel_renderer.keeps(picture, (fw, fh), outside)
+                        if not kept:
                             self.ctx.clear(*outside)
                         px, py, pw, ph = picture
                         clip = (px, fh - py - ph, pw, ph)
-                    self.renderer.draw(geom, self.ctx.screen, clip_px=clip)
+                    # The same geometry as the picture the screen still shows (a show
+                    # frame in its second screen refresh, no panel over it last frame):
+                    # nothing to draw there.
+                    if not (kept and geom is self._picture_geom):
+                        self._picture_geom = None
+                        self.renderer.draw(geom, self.ctx.screen, clip_px=clip)
+                    self._picture_geom = geom if picture is not None else None
                 else:
+                    self._picture_geom = None
                     self._draw_immersive(fw, fh, plan, picture)
                 drawn = True
             except Exception as err:  # keep the editor usable; say what went wrong
@@ -507,6 +519,7 @@ class ViewerWindow:
             self.ctx.screen.use()
             self.ctx.viewport = (0, 0, fw, fh)
         if not drawn:
+            self._picture_geom = None
             self.ctx.clear(*BACKGROUND)
             picture = None
         self._blit_preview()
@@ -548,6 +561,16 @@ class ViewerWindow:
         if kept is None or kept[0][0] is not key[0] or kept[0][1:] != key[1:]:
             self._shown = kept = (key, show_picture(self.editor.scene, c.t_s, show_s))
         return kept[1]
+
+    def _with_overlays(self, shown: Any) -> Any:
+        """``shown`` with the overlay switches applied: the same object while neither
+        changes, so the renderer keeps the frame's geometry (Renderer.geometry)."""
+        switches = tuple(sorted(self.session.overlays.items()))
+        kept = self._overlaid
+        if kept is None or kept[0] is not shown or kept[1] != switches:
+            self._overlaid = kept = (shown, switches,
+                                     scene_with_overlays(shown, self.session.overlays))
+        return kept[2]
 
     def _immersive_plan(self, fh: int, moving: bool) -> dict[str, Any]:
         """The part of a dome or panorama preview frame that needs no GL (``_prepare``):

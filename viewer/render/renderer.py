@@ -37,6 +37,7 @@ from ..geometry.frame import (
     StaticCache,
     build_frame,
     build_frames,
+    frame_view_key,
 )
 from ..geometry.labels import PlacedLabel
 from ..geometry.population import (
@@ -196,6 +197,8 @@ class Renderer:
         self.fonts = FontCache()
         self.starfield = make_starfield()
         self.static = StaticCache()
+        #: (scene, key, geometry) of the last ``geometry`` call.
+        self._last_frame: tuple[Scene, tuple[object, ...], FrameGeometry] | None = None
         self.p_stroke = load_program(ctx, "stroke")
         self.p_fill = load_program(ctx, "fill")
         self.p_marker = load_program(ctx, "marker")
@@ -240,9 +243,19 @@ class Renderer:
     def geometry(self, scene: Scene, t_s: float, view: View,
                  transparent: bool = False, overlay: Sequence[OverlayText] = (),
                  place: bool = True) -> FrameGeometry:
-        """The frame's geometry (viewer.geometry.frame.build_frame with this font)."""
-        return build_frame(scene, t_s, view, self.measure, transparent, self.starfield,
+        """The frame's geometry (viewer.geometry.frame.build_frame with this font).
+
+        The same arguments as the call before (the same scene object, time, view and
+        overlay) give the same geometry object back, made once: a window showing one show
+        frame in several screen refreshes. Callers treat the geometry as read-only."""
+        key = (t_s, frame_view_key(view), tuple(overlay), transparent, place)
+        last = self._last_frame
+        if last is not None and last[0] is scene and last[1] == key:
+            return last[2]
+        geom = build_frame(scene, t_s, view, self.measure, transparent, self.starfield,
                            self.static, overlay, place)
+        self._last_frame = (scene, key, geom)
+        return geom
 
     def geometries(self, scene: Scene, t_s: float, views: Sequence[View],
                    transparent: bool = False, place: bool = True) -> list[FrameGeometry]:
