@@ -31,18 +31,24 @@ def measure_window(scene_path: str | Path, size: tuple[int, int] = (1920, 1080),
         clock = win.session.clock
         step_s = 1.0 / 60.0
 
+        fresh: list[bool] = []  # per frame of the last ``timed``: a new show frame?
+
         def timed(n: int) -> list[float]:
             """Whole window frames as its loop draws them (events, clock, the frame laid
             out, the last one swapped on, this one queued: ViewerWindow.draw_frame),
-            after a warm-up."""
+            after a warm-up. At 60 refreshes a second a 30 frames/s show shows each of
+            its frames twice: ``fresh`` says which frames showed a new one."""
             out = []
+            fresh.clear()
             for k in range(warmup + n):
                 t0 = time.perf_counter()
+                before = clock.t_s
                 win.window.dispatch_events()
                 clock.advance(step_s)
                 win.draw_frame()
                 if k >= warmup:
                     out.append(time.perf_counter() - t0)
+                    fresh.append(clock.t_s != before)
             win.show_drawn()
             return out
 
@@ -56,6 +62,8 @@ def measure_window(scene_path: str | Path, size: tuple[int, int] = (1920, 1080),
                     "dome_playing_median_ms": 1e3 * statistics.median(dome_playing)}
         clock.playing = True
         whole = timed(frames)
+        new_frames = [dt for dt, f in zip(whole, fresh, strict=True) if f]
+        repeats = [dt for dt, f in zip(whole, fresh, strict=True) if not f]
         # The scene alone, same frames, same context, offscreen, finished before timing.
         scene_only: list[float] = []
         renderer = win.renderer
@@ -88,13 +96,21 @@ def measure_window(scene_path: str | Path, size: tuple[int, int] = (1920, 1080),
             editor.select(0)
             editor.set_field("e", "0.3" if editor.field_text("e") != "0.3" else "0.31")
         edit_seen_next_frame = win.needs_frame()
-        median_ms = 1e3 * statistics.median(whole)
+        # The loop's rate is frames over time (the mean): with each show frame shown
+        # twice, the frame times fall in two groups and their median is either's edge.
+        mean_ms = 1e3 * statistics.fmean(whole)
         return {
             "size": list(size),
             "frames": frames,
-            "window_frame_median_ms": median_ms,
-            "window_fps_median": 1e3 / median_ms,
+            "window_frame_mean_ms": mean_ms,
+            "window_fps": 1e3 / mean_ms,
+            "window_frame_median_ms": 1e3 * statistics.median(whole),
             "window_frame_p95_ms": 1e3 * sorted(whole)[int(0.95 * (len(whole) - 1))],
+            "new_show_frames": len(new_frames),
+            "new_show_frame_median_ms": (1e3 * statistics.median(new_frames)
+                                         if new_frames else None),
+            "repeated_show_frame_median_ms": (1e3 * statistics.median(repeats)
+                                              if repeats else None),
             "scene_only_median_ms": (1e3 * statistics.median(scene_only)
                                      if scene_only else None),
             "dome_preview_px": preview_px,
@@ -150,11 +166,15 @@ def bench_window() -> dict[str, Any]:
             server.wait()
             del os.environ["DISPLAY"]
     big = _big_preview(scene)
-    fps = m["window_fps_median"]
+    fps = m["window_fps"]
     rows = [
-        ("window frame, demo + panels, time playing", m["window_frame_median_ms"], "ms",
-         f"median of {m['frames']}; {fps:.0f} frames/s"),
+        ("window frame, demo + panels, time playing", m["window_frame_mean_ms"], "ms",
+         f"mean of {m['frames']}; {fps:.0f} frames/s"),
         ("  p95 window frame", m["window_frame_p95_ms"], "ms", ""),
+        ("  frames showing a new show frame", m["new_show_frame_median_ms"] or float("nan"),
+         "ms", f"median of {m['new_show_frames']}"),
+        ("  frames showing the same show frame again", m["repeated_show_frame_median_ms"]
+         or float("nan"), "ms", f"median of {m['frames'] - m['new_show_frames']}"),
         ("  baseline: the same frames, renderer alone", m["scene_only_median_ms"] or
          float("nan"), "ms", "offscreen, same context"),
         (f"dome preview {m['dome_preview_px']} px, time playing (1 sample per pixel)",
@@ -168,6 +188,7 @@ def bench_window() -> dict[str, Any]:
                      "time playing", big["dome_playing_median_ms"], "ms",
                      f"{1e3 / big['dome_playing_median_ms']:.0f} frames/s"))
     dome_fps = 1e3 / m["dome_playing_median_ms"]
+    new_ms = m["new_show_frame_median_ms"] or float("inf")
     big_verdict = [] if big is None else [
         f"1024 px dome preview >= 20 frames/s while playing: "
         f"{'met' if big['dome_playing_median_ms'] <= 50 else 'NOT met'}"]
@@ -176,6 +197,8 @@ def bench_window() -> dict[str, Any]:
             "verdicts": [f">= 60 frames/s while playing: {'met' if fps >= 60 else 'NOT met'}",
                          f">= 90 frames/s while playing (issue 15's studio goal): "
                          f"{'met' if fps >= 90 else 'NOT met'}",
+                         f"every frame a new picture at >= 90 frames/s: "
+                         f"{'met' if new_ms <= 1e3 / 90 else 'NOT met'}",
                          f"dome preview >= 20 frames/s while playing: "
                          f"{'met' if dome_fps >= 20 else 'NOT met'}", *big_verdict,
                          f"idle window draws nothing: "
