@@ -118,6 +118,8 @@ class Editor:
         self._redo: list[_State] = []
         self._saved_scene = scene
         self.revision = 0
+        #: Field texts of the scene they were made from: (scene, {(field, body): text}).
+        self._texts: tuple[Scene, dict[tuple[str, int], str]] = (scene, {})
 
     @classmethod
     def open(cls, path: str | Path) -> Editor:
@@ -177,8 +179,18 @@ class Editor:
         return self._redo[-1].label if self._redo else ""
 
     def field_text(self, field: str, index: int | None = None) -> str:
-        """An element field of a body as text with its unit ("6778.137 km"); "" if none."""
-        body = self._body_at(index)
+        """An element field of a body as text with its unit ("6778.137 km"); "" if none.
+        Made once per scene (an edit makes a new one): the panels ask every frame."""
+        k = self._index(index)
+        if self._texts[0] is not self.scene:
+            self._texts = (self.scene, {})
+        texts = self._texts[1]
+        text = texts.get((field, k))
+        if text is None:
+            text = texts[(field, k)] = self._field_text(field, self.scene.bodies[k])
+        return text
+
+    def _field_text(self, field: str, body: Body) -> str:
         x = field_value(field, body.elements, self.scene.center.radius_m)
         if not math.isfinite(x):
             return ""

@@ -22,6 +22,7 @@ The flows a user walks through live here, so they are tested without a window:
 from __future__ import annotations
 
 import os
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -124,6 +125,7 @@ class Session:
     _readout_wall_s: float = float("-inf")
     _readout_at: float | None = None
     _readout_kept: tuple[Any, ...] | None = None
+    _texts: dict[str, tuple[tuple[object, ...], str]] = field(default_factory=dict)
 
     @property
     def quit_prompt(self) -> bool:
@@ -151,6 +153,14 @@ class Session:
         if not self.clock.playing or wall_s - self._readout_wall_s >= 1.0 / READOUT_HZ:
             self._readout_at = self.clock.t_s
             self._readout_wall_s = wall_s
+
+    def kept_text(self, name: str, key: tuple[object, ...], make: Callable[[], str]) -> str:
+        """``make()``, made again only when ``key`` changes (one text kept per ``name``):
+        the dates the panels show every frame, formatted once per readout."""
+        kept = self._texts.get(name)
+        if kept is None or kept[0] != key:
+            kept = self._texts[name] = (key, make())
+        return kept[1]
 
     def readout(self, index: int) -> Any:
         """``body_readout`` of body ``index`` at the readout time, made again only when the

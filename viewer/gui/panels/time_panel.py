@@ -55,7 +55,9 @@ def draw(p: Panels, s: Session, pos: tuple[float, float], size: tuple[float, flo
             p.typed_field("rate", rate_text(clock.rate), set_rate, 130, refusal=False)
         imgui.same_line()
         shown = s.readout_t_s  # the clock, at most READOUT_HZ times a second while playing
-        when = ed.scene.epoch.plus_seconds(shown).iso()
+        ep = ed.scene.epoch
+        when = s.kept_text("date", (ep.jd1, ep.jd2, ep.scale, shown),
+                           lambda: ep.plus_seconds(shown).iso())
         imgui.text(f"   {when}   ({shown / DAY_S:+.3f} d since the scene epoch)")
         if "rate" in p.errors:
             p.refusal("rate: " + p.errors["rate"])
@@ -75,13 +77,14 @@ def _epoch(p: Panels, s: Session) -> None:
     imgui.align_text_to_frame_padding()
     imgui.text("scene epoch (t = 0)")
     imgui.same_line()
-    p.report["epoch"] = ed.scene.epoch.iso()
+    ep = ed.scene.epoch
+    epoch_text = p.report["epoch"] = s.kept_text("epoch", (ep.jd1, ep.jd2, ep.scale), ep.iso)
 
     def set_epoch(text: str) -> None:
         if ed.set_epoch(text):
             s.message = f"scene epoch set to {ed.scene.epoch.iso()} (Ctrl+Z undoes)"
 
-    p.typed_field("epoch", ed.scene.epoch.iso(), set_epoch, 300, refusal=False)
+    p.typed_field("epoch", epoch_text, set_epoch, 300, refusal=False)
     imgui.same_line()
     if "epoch" in p.errors:
         imgui.text_colored(RED, "refused: " + p.errors["epoch"])

@@ -125,7 +125,9 @@ def _controls(p: Panels, s: Session) -> None:
     imgui.same_line()
     if p.button("+ fade"):
         _add_fade(s)
-    when = scene.epoch.plus_seconds(c.t_s).iso()
+    ep, t = scene.epoch, c.t_s
+    when = s.kept_text("show date", (ep.jd1, ep.jd2, ep.scale, t),
+                       lambda: ep.plus_seconds(t).iso())
     state = "" if c.on_show else "   (off the show: scene time)"
     text = (f"{c.show_s:.2f} s of {tl.duration_s:g} s   frame {c.frame} of "
             f"{tl.frame_count}   {when}{state}")
