@@ -166,9 +166,14 @@ class PanelRenderer:
             kept_before = self.keeps(picture, framebuffer_size, outside)
             head = (float(dw), float(dh), len(lists))
             sigs = [_signature(c, d) for c, d in zip(lists, data, strict=True)]
-            boxes = _boxes(lists, data, (dw, dh), sx, sy)
-            reach = any(b is not None and _overlap(b, picture) for b in boxes)
             last = self._kept
+            # A list the same as last frame's, on the same screen, has the same rectangle.
+            same = last is not None and (last.display, last.framebuffer_size) == (
+                head, framebuffer_size)
+            boxes = [last.boxes[i] if same and last is not None and last.sigs[i] == sig
+                     else _box(c, d, (dw, dh), sx, sy)
+                     for i, (c, d, sig) in enumerate(zip(lists, data, sigs, strict=True))]
+            reach = any(b is not None and _overlap(b, picture) for b in boxes)
             self._kept = None if reach else _Kept(picture, framebuffer_size, outside, head,
                                                   sigs, boxes)
             if kept_before and last is not None and not reach and not textures_changed \
@@ -272,45 +277,41 @@ def _on_screen(box: Rect, framebuffer_size: tuple[int, int]) -> Rect:
     return x0, y0, x1 - x0, y1 - y0
 
 
-def _boxes(lists: list[Any], data: list[tuple[bytes, bytes]], display: tuple[float, float],
-           sx: float, sy: float) -> list[Rect | None]:
-    """The framebuffer rectangle each draw list can touch (None if it draws nothing), a
+def _box(cmds: Any, data: tuple[bytes, bytes], display: tuple[float, float],
+         sx: float, sy: float) -> Rect | None:
+    """The framebuffer rectangle a draw list can touch (None if it draws nothing), a
     pixel wider each way for rounding: the union over its draws of each one's clip
     rectangle, or where that is the whole display (a window's frame, title and
     background), its triangles' bounding box. imgui clips scrolled-away content, so the
     triangles alone could reach far outside their window."""
-    out: list[Rect | None] = []
     dw, dh = display
+    vertices, indices = data
     index_type = np.uint16 if imgui.INDEX_SIZE == 2 else np.uint32
-    for cmds, (vertices, indices) in zip(lists, data, strict=True):
-        xy = idx = None
-        union: list[float] | None = None
-        for cmd in cmds.cmd_buffer:
-            if cmd.elem_count == 0:
-                continue
-            x0, y0, x1, y1 = cmd.clip_rect
-            if x0 <= 0.0 and y0 <= 0.0 and x1 >= dw and y1 >= dh:
-                if xy is None:
-                    xy = np.frombuffer(vertices, dtype=np.float32).reshape(
-                        -1, imgui.VERTEX_SIZE // 4)[:, :2]
-                    idx = np.frombuffer(indices, dtype=index_type)
-                assert idx is not None
-                used = idx[cmd.idx_offset:cmd.idx_offset + cmd.elem_count]
-                p = xy[used.astype(np.intp) + cmd.vtx_offset]
-                (px0, py0), (px1, py1) = p.min(axis=0), p.max(axis=0)
-                x0, y0, x1, y1 = max(x0, float(px0)), max(y0, float(py0)), \
-                    min(x1, float(px1)), min(y1, float(py1))
-            if x1 <= x0 or y1 <= y0:
-                continue
-            union = [x0, y0, x1, y1] if union is None else [
-                min(union[0], x0), min(union[1], y0), max(union[2], x1), max(union[3], y1)]
-        if union is None:
-            out.append(None)
+    xy = idx = None
+    union: list[float] | None = None
+    for cmd in cmds.cmd_buffer:
+        if cmd.elem_count == 0:
             continue
-        left, top = math.floor(union[0] * sx) - 1, math.floor(union[1] * sy) - 1
-        out.append((left, top, math.ceil(union[2] * sx) + 1 - left,
-                    math.ceil(union[3] * sy) + 1 - top))
-    return out
+        x0, y0, x1, y1 = cmd.clip_rect
+        if x0 <= 0.0 and y0 <= 0.0 and x1 >= dw and y1 >= dh:
+            if xy is None:
+                xy = np.frombuffer(vertices, dtype=np.float32).reshape(
+                    -1, imgui.VERTEX_SIZE // 4)[:, :2]
+                idx = np.frombuffer(indices, dtype=index_type)
+            assert idx is not None
+            used = idx[cmd.idx_offset:cmd.idx_offset + cmd.elem_count]
+            p = xy[used.astype(np.intp) + cmd.vtx_offset]
+            (px0, py0), (px1, py1) = p.min(axis=0), p.max(axis=0)
+            x0, y0, x1, y1 = max(x0, float(px0)), max(y0, float(py0)), \
+                min(x1, float(px1)), min(y1, float(py1))
+        if x1 <= x0 or y1 <= y0:
+            continue
+        union = [x0, y0, x1, y1] if union is None else [
+            min(union[0], x0), min(union[1], y0), max(union[2], x1), max(union[3], y1)]
+    if union is None:
+        return None
+    left, top = math.floor(union[0] * sx) - 1, math.floor(union[1] * sy) - 1
+    return (left, top, math.ceil(union[2] * sx) + 1 - left, math.ceil(union[3] * sy) + 1 - top)
 
 
 def _overlap(a: Rect, b: Rect) -> bool:
