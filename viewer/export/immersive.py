@@ -461,7 +461,8 @@ class ImmersiveRenderer:
         face_text = []
         for (i, view), geom in zip(drawn, geoms, strict=True):
             face_text.append((view, geom.label_requests, geom.label_obstacles))
-            geom.grid = emphasised_grid(geom.grid)
+            # A copy with the grid raised: the plan's geometry stays as made.
+            geom = replace(geom, grid=emphasised_grid(geom.grid))
             self.renderer.draw(geom, atlas_fbo, top_row_first=False,
                                origin_px=((i % 3) * size, (i // 3) * size))
         # llvmpipe rasterises the faces on its threads while the labels are placed here.

@@ -168,9 +168,9 @@ class PanelRenderer:
             sigs = [_signature(c, d) for c, d in zip(lists, data, strict=True)]
             last = self._kept
             # A list the same as last frame's, on the same screen, has the same rectangle.
-            same = last is not None and (last.display, last.framebuffer_size) == (
-                head, framebuffer_size)
-            boxes = [last.boxes[i] if same and last is not None and last.sigs[i] == sig
+            old = last if last is not None and (last.display, last.framebuffer_size) == (
+                head, framebuffer_size) else None
+            boxes = [old.boxes[i] if old is not None and old.sigs[i] == sig
                      else _box(c, d, (dw, dh), sx, sy)
                      for i, (c, d, sig) in enumerate(zip(lists, data, sigs, strict=True))]
             reach = any(b is not None and _overlap(b, picture) for b in boxes)
